@@ -1,0 +1,76 @@
+// Engine: the live optimizer. A worker thread owns the map and the blended objective and runs
+// iterations continuously; other threads talk to it only through
+//   - the command inbox: post() is thread-safe, returns the command's sequence number; the worker
+//     takes the whole inbox at the top of an iteration and applies it between evaluations;
+//   - the snapshot mailbox: latest() is thread-safe and never blocks on the optimizer; it returns
+//     the newest immutable Snapshot (latest wins, published at most every ~16 ms).
+// Nothing else is shared. Heavy rebuilds (perplexity, new features) run on a helper thread and
+// are swapped in between iterations.
+#pragma once
+#include <cstdint>
+#include <memory>
+#include <string>
+#include <variant>
+#include <vector>
+
+#include "solver/judgment.h"
+#include "solver/points.h"
+
+namespace kith {
+
+// ---- commands ---------------------------------------------------------------
+namespace cmd {
+struct AddJudgment { Judgment judgment; };
+struct RetractJudgment { int64_t judgment_id; bool retracted = true; };  // false = restore
+struct Pin { int32_t item; std::vector<double> position; };              // empty position = where it is
+struct Unpin { int32_t item; };
+struct DragTarget { int32_t item; std::vector<double> position; };       // coalesced per item
+struct ClearDrag { int32_t item; };
+struct SetBlend { double blend; };
+struct SetTheta { double theta; };
+struct SetLearningRate { double learning_rate; };  // <= 0 means "auto"
+struct SetExaggeration { double exaggeration; };
+struct SetPerplexity { double perplexity; };       // rebuilt off the hot loop
+struct Pause {};
+struct Resume {};
+struct Restart {};                                 // from the PCA start, schedule from zero
+struct InsertItems { std::vector<std::string> ids; Points features; };
+struct RemoveItems { std::vector<int32_t> items; };
+}  // namespace cmd
+
+using CommandBody = std::variant<cmd::AddJudgment, cmd::RetractJudgment, cmd::Pin, cmd::Unpin, cmd::DragTarget,
+                                 cmd::ClearDrag, cmd::SetBlend, cmd::SetTheta, cmd::SetLearningRate,
+                                 cmd::SetExaggeration, cmd::SetPerplexity, cmd::Pause, cmd::Resume, cmd::Restart,
+                                 cmd::InsertItems, cmd::RemoveItems>;
+
+struct Command {
+  uint64_t seq = 0;         // assigned by post()
+  uint64_t iteration = 0;   // iteration at which the worker applied it (filled in the log)
+  CommandBody body;
+};
+
+// ---- snapshots --------------------------------------------------------------
+struct HealthFigures {
+  double kl = 0.0;                    // KL(P||Q) at this map
+  double judgment_agreement = -1.0;   // fraction of active judgments satisfied; -1 if none
+  double trustworthiness = -1.0;      // -1 until computed (it is computed now and then, not every frame)
+  double neighbour_recall = -1.0;
+};
+
+struct Snapshot {
+  Points positions;                 // N x dims
+  std::vector<std::string> ids;     // N, same order as positions
+  std::vector<uint8_t> pinned;      // N, 1 where hard-pinned
+  double neighbour_cost = 0.0;      // per-term costs
+  double judgment_cost = 0.0;
+  double pin_cost = 0.0;
+  HealthFigures health;
+  uint64_t iteration = 0;
+  uint64_t last_command = 0;        // sequence number of the last command applied
+  uint64_t generation = 0;          // increases with every publish
+  double iterations_per_second = 0.0;
+  bool paused = false;
+  bool settled = false;             // converged and sleeping
+};
+
+}  // namespace kith
