@@ -1,5 +1,6 @@
-// Subcommands whose capability has not landed yet. Each helper that lands one deletes its line
-// here and adds cmd_NAME.cpp. Until then they say so plainly and exit 1.
+// Placeholders for subcommands whose capability has not landed: weak symbols, so adding
+// cmd_NAME.cpp with the real definition replaces one without touching this file. Remove a line
+// here once its real command exists.
 #include <cstdio>
 
 #include "viewer/commands.h"
@@ -12,15 +13,17 @@ int pending(const char* name) {
 }
 }  // namespace
 
-int cmd_check(const Args&) { return pending("check"); }
-int cmd_fit(const Args&) { return pending("fit"); }
-int cmd_open(const Args&) { return pending("open"); }
-int cmd_render(const Args&) { return pending("render"); }
-int cmd_demo(const Args&) { return pending("demo"); }
-int cmd_new(const Args&) { return pending("new"); }
-int cmd_judge(const Args&) { return pending("judge"); }
-int cmd_export(const Args&) { return pending("export"); }
-int cmd_report(const Args&) { return pending("report"); }
-int cmd_describe(const Args&) { return pending("describe"); }
+#define KITH_PENDING(NAME) \
+  __attribute__((weak)) int cmd_##NAME(const Args&) { return pending(#NAME); }
+KITH_PENDING(check)
+KITH_PENDING(fit)
+KITH_PENDING(open)
+KITH_PENDING(render)
+KITH_PENDING(demo)
+KITH_PENDING(new)
+KITH_PENDING(judge)
+KITH_PENDING(export)
+KITH_PENDING(report)
+KITH_PENDING(describe)
 
 }  // namespace kith
