@@ -13,6 +13,7 @@
 #include <variant>
 #include <vector>
 
+#include "solver/collection.h"
 #include "solver/judgment.h"
 #include "solver/points.h"
 
@@ -71,6 +72,37 @@ struct Snapshot {
   double iterations_per_second = 0.0;
   bool paused = false;
   bool settled = false;             // converged and sleeping
+};
+
+// ---- the engine ---------------------------------------------------------------
+struct EngineOptions {
+  int dims = 3;                 // 2 or 3 (default: 3)
+  double perplexity = 30.0;     // (default: 30)
+  double dof = 1.0;             // Student-t degrees of freedom of the map (default: 1)
+  double theta = 0.5;           // Barnes-Hut angle (default: 0.5)
+  double blend = 1.0;           // weight of the judgment term (default: 1; see README)
+  double learning_rate = 0.0;   // <= 0: auto (default: auto)
+  uint64_t seed = 42;           // (default: 42)
+  int threads = 0;              // threads for one evaluation, 0 = all (default: 0)
+  bool start_paused = false;    // (default: false)
+  bool IsValid(std::string* error) const;
+};
+
+class Engine {
+ public:
+  // Copies what it needs from the collection; `start` is an optional initial map (N x dims),
+  // e.g. a session's last checkpoint; empty means the PCA start.
+  Engine(const Collection& collection, const EngineOptions& options, std::vector<Judgment> judgments = {},
+         Points start = {});
+  ~Engine();  // stops and joins the worker
+  Engine(const Engine&) = delete;
+  Engine& operator=(const Engine&) = delete;
+
+  void start();                                   // starts the worker thread
+  void stop();                                    // stops it (idempotent)
+  uint64_t post(CommandBody body);                // thread-safe; returns the sequence number
+  std::shared_ptr<const Snapshot> latest() const; // thread-safe, never blocks on the optimizer
+  std::vector<Command> command_log() const;       // applied commands with their iterations
 };
 
 }  // namespace kith
