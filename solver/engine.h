@@ -48,7 +48,8 @@ struct Command {
   uint64_t seq = 0;         // assigned by post()
   uint64_t iteration = 0;   // iteration at which the worker applied it (filled in the log)
   CommandBody body;
-  bool superseded = false;  // a later drag target of the same item replaced it before it was applied
+  bool superseded = false;  // replaced before it was applied: by a later drag target of the same item, or
+                            // (perplexity) by a later one while it waited for a rebuild
   std::string rejected;     // non-empty: not applied, and why (unknown item, NaN, impossible value)
 };
 
@@ -72,6 +73,7 @@ struct Snapshot {
   uint64_t last_command = 0;        // highest sequence number applied (or rejected/superseded) so far
   uint64_t generation = 0;          // increases with every publish
   double iterations_per_second = 0.0;
+  double movement = 0.0;            // mean step of the last iteration over the map's RMS radius
   bool paused = false;
   bool settled = false;             // converged and sleeping
   bool rebuilding = false;          // a heavy rebuild (perplexity, new items) runs on the helper thread
@@ -94,7 +96,7 @@ struct EngineOptions {
   // over the map's RMS radius); after slow_after quiet iterations the worker slows down, after
   // settle_after it sleeps until a command arrives. It also sleeps after settle_cap iterations
   // without a command, however much the map still drifts (0 = never).
-  double settle_tolerance = 2e-4;  // (default: 2e-4)
+  double settle_tolerance = 3e-4;  // (default: 3e-4)
   int slow_after = 50;             // (default: 50)
   int settle_after = 150;          // (default: 150)
   uint64_t settle_cap = 3000;      // (default: 3000)

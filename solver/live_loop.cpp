@@ -12,7 +12,7 @@ bool is_pause(const CommandBody& b) { return std::holds_alternative<cmd::Pause>(
 bool is_resume(const CommandBody& b) { return std::holds_alternative<cmd::Resume>(b); }
 }  // namespace
 
-LiveLoop::LiveLoop(std::unique_ptr<LiveModel> model, LoopOptions options)
+LiveLoop::LiveLoop(std::unique_ptr<LiveModel> model, LiveLoopOptions options)
     : model_(std::move(model)), options_(options) {
   paused_ = options_.start_paused;
   publish();
@@ -58,6 +58,7 @@ void LiveLoop::publish() {
   s->last_command = last_command_;
   s->generation = ++generation_;
   s->iterations_per_second = seconds_per_iteration_ > 0 ? 1.0 / seconds_per_iteration_ : 0.0;
+  s->movement = movement_;
   s->paused = paused_;
   s->settled = settled_;
   s->rebuilding = flight_ != nullptr;
@@ -91,6 +92,7 @@ void LiveLoop::run() {
     const double dt = std::chrono::duration<double>(Clock::now() - t0).count();
     seconds_per_iteration_ = seconds_per_iteration_ == 0.0 ? dt : 0.9 * seconds_per_iteration_ + 0.1 * dt;
 
+    movement_ = r.movement;
     quiet_ = (r.finite && r.movement < options_.settle_tolerance) ? quiet_ + 1 : 0;
     if (model_->may_settle() &&
         (quiet_ >= options_.settle_after || (options_.settle_cap > 0 && since_command_ >= options_.settle_cap))) {
@@ -163,6 +165,15 @@ void LiveLoop::process_pending(bool* changed) {
     const bool reindexes = model_->reindexes(c.body);
     if (flight_ && (heavy || reindexes)) {
       blocked = reindexes;
+      // A waiting heavy command is superseded by a later one of the same kind (a perplexity slider
+      // moved on): only the newest is rebuilt. Nothing that changes indices lies between them.
+      if (heavy && !reindexes && !keep.empty() && keep.back().body.index() == c.body.index()) {
+        keep.back().superseded = true;
+        keep.back().iteration = iteration_;
+        log(std::move(keep.back()));
+        keep.pop_back();
+        *changed = true;
+      }
       keep.push_back(std::move(c));
       continue;
     }

@@ -55,9 +55,9 @@ class LiveModel {
   virtual void fill(Snapshot& snapshot) = 0;
 };
 
-struct LoopOptions {
+struct LiveLoopOptions {
   double publish_interval_ms = 16.0;
-  double settle_tolerance = 2e-4;
+  double settle_tolerance = 3e-4;
   int slow_after = 50;
   int settle_after = 150;
   uint64_t settle_cap = 3000;
@@ -67,7 +67,7 @@ struct LoopOptions {
 
 class LiveLoop {
  public:
-  LiveLoop(std::unique_ptr<LiveModel> model, LoopOptions options);
+  LiveLoop(std::unique_ptr<LiveModel> model, LiveLoopOptions options);
   ~LiveLoop();
   LiveLoop(const LiveLoop&) = delete;
   LiveLoop& operator=(const LiveLoop&) = delete;
@@ -89,7 +89,7 @@ class LiveLoop {
   void join_helper();
 
   std::unique_ptr<LiveModel> model_;
-  LoopOptions options_;
+  LiveLoopOptions options_;
   Inbox inbox_;
   Mailbox<Snapshot> mailbox_;
   mutable std::mutex log_mutex_;
@@ -107,6 +107,7 @@ class LiveLoop {
   bool paused_ = false;
   bool settled_ = false;
   double seconds_per_iteration_ = 0.0;  // running mean
+  double movement_ = 0.0;
   std::string last_rejected_;
   std::chrono::steady_clock::time_point last_publish_{};
 
