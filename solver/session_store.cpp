@@ -1008,11 +1008,11 @@ void SessionStore::set_person_colour(int64_t person, const std::string& colour) 
     throw SessionError(Kind::kInvalid, impl_->path + ": no person with id " + std::to_string(person));
 }
 
-std::vector<Person> SessionStore::people() const {
+std::vector<SessionPerson> SessionStore::people() const {
   std::lock_guard<std::mutex> lock(impl_->mutex);
-  std::vector<Person> out;
+  std::vector<SessionPerson> out;
   Stmt q(impl_->db, "SELECT person, name, colour FROM people ORDER BY person");
-  while (q.step()) out.push_back(Person{q.i64(0), q.text(1), q.text(2)});
+  while (q.step()) out.push_back(SessionPerson{q.i64(0), q.text(1), q.text(2)});
   return out;
 }
 

@@ -76,7 +76,7 @@ struct SessionSettings {
   bool operator==(const SessionSettings& o) const;
 };
 
-struct Person {
+struct SessionPerson {
   int64_t id = -1;
   std::string name;    // any name or pseudonym, unique in the session
   std::string colour;  // "#rrggbb" or "" (the viewer's choice)
@@ -151,7 +151,7 @@ class SessionStore {
   // ---- people ----
   int64_t add_person(const std::string& name, const std::string& colour = "");  // existing: its id
   void set_person_colour(int64_t person, const std::string& colour);
-  std::vector<Person> people() const;
+  std::vector<SessionPerson> people() const;
 
   // ---- judgments: committed before these return; never deleted ----
   // Returns the new id. A person named for the first time is added. time 0 means now.
