@@ -24,6 +24,5 @@ KITH_PENDING(new)
 KITH_PENDING(judge)
 KITH_PENDING(export)
 KITH_PENDING(report)
-KITH_PENDING(describe)
 
 }  // namespace kith
