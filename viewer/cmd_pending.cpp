@@ -18,7 +18,6 @@ int pending(const char* name) {
 KITH_PENDING(check)
 KITH_PENDING(fit)
 KITH_PENDING(open)
-KITH_PENDING(render)
 KITH_PENDING(demo)
 KITH_PENDING(new)
 KITH_PENDING(judge)
