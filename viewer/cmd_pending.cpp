@@ -17,7 +17,6 @@ int pending(const char* name) {
   __attribute__((weak)) int cmd_##NAME(const Args&) { return pending(#NAME); }
 KITH_PENDING(check)
 KITH_PENDING(fit)
-KITH_PENDING(open)
 KITH_PENDING(demo)
 KITH_PENDING(new)
 KITH_PENDING(judge)

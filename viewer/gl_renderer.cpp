@@ -86,7 +86,7 @@ struct Buffer {
 
 struct GlRenderer::Impl {
   GLuint points_program = 0, lines_program = 0, cards_program = 0;
-  Buffer points, lines, grid, cards;
+  Buffer points, highlights, lines, grid, cards;
   GLuint atlas = 0;
 };
 
@@ -95,12 +95,13 @@ GlRenderer::GlRenderer() : impl_(std::make_unique<Impl>()) {
   m.points_program = program("points");
   m.lines_program = program("lines");
   m.cards_program = program("cards");
-  for (Buffer* b : {&m.points, &m.lines, &m.grid, &m.cards}) {
+  for (Buffer* b : {&m.points, &m.highlights, &m.lines, &m.grid, &m.cards}) {
     glGenVertexArrays(1, &b->vao);
     glGenBuffers(1, &b->vbo);
   }
-  glBindVertexArray(m.points.vao);
-  glBindBuffer(GL_ARRAY_BUFFER, m.points.vbo);
+  for (Buffer* b : {&m.points, &m.highlights}) {
+  glBindVertexArray(b->vao);
+  glBindBuffer(GL_ARRAY_BUFFER, b->vbo);
   glEnableVertexAttribArray(0);
   glVertexAttribPointer(0, 3, GL_FLOAT, GL_FALSE, sizeof(PointVertex), (void*)offsetof(PointVertex, position));
   glEnableVertexAttribArray(1);
@@ -109,6 +110,7 @@ GlRenderer::GlRenderer() : impl_(std::make_unique<Impl>()) {
   glVertexAttribPointer(2, 1, GL_FLOAT, GL_FALSE, sizeof(PointVertex), (void*)offsetof(PointVertex, size));
   glEnableVertexAttribArray(3);
   glVertexAttribIPointer(3, 1, GL_UNSIGNED_INT, sizeof(PointVertex), (void*)offsetof(PointVertex, flags));
+  }
   for (Buffer* b : {&m.lines, &m.grid}) {
     glBindVertexArray(b->vao);
     glBindBuffer(GL_ARRAY_BUFFER, b->vbo);
@@ -147,7 +149,7 @@ GlRenderer::GlRenderer() : impl_(std::make_unique<Impl>()) {
 
 GlRenderer::~GlRenderer() {
   Impl& m = *impl_;
-  for (Buffer* b : {&m.points, &m.lines, &m.grid, &m.cards}) {
+  for (Buffer* b : {&m.points, &m.highlights, &m.lines, &m.grid, &m.cards}) {
     glDeleteBuffers(1, &b->vbo);
     glDeleteVertexArrays(1, &b->vao);
   }
@@ -167,6 +169,7 @@ void upload(Buffer& b, const std::vector<T>& data) {
 }  // namespace
 
 void GlRenderer::set_points(const std::vector<PointVertex>& p) { upload(impl_->points, p); }
+void GlRenderer::set_highlights(const std::vector<PointVertex>& p) { upload(impl_->highlights, p); }
 void GlRenderer::set_lines(const std::vector<LineVertex>& l) { upload(impl_->lines, l); }
 void GlRenderer::set_grid(const std::vector<LineVertex>& g) { upload(impl_->grid, g); }
 
@@ -245,6 +248,12 @@ void GlRenderer::draw(const FrameParams& f) {
     glUniform1f(glGetUniformLocation(p, "u_fade_amount"), f.fade_amount);
     glBindVertexArray(m.points.vao);
     glDrawArrays(GL_POINTS, 0, m.points.count);
+    if (m.highlights.count) {
+      glDisable(GL_DEPTH_TEST);
+      glBindVertexArray(m.highlights.vao);
+      glDrawArrays(GL_POINTS, 0, m.highlights.count);
+      glEnable(GL_DEPTH_TEST);
+    }
   }
   if (f.lines && m.lines.count) {
     set_camera(m.lines_program);

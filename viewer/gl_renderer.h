@@ -24,6 +24,7 @@ class GlRenderer : public Renderer {
   GlRenderer& operator=(const GlRenderer&) = delete;
 
   void set_points(const std::vector<PointVertex>& points) override;
+  void set_highlights(const std::vector<PointVertex>& points) override;
   void set_lines(const std::vector<LineVertex>& lines) override;
   void set_grid(const std::vector<LineVertex>& grid) override;
   void set_cards(const std::vector<CardSprite>& cards) override;

@@ -67,6 +67,7 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
   for (size_t i = 0; i < n; ++i)
     positions_[i] = glm::vec3(float(p(Eigen::Index(i), 0)), p.cols() > 1 ? float(p(Eigen::Index(i), 1)) : 0.f,
                               p.cols() > 2 ? float(p(Eigen::Index(i), 2)) : 0.f);
+  if (drag_item_ >= 0 && size_t(drag_item_) < n) positions_[drag_item_] = drag_where_;
   pinned_.assign(n, 0);
   for (size_t i = 0; i < n && i < snapshot_->pinned.size(); ++i) pinned_[i] = snapshot_->pinned[i];
   if (start_positions_.size() != n) start_positions_ = positions_;
@@ -231,7 +232,7 @@ float MapView::auto_point_size() const {
 }
 
 void MapView::rebuild_points() {
-  std::vector<PointVertex> v(positions_.size());
+  std::vector<PointVertex> v(positions_.size()), highlights;
   const float size = options_.point_size > 0 ? options_.point_size : auto_point_size();
   for (size_t i = 0; i < positions_.size(); ++i) {
     const Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
@@ -242,8 +243,10 @@ void MapView::rebuild_points() {
     if (int(i) == drag_item_) flags |= kPointDragged | kPointHovered;
     const float s = (flags & kPointPinned) ? std::max(size, 7.f) : size;
     v[i] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
+    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[i]);
   }
   renderer_.set_points(v);
+  renderer_.set_highlights(highlights);
   dirty_points_ = false;
 }
 

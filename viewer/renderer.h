@@ -63,6 +63,8 @@ class Renderer {
  public:
   virtual ~Renderer() = default;
   virtual void set_points(const std::vector<PointVertex>& points) = 0;
+  // Selected, hovered and dragged items again, drawn over everything so they are never hidden.
+  virtual void set_highlights(const std::vector<PointVertex>& points) = 0;
   virtual void set_lines(const std::vector<LineVertex>& lines) = 0;   // pairs of vertices
   virtual void set_grid(const std::vector<LineVertex>& grid) = 0;     // pairs of vertices
   virtual void set_cards(const std::vector<CardSprite>& cards) = 0;
@@ -80,6 +82,7 @@ class Renderer {
 class MockRenderer : public Renderer {
  public:
   void set_points(const std::vector<PointVertex>& p) override { points = p; ++point_uploads; }
+  void set_highlights(const std::vector<PointVertex>& p) override { highlights = p; }
   void set_lines(const std::vector<LineVertex>& l) override { lines = l; }
   void set_grid(const std::vector<LineVertex>& g) override { grid = g; }
   void set_cards(const std::vector<CardSprite>& c) override { cards = c; }
@@ -92,7 +95,7 @@ class MockRenderer : public Renderer {
     p.rgba.assign(size_t(w) * h * 4, 0);
     return p;
   }
-  std::vector<PointVertex> points;
+  std::vector<PointVertex> points, highlights;
   std::vector<LineVertex> lines, grid;
   std::vector<CardSprite> cards;
   std::vector<int> slots_set;

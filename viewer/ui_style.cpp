@@ -78,9 +78,10 @@ void load_ui_font(float pixels) {
   io.Fonts->AddFontDefault();
 }
 
-LegendClick draw_legend(const MapView& view, const std::string& title, const std::string& subtitle, bool interactive) {
+LegendClick draw_legend(const MapView& view, const std::string& title, const std::string& subtitle, bool interactive,
+                        float x, float y) {
   LegendClick click;
-  ImGui::SetNextWindowPos(ImVec2(12, 12), ImGuiCond_Always);
+  ImGui::SetNextWindowPos(ImVec2(x, y), ImGuiCond_Always);
   ImGui::SetNextWindowBgAlpha(0.88f);
   ImGuiWindowFlags flags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_AlwaysAutoResize |
                            ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoFocusOnAppearing |

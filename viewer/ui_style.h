@@ -18,6 +18,7 @@ struct LegendClick {
   int column = -1;
   std::string value;
 };
-LegendClick draw_legend(const MapView& view, const std::string& title, const std::string& subtitle, bool interactive);
+LegendClick draw_legend(const MapView& view, const std::string& title, const std::string& subtitle, bool interactive,
+                        float x = 12.f, float y = 12.f);
 
 }  // namespace kith
