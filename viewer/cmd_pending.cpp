@@ -19,9 +19,6 @@ KITH_PENDING(fit)
 KITH_PENDING(open)
 KITH_PENDING(render)
 KITH_PENDING(demo)
-KITH_PENDING(new)
-KITH_PENDING(judge)
-KITH_PENDING(export)
 KITH_PENDING(report)
 
 }  // namespace kith
