@@ -67,6 +67,11 @@ void StructurePanel::poll() {
   }
 }
 
+void StructurePanel::finish_look() {
+  if (job_.valid()) job_.wait();
+  poll();
+}
+
 void StructurePanel::choose_suspect(int item) {
   chosen_suspect_ = item;
   view_.selection().set({item});

@@ -30,6 +30,7 @@ class StructurePanel {
   // Starts a new look at the map shown now (no-op while one runs).
   void look();
   bool busy() const { return job_.valid(); }
+  void finish_look();  // waits for a running look and takes its result (tests, scripts)
   const MapFindings* findings() const { return found_.get(); }
   void choose_suspect(int item);  // fly to it and select it with its map neighbours
 
