@@ -491,7 +491,7 @@ struct NeighbourTerm::Impl {
 
   template <int D, Kernel K>
   double repel_tree(const Points& y, Tree<D>& t) {
-    constexpr size_t kLeafSize = 8, kGroupSize = 32, kGroupsPerChunk = 4;
+    constexpr size_t kLeafSize = 8, kGroupSize = 64, kGroupsPerChunk = 4;
     build_tree<D>(y, kLeafSize, kGroupSize, t);
     const Eigen::Index n = y.rows();
     repulsion.setZero(n, D);
