@@ -33,6 +33,10 @@
 #include "viewer/offscreen_render.h"
 #include "viewer/picking.h"
 #include "viewer/ui_style.h"
+#if __has_include("solver/teach.h")
+#include "solver/teach.h"
+#define KITH_HAVE_TEACH 1
+#endif
 
 namespace kith {
 
@@ -889,7 +893,14 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
     app.view->set_judgments(std::move(judgments));
     app.interaction = std::make_unique<MapInteraction>(*app.view, feed);
     app.interaction->teach = app.hooks.teach;
-    app.interaction->on_post = app.hooks.on_post;
+    app.interaction->on_post = [&app](const CommandBody& body, uint64_t seq) {
+      if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
+        std::vector<Judgment> all = app.view->judgments();
+        all.push_back(a->judgment);
+        app.view->set_judgments(std::move(all));
+      }
+      if (app.hooks.on_post) app.hooks.on_post(body, seq);
+    };
     app.show_panels = options.panels;
     app.blend = float(options.blend);
     app.perplexity = float(options.perplexity);
@@ -906,9 +917,10 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
     while (!glfwWindowShouldClose(app.window) && !app.quit) {
       glfwPollEvents();
       const auto now = Clock::now();
-      const float dt = std::min(std::chrono::duration<float>(now - last).count(), 0.1f);
+      const float raw_dt = std::chrono::duration<float>(now - last).count();
+      const float dt = std::min(raw_dt, 0.1f);  // a stall must not fling the camera
       last = now;
-      app.frame_seconds.push_back(dt);
+      app.frame_seconds.push_back(raw_dt);
       if (app.frame % 15 == 0 && app.frame_seconds.size() > 1) {
         const size_t n = std::min<size_t>(60, app.frame_seconds.size() - 1);
         double sum = 0;
@@ -1008,6 +1020,15 @@ int run_window(const Collection& collection, const EngineOptions& engine, const 
                std::vector<Judgment> judgments, WindowHooks hooks) {
   std::unique_ptr<MapFeed> feed = make_engine_feed(collection, engine, judgments);
   if (!feed) feed = std::make_unique<StillFeed>(collection.ids, rough_positions(collection));
+#ifdef KITH_HAVE_TEACH
+  if (!hooks.teach) {
+    hooks.teach = [](const Snapshot& s, int item, const glm::vec3& from, const glm::vec3& to) {
+      const double f[3] = {from.x, from.y, from.z}, t[3] = {to.x, to.y, to.z};
+      const double now = double(std::time(nullptr));
+      return teach_from_drag(s.positions, int32_t(item), f, t, "", now);
+    };
+  }
+#endif
   WindowOptions o = options;
   o.blend = engine.blend;
   o.perplexity = engine.perplexity;
