@@ -396,3 +396,30 @@ TEST_CASE("viewer input script: parses events and reports the line of a mistake"
 
 }  // namespace
 }  // namespace kith
+
+namespace kith {
+namespace {
+TEST_CASE("viewer camera: fit_points frames every point, and tightly (some point near the edge)") {
+  std::mt19937_64 rng(21);
+  std::normal_distribution<float> g(0.f, 3.f);
+  std::vector<glm::vec3> pts(800);
+  for (auto& p : pts) p = glm::vec3(g(rng) * 2.f, g(rng), g(rng) + 5.f);
+  for (float yaw : {0.f, 0.9f, 2.2f}) {
+    Camera cam;
+    cam.set_viewport(1200, 700);
+    CameraPose p;
+    p.yaw = yaw;
+    cam.set_pose(p);
+    cam.fit_points(pts, false, 0.05f);
+    float edge = 0.f;  // the largest |offset from the centre| as a fraction of the half-size
+    for (const auto& q : pts) {
+      const Projected s = cam.project(q);
+      REQUIRE(s.visible);
+      edge = std::max({edge, std::abs(s.screen.x - 600.f) / 600.f, std::abs(s.screen.y - 350.f) / 350.f});
+    }
+    CHECK(edge <= 1.f);
+    CHECK(edge >= 0.85f);  // tight: the farthest point is near the 5 % margin
+  }
+}
+}  // namespace
+}  // namespace kith

@@ -113,7 +113,10 @@ void MapView::update_bounds() {
 
 // ============================================================================ [camera]
 
-void MapView::fit_all(bool smooth) { camera_.fit(lo_, hi_, smooth); }
+void MapView::fit_all(bool smooth) {
+  if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
+  camera_.fit_points(positions_, smooth);
+}
 
 void MapView::focus_selection() {
   if (selection_.empty()) return fit_all(true);
@@ -125,7 +128,12 @@ void MapView::focus_selection() {
     }
   // A lone item: frame a neighbourhood a tenth of the map across.
   const glm::vec3 pad(std::max(glm::length(hi_ - lo_) * 0.05f, 1e-3f));
-  camera_.fit(lo - pad, hi + pad, true);
+  std::vector<glm::vec3> pts;
+  for (int i : selection_.items())
+    if (size_t(i) < positions_.size()) pts.push_back(positions_[i]);
+  pts.push_back(lo - pad);
+  pts.push_back(hi + pad);
+  camera_.fit_points(pts, true);
 }
 
 // ============================================================================ [pointing]
