@@ -3,7 +3,10 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <map>
 #include <random>
+#include <set>
+#include <tuple>
 
 #include "viewer/camera.h"
 #include "viewer/input_script.h"
@@ -420,6 +423,39 @@ TEST_CASE("viewer camera: fit_points frames every point, and tightly (some point
     CHECK(edge <= 1.f);
     CHECK(edge >= 0.85f);  // tight: the farthest point is near the 5 % margin
   }
+}
+}  // namespace
+}  // namespace kith
+
+namespace kith {
+namespace {
+TEST_CASE("viewer scene: level of detail draws a sample while the view moves, everything at rest") {
+  const Collection c = synthetic_collection(5000, 5);
+  MockRenderer renderer;
+  StillFeed feed(c.ids, rough_positions(c));
+  MapView view(c, renderer);
+  ViewOptions o;
+  o.moving_budget = 1000;
+  view.set_options(o);
+  view.set_snapshot(feed.latest());
+  view.frame(1.f / 60, 800, 600);
+  view.camera().orbit(40, 0);
+  view.frame(1.f / 60, 800, 600);
+  CHECK(view.reduced_detail());
+  CHECK(renderer.last_frame.point_budget == 1000);
+  REQUIRE(renderer.points.size() == 5000);
+  // The sample drawn (the buffer's first 1000) spreads over every group in about the right shares.
+  std::map<uint32_t, int> per_colour;
+  for (size_t k = 0; k < 1000; ++k) ++per_colour[renderer.points[k].rgba];
+  CHECK(per_colour.size() == 5);
+  for (const auto& [colour, count] : per_colour) CHECK(std::abs(count - 200) < 60);  // binomial sd ~13
+  for (int k = 0; k < 30; ++k) view.frame(1.f / 60, 800, 600);  // half a second at rest
+  CHECK_FALSE(view.reduced_detail());
+  CHECK(renderer.last_frame.point_budget == 0);
+  // Every item is in the buffer exactly once.
+  std::set<std::tuple<float, float, float>> seen;
+  for (const auto& v : renderer.points) seen.insert({v.position.x, v.position.y, v.position.z});
+  CHECK(seen.size() == 5000);
 }
 }  // namespace
 }  // namespace kith

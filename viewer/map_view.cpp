@@ -6,6 +6,7 @@
 #include <cmath>
 #include <map>
 #include <numeric>
+#include <random>
 
 #include "viewer/picking.h"
 
@@ -242,7 +243,14 @@ float MapView::auto_point_size() const {
 void MapView::rebuild_points() {
   std::vector<PointVertex> v(positions_.size()), highlights;
   const float size = options_.point_size > 0 ? options_.point_size : auto_point_size();
-  for (size_t i = 0; i < positions_.size(); ++i) {
+  if (draw_order_.size() != positions_.size()) {
+    draw_order_.resize(positions_.size());
+    std::iota(draw_order_.begin(), draw_order_.end(), 0);
+    std::mt19937 rng(12345);
+    std::shuffle(draw_order_.begin(), draw_order_.end(), rng);
+  }
+  for (size_t k = 0; k < positions_.size(); ++k) {
+    const size_t i = size_t(draw_order_[k]);
     const Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
     uint32_t flags = 0;
     if (selection_.contains(int(i))) flags |= kPointSelected;
@@ -250,8 +258,8 @@ void MapView::rebuild_points() {
     if (int(i) == hovered_) flags |= kPointHovered;
     if (int(i) == drag_item_) flags |= kPointDragged | kPointHovered;
     const float s = (flags & kPointPinned) ? std::max(size, 7.f) : size;
-    v[i] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
-    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[i]);
+    v[k] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
+    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[k]);
   }
   renderer_.set_points(v);
   renderer_.set_highlights(highlights);
@@ -434,6 +442,7 @@ FrameParams MapView::frame_params() const {
   f.grid = options_.grid;
   f.lines = options_.lines;
   f.cards = options_.cards;
+  f.point_budget = reduced_ ? options_.moving_budget : 0;
   return f;
 }
 
@@ -441,6 +450,12 @@ void MapView::frame(float dt, int width, int height) {
   camera_.set_viewport(width, height);
   if (auto_rotate && drag_item_ < 0) camera_.spin(rotate_speed * dt);
   camera_.update(dt);
+  const CameraPose& p = camera_.pose();
+  const bool moved = p.yaw != last_pose_.yaw || p.pitch != last_pose_.pitch || p.distance != last_pose_.distance ||
+                     p.target != last_pose_.target;
+  last_pose_ = p;
+  still_seconds_ = moved ? 0.f : still_seconds_ + dt;
+  reduced_ = options_.moving_budget > 0 && positions_.size() > options_.moving_budget && still_seconds_ < 0.25f;
   if (dirty_colours_) rebuild_colours();
   if (dirty_grid_) rebuild_grid();
   if (dirty_points_ || last_hovered_drawn_ != hovered_) rebuild_points();

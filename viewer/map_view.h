@@ -38,6 +38,9 @@ struct ViewOptions {
   int card_limit = 12;         // most cards drawn at once, so the frame rate holds (default: 12)
   float card_size = 96.f;      // card side in pixels (default: 96)
   bool dark = false;           // night ground instead of paper (default: off)
+  // Level of detail: while the view moves, draw only this many items (a fixed random sample, so
+  // the picture keeps its shape), then all of them once it rests. 0 = always all (default: 40000)
+  size_t moving_budget = 40000;
   ColourBy colour_by;
   std::string IsValid() const;  // "" when valid, else what is wrong
 };
@@ -106,6 +109,7 @@ class MapView {
   void frame(float dt, int width, int height);
   FrameParams frame_params() const;
   int frames_drawn() const { return frames_; }
+  bool reduced_detail() const { return reduced_; }  // the last frame drew a sample only
 
  private:
   void rebuild_colours();
@@ -144,6 +148,10 @@ class MapView {
   std::unordered_map<int, std::shared_ptr<Picture>> pictures_;  // decoded (empty Picture if unreadable)
   bool dirty_points_ = true, dirty_colours_ = true, dirty_grid_ = true, dirty_lines_ = true;
   int frames_ = 0;
+  std::vector<int> draw_order_;   // a fixed shuffle of the items: any prefix is a fair sample
+  CameraPose last_pose_;
+  float still_seconds_ = 1e9f;
+  bool reduced_ = false;
   int last_hovered_drawn_ = -2;
   float grid_floor_y_ = 0.f;
 };

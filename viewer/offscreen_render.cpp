@@ -138,7 +138,9 @@ std::string render_map_pixels(const Collection& collection, const Points& positi
     Framebuffer fb(o.width, o.height);
     GlRenderer renderer;
     MapView view(collection, renderer);
-    view.set_options(o.view);
+    ViewOptions vo = o.view;
+    vo.moving_budget = 0;  // a picture is never in motion: every item, always
+    view.set_options(vo);
     StillFeed still(collection.ids, positions);
     for (size_t i = 0; i < o.pinned.size() && i < collection.size(); ++i)
       if (o.pinned[i]) still.post(cmd::Pin{int32_t(i), {}});
