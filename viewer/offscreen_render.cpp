@@ -149,10 +149,12 @@ std::string render_map_pixels(const Collection& collection, const Points& positi
     view.set_judgments(o.judgments);
     for (int i : o.selected) view.selection().add(i);
     view.selection_changed();
-    if (o.camera)
-      view.camera().set_pose(*o.camera);
-    else
-      view.fit_all(false);
+    view.fit_all(false);
+    if (o.camera) {
+      CameraPose pose = *o.camera;
+      if (o.camera_at_centre) pose.target = view.camera().pose().target;
+      view.camera().set_pose(pose);
+    }
     // Cards are decoded a few per frame; draw until they are all in.
     for (int k = 0; k < 1 + int(o.selected.size()) / 2 + 8; ++k) view.frame(0.f, o.width, o.height);
     if (o.legend) draw_overlay(view, o);
