@@ -459,3 +459,28 @@ TEST_CASE("viewer scene: level of detail draws a sample while the view moves, ev
 }
 }  // namespace
 }  // namespace kith
+
+namespace kith {
+namespace {
+TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow and grows back") {
+  const Collection c = synthetic_collection(60000, 3);
+  MockRenderer renderer;
+  StillFeed feed(c.ids, rough_positions(c));
+  MapView view(c, renderer);
+  view.set_snapshot(feed.latest());
+  auto moving_frame = [&](float seconds) {
+    view.camera().orbit(5, 0);
+    view.frame(1.f / 60, 800, 600);
+    view.note_frame_time(seconds);
+  };
+  moving_frame(0.02f);
+  REQUIRE(view.reduced_detail());
+  CHECK(view.detail_budget() == 40000);
+  for (int k = 0; k < 40; ++k) moving_frame(0.2f);  // 5 fps: far too slow
+  CHECK(view.detail_budget() == 5000);                // down to the floor
+  for (int k = 0; k < 80; ++k) moving_frame(0.01f);  // 100 fps: room to spare
+  CHECK(view.detail_budget() == 40000);               // back up to the cap, never beyond
+  CHECK(renderer.last_frame.point_budget == 40000);
+}
+}  // namespace
+}  // namespace kith

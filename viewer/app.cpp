@@ -921,6 +921,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       const float dt = std::min(raw_dt, 0.1f);  // a stall must not fling the camera
       last = now;
       app.frame_seconds.push_back(raw_dt);
+      if (app.frame > 0) app.view->note_frame_time(raw_dt);
       if (app.frame % 15 == 0 && app.frame_seconds.size() > 1) {
         const size_t n = std::min<size_t>(60, app.frame_seconds.size() - 1);
         double sum = 0;
@@ -932,6 +933,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       if (auto s = feed.latest(); s && s->generation != app.last_generation) {
         app.last_generation = s->generation;
         app.view->set_snapshot(s);
+        if (app.hooks.on_snapshot) app.hooks.on_snapshot(s);
         if (now - app.last_health > std::chrono::milliseconds(250)) {
           app.last_health = now;
           app.kl.add(float(s->health.kl));
@@ -1016,19 +1018,22 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
   return exit_code;
 }
 
+WindowHooks default_window_hooks() {
+  WindowHooks h;
+#ifdef KITH_HAVE_TEACH
+  h.teach = [](const Snapshot& s, int item, const glm::vec3& from, const glm::vec3& to) {
+    const double f[3] = {from.x, from.y, from.z}, t[3] = {to.x, to.y, to.z};
+    return teach_from_drag(s.positions, int32_t(item), f, t, "", double(std::time(nullptr)));
+  };
+#endif
+  return h;
+}
+
 int run_window(const Collection& collection, const EngineOptions& engine, const WindowOptions& options,
                std::vector<Judgment> judgments, WindowHooks hooks) {
   std::unique_ptr<MapFeed> feed = make_engine_feed(collection, engine, judgments);
   if (!feed) feed = std::make_unique<StillFeed>(collection.ids, rough_positions(collection));
-#ifdef KITH_HAVE_TEACH
-  if (!hooks.teach) {
-    hooks.teach = [](const Snapshot& s, int item, const glm::vec3& from, const glm::vec3& to) {
-      const double f[3] = {from.x, from.y, from.z}, t[3] = {to.x, to.y, to.z};
-      const double now = double(std::time(nullptr));
-      return teach_from_drag(s.positions, int32_t(item), f, t, "", now);
-    };
-  }
-#endif
+  if (!hooks.teach) hooks.teach = default_window_hooks().teach;
   WindowOptions o = options;
   o.blend = engine.blend;
   o.perplexity = engine.perplexity;

@@ -76,6 +76,18 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
   if (first) fit_all(false);
   dirty_points_ = dirty_lines_ = true;
   if (options_.colour_by.kind == ColourKind::kDisplacement) dirty_colours_ = true;
+  map_still_seconds_ = 0.f;
+}
+
+void MapView::note_frame_time(float seconds) {
+  if (options_.moving_budget == 0 || !(seconds > 0.f)) return;
+  smoothed_frame_ = smoothed_frame_ == 0.f ? seconds : 0.8f * smoothed_frame_ + 0.2f * seconds;
+  if (!reduced_ && positions_.size() <= budget_) return;
+  // Scale the sample toward the frame-time target: the drawing cost is roughly linear in it.
+  const float ratio = std::clamp(options_.target_frame_seconds / smoothed_frame_, 0.7f, 1.15f);
+  const size_t floor = std::min<size_t>(5000, options_.moving_budget);
+  budget_ = std::clamp(size_t(float(budget_ == 0 ? options_.moving_budget : budget_) * ratio), floor,
+                       options_.moving_budget);
 }
 
 bool MapView::pinned(int item) const { return item >= 0 && size_t(item) < pinned_.size() && pinned_[item]; }
@@ -442,7 +454,7 @@ FrameParams MapView::frame_params() const {
   f.grid = options_.grid;
   f.lines = options_.lines;
   f.cards = options_.cards;
-  f.point_budget = reduced_ ? options_.moving_budget : 0;
+  f.point_budget = reduced_ ? budget_ : 0;
   return f;
 }
 
@@ -455,7 +467,10 @@ void MapView::frame(float dt, int width, int height) {
                      p.target != last_pose_.target;
   last_pose_ = p;
   still_seconds_ = moved ? 0.f : still_seconds_ + dt;
-  reduced_ = options_.moving_budget > 0 && positions_.size() > options_.moving_budget && still_seconds_ < 0.25f;
+  map_still_seconds_ += dt;
+  if (budget_ == 0 || budget_ > options_.moving_budget) budget_ = options_.moving_budget;
+  const bool at_rest = still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f;
+  reduced_ = options_.moving_budget > 0 && positions_.size() > budget_ && !at_rest;
   if (dirty_colours_) rebuild_colours();
   if (dirty_grid_) rebuild_grid();
   if (dirty_points_ || last_hovered_drawn_ != hovered_) rebuild_points();
