@@ -31,6 +31,7 @@
 #include "viewer/gl_renderer.h"
 #include "viewer/input_script.h"
 #include "viewer/offscreen_render.h"
+#include "viewer/panel_structure.h"
 #include "viewer/picking.h"
 #include "viewer/ui_style.h"
 #if __has_include("solver/teach.h")
@@ -105,6 +106,8 @@ struct App {
   std::unique_ptr<GlRenderer> renderer;
   std::unique_ptr<MapView> view;
   std::unique_ptr<MapInteraction> interaction;
+  std::unique_ptr<StructurePanel> structure;  // suspects, groups, neighbours (key S)
+  bool show_structure = false;
   std::unordered_map<std::string, int> index_of_id;
 
   // Input.
@@ -366,6 +369,7 @@ void App::handle_key(int key, int mods) {
       apply_ui_style(view->options().dark);
       break;
     case GLFW_KEY_TAB: show_panels = !show_panels; break;
+    case GLFW_KEY_S: show_structure = !show_structure, show_panels = true; break;
     case GLFW_KEY_H:
     case GLFW_KEY_F1: show_help = !show_help; break;
     case GLFW_KEY_SLASH:
@@ -439,6 +443,7 @@ const char* kKeys[][2] = {
     {"[ / ]", "smaller / larger discs"},
     {"N", "night or paper ground"},
     {"Tab", "hide or show the panels"},
+    {"S", "structure: suspects, groups, neighbour comparison"},
     {"F12", "save the view as PNG"},
     {"H, F1, ?", "this help"},
 };
@@ -472,6 +477,7 @@ void App::panels() {
         apply_ui_style(o.dark);
       }
       if (ImGui::MenuItem("Next colouring", "C")) cycle_colour();
+      ImGui::MenuItem("Structure", "S", &show_structure);
       if (ImGui::MenuItem("Panels", "Tab", &show_panels)) {
       }
       ImGui::EndMenu();
@@ -509,6 +515,7 @@ void App::panels() {
   ImGui::SetNextWindowPos(ImVec2(10, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.f, 1.f));
   ImGui::SetNextWindowSizeConstraints(ImVec2(420, 0), ImVec2(420, io.DisplaySize.y * 0.5f));
   panel_selection();
+  if (show_structure) structure->draw(&show_structure);
 }
 
 void App::panel_map() {
@@ -892,6 +899,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
     app.view->auto_rotate = options.auto_rotate;
     app.view->set_judgments(std::move(judgments));
     app.interaction = std::make_unique<MapInteraction>(*app.view, feed);
+    app.structure = std::make_unique<StructurePanel>(collection, *app.view);
     app.interaction->teach = app.hooks.teach;
     app.interaction->on_post = [&app](const CommandBody& body, uint64_t seq) {
       if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
@@ -1007,6 +1015,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
   }
 
   // ---- tear-down, in reverse ------------------------------------------------------
+  app.structure.reset();
   app.interaction.reset();
   app.view.reset();
   app.renderer.reset();

@@ -185,8 +185,29 @@ std::string MapView::colour_title() const {
     case ColourKind::kDisplacement: return "moved since opening";
     case ColourKind::kJudgments: return "judgments per item";
     case ColourKind::kPlain: return "items";
+    case ColourKind::kMeasure:
+    case ColourKind::kGroup: return external_title_;
   }
   return "";
+}
+
+void MapView::set_measure(const std::string& title, std::vector<float> values) {
+  external_title_ = title;
+  external_measure_ = std::move(values);
+  ViewOptions o = options_;
+  o.colour_by.kind = ColourKind::kMeasure;
+  set_options(o);
+  dirty_colours_ = true;
+}
+
+void MapView::set_groups(const std::string& title, std::vector<int> groups, std::vector<std::string> names) {
+  external_title_ = title;
+  external_groups_ = std::move(groups);
+  external_group_names_ = std::move(names);
+  ViewOptions o = options_;
+  o.colour_by.kind = ColourKind::kGroup;
+  set_options(o);
+  dirty_colours_ = true;
 }
 
 Rgb MapView::colour_of(int item) const {
@@ -237,6 +258,29 @@ void MapView::rebuild_colours() {
       std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
       legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
     }
+  } else if (by.kind == ColourKind::kMeasure && external_measure_.size() == n) {
+    float top = 1e-6f;
+    for (float v : external_measure_)
+      if (std::isfinite(v)) top = std::max(top, v);
+    for (size_t i = 0; i < n; ++i)
+      colours_[i] = std::isfinite(external_measure_[i]) ? palette_.ramp(external_measure_[i] / top) : palette_.muted;
+    char buf[64];
+    for (float t : {0.f, 0.5f, 1.f}) {
+      std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
+      legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
+    }
+  } else if (by.kind == ColourKind::kGroup && external_groups_.size() == n) {
+    std::vector<size_t> count(external_group_names_.size(), 0);
+    size_t none = 0;
+    for (size_t i = 0; i < n; ++i) {
+      const int g = external_groups_[i];
+      colours_[i] = palette_.category(g);  // -1: muted
+      if (g >= 0 && size_t(g) < count.size()) ++count[size_t(g)];
+      else ++none;
+    }
+    for (size_t g = 0; g < count.size(); ++g)
+      legend_.push_back({external_group_names_[g], palette_.category(int(g)), count[g], -1, ""});
+    if (none) legend_.push_back({"no group", palette_.muted, none, -1, ""});
   } else {
     legend_.push_back({"item", palette_.category(0), n, -1, ""});
   }

@@ -21,7 +21,9 @@
 
 namespace kith {
 
-enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain };
+// kMeasure and kGroup colour by values given from outside (set_measure / set_groups), e.g. the
+// structure panel's suspect scores, displacement from the reference map and groups.
+enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain, kMeasure, kGroup };
 
 struct ColourBy {
   ColourKind kind = ColourKind::kTag;  // (default: the first tag column, if any)
@@ -99,6 +101,10 @@ class MapView {
   const std::vector<LegendEntry>& legend() const { return legend_; }
   Rgb colour_of(int item) const;
   std::string colour_title() const;
+  // Colour by a measure (ramp from 0 to its largest value; NaN = muted) or by groups (-1 = muted,
+  // names[g] in the legend) and switch the colouring to it. N values each.
+  void set_measure(const std::string& title, std::vector<float> values);
+  void set_groups(const std::string& title, std::vector<int> groups, std::vector<std::string> names);
 
   // ---- nearest lists for the selection panel -----------------------------------
   std::vector<int> nearest_in_features(int item, int k) const;
@@ -140,6 +146,10 @@ class MapView {
   bool have_bounds_ = false;
   glm::vec3 grid_lo_{0.f}, grid_hi_{0.f};
   std::vector<Rgb> colours_;
+  std::string external_title_;
+  std::vector<float> external_measure_;
+  std::vector<int> external_groups_;
+  std::vector<std::string> external_group_names_;
   std::vector<LegendEntry> legend_;
   Selection selection_;
   int hovered_ = -1;
