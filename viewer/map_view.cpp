@@ -6,6 +6,7 @@
 #include <cmath>
 #include <map>
 #include <numeric>
+#include <random>
 
 #include "viewer/picking.h"
 
@@ -75,6 +76,18 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
   if (first) fit_all(false);
   dirty_points_ = dirty_lines_ = true;
   if (options_.colour_by.kind == ColourKind::kDisplacement) dirty_colours_ = true;
+  map_still_seconds_ = 0.f;
+}
+
+void MapView::note_frame_time(float seconds) {
+  if (options_.moving_budget == 0 || !(seconds > 0.f)) return;
+  smoothed_frame_ = smoothed_frame_ == 0.f ? seconds : 0.8f * smoothed_frame_ + 0.2f * seconds;
+  if (!reduced_ && positions_.size() <= budget_) return;
+  // Scale the sample toward the frame-time target: the drawing cost is roughly linear in it.
+  const float ratio = std::clamp(options_.target_frame_seconds / smoothed_frame_, 0.7f, 1.15f);
+  const size_t floor = std::min<size_t>(5000, options_.moving_budget);
+  budget_ = std::clamp(size_t(float(budget_ == 0 ? options_.moving_budget : budget_) * ratio), floor,
+                       options_.moving_budget);
 }
 
 bool MapView::pinned(int item) const { return item >= 0 && size_t(item) < pinned_.size() && pinned_[item]; }
@@ -113,7 +126,10 @@ void MapView::update_bounds() {
 
 // ============================================================================ [camera]
 
-void MapView::fit_all(bool smooth) { camera_.fit(lo_, hi_, smooth); }
+void MapView::fit_all(bool smooth) {
+  if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
+  camera_.fit_points(positions_, smooth);
+}
 
 void MapView::focus_selection() {
   if (selection_.empty()) return fit_all(true);
@@ -125,7 +141,12 @@ void MapView::focus_selection() {
     }
   // A lone item: frame a neighbourhood a tenth of the map across.
   const glm::vec3 pad(std::max(glm::length(hi_ - lo_) * 0.05f, 1e-3f));
-  camera_.fit(lo - pad, hi + pad, true);
+  std::vector<glm::vec3> pts;
+  for (int i : selection_.items())
+    if (size_t(i) < positions_.size()) pts.push_back(positions_[i]);
+  pts.push_back(lo - pad);
+  pts.push_back(hi + pad);
+  camera_.fit_points(pts, true);
 }
 
 // ============================================================================ [pointing]
@@ -278,7 +299,14 @@ float MapView::auto_point_size() const {
 void MapView::rebuild_points() {
   std::vector<PointVertex> v(positions_.size()), highlights;
   const float size = options_.point_size > 0 ? options_.point_size : auto_point_size();
-  for (size_t i = 0; i < positions_.size(); ++i) {
+  if (draw_order_.size() != positions_.size()) {
+    draw_order_.resize(positions_.size());
+    std::iota(draw_order_.begin(), draw_order_.end(), 0);
+    std::mt19937 rng(12345);
+    std::shuffle(draw_order_.begin(), draw_order_.end(), rng);
+  }
+  for (size_t k = 0; k < positions_.size(); ++k) {
+    const size_t i = size_t(draw_order_[k]);
     const Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
     uint32_t flags = 0;
     if (selection_.contains(int(i))) flags |= kPointSelected;
@@ -286,8 +314,8 @@ void MapView::rebuild_points() {
     if (int(i) == hovered_) flags |= kPointHovered;
     if (int(i) == drag_item_) flags |= kPointDragged | kPointHovered;
     const float s = (flags & kPointPinned) ? std::max(size, 7.f) : size;
-    v[i] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
-    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[i]);
+    v[k] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
+    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[k]);
   }
   renderer_.set_points(v);
   renderer_.set_highlights(highlights);
@@ -470,6 +498,7 @@ FrameParams MapView::frame_params() const {
   f.grid = options_.grid;
   f.lines = options_.lines;
   f.cards = options_.cards;
+  f.point_budget = reduced_ ? budget_ : 0;
   return f;
 }
 
@@ -477,6 +506,15 @@ void MapView::frame(float dt, int width, int height) {
   camera_.set_viewport(width, height);
   if (auto_rotate && drag_item_ < 0) camera_.spin(rotate_speed * dt);
   camera_.update(dt);
+  const CameraPose& p = camera_.pose();
+  const bool moved = p.yaw != last_pose_.yaw || p.pitch != last_pose_.pitch || p.distance != last_pose_.distance ||
+                     p.target != last_pose_.target;
+  last_pose_ = p;
+  still_seconds_ = moved ? 0.f : still_seconds_ + dt;
+  map_still_seconds_ += dt;
+  if (budget_ == 0 || budget_ > options_.moving_budget) budget_ = options_.moving_budget;
+  const bool at_rest = still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f;
+  reduced_ = options_.moving_budget > 0 && positions_.size() > budget_ && !at_rest;
   if (dirty_colours_) rebuild_colours();
   if (dirty_grid_) rebuild_grid();
   if (dirty_points_ || last_hovered_drawn_ != hovered_) rebuild_points();
