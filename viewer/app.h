@@ -46,7 +46,11 @@ struct WindowHooks {
   std::function<bool(std::vector<int>* items)> take_selection;     // once per frame: true = select *items
   std::string panel_title;                                         // an extra panel, shown when
   std::function<std::vector<std::string>()> panel_lines;           // panel_lines is set: its text lines
+  std::function<void(const std::shared_ptr<const Snapshot>&)> on_snapshot;  // each new snapshot shown
 };
+
+// The hooks every window gets unless told otherwise: teach through solver/teach.h when built in.
+WindowHooks default_window_hooks();
 
 // Runs the window until closed (or options.frames). Returns a kith exit code; prints problems.
 int run_window(const Collection& collection, MapFeed& feed, const WindowOptions& options,
