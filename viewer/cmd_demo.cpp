@@ -218,14 +218,14 @@ struct LiveDemo {
   }
 };
 
-int run_live(const DemoData& d, const EngineOptions& eo, bool* opened) {
+int run_live(const DemoData& d, const EngineOptions& eo, const WindowOptions& hidden, bool* opened) {
   std::unique_ptr<MapFeed> feed = make_engine_feed(d.collection, eo);
   if (!feed) {
     std::fprintf(stderr, "kith demo: this build has no live engine; showing the headless run instead\n");
     return kExitInternal;
   }
   LiveDemo live(d, *feed);
-  WindowOptions wo;
+  WindowOptions wo = hidden;  // frames, script, screenshot: test hooks
   wo.title = "Studio sample library";
   for (size_t t = 0; t < d.collection.tags.size(); ++t)  // colour by collection line
     if (d.collection.tags[t].name == "line") wo.view.colour_by = ColourBy{ColourKind::kTag, int(t)};
@@ -282,6 +282,10 @@ int cmd_demo(const Args& args) {
     return kExitUsage;
   }
   const bool no_window = flags.flag("--no-window");
+  WindowOptions hidden;  // undocumented test hooks, as for kith open
+  if (auto v = flags.value("--frames"); v && parse_number(*v, &number) && number >= 0) hidden.frames = int(number);
+  if (auto v = flags.value("--script")) hidden.script = *v;
+  if (auto v = flags.value("--screenshot")) hidden.screenshot = *v;
   std::vector<std::string> rest;
   if (!flags.finish(&rest) || !rest.empty()) {
     if (!flags.error().empty()) std::fprintf(stderr, "kith %s\n", flags.error().c_str());
@@ -297,7 +301,7 @@ int cmd_demo(const Args& args) {
     EngineOptions eo;
     eo.blend = trial.blend;
     bool opened = false;
-    const int rc = run_live(d, eo, &opened);
+    const int rc = run_live(d, eo, hidden, &opened);
     if (opened || rc == kExitOk) return rc;
     std::fprintf(stderr, "kith demo: no window could be opened; running headless instead\n");
   }
