@@ -42,12 +42,31 @@ MapView::MapView(const Collection& collection, Renderer& renderer) : collection_
   slot_item_.assign(Renderer::kAtlasSlots, -1);
   slot_used_.assign(Renderer::kAtlasSlots, -1);
   if (collection.tags.empty()) options_.colour_by.kind = ColourKind::kPlain;
+  else options_.colour_by.tag_column = default_colour_column(collection);
+}
+
+int default_colour_column(const Collection& collection) {
+  int best = -1, best_distinct = 0;
+  int fallback = -1;
+  double fallback_repeat = -1.0;
+  for (size_t t = 0; t < collection.tags.size(); ++t) {
+    std::unordered_map<std::string, int> distinct;
+    for (const auto& v : collection.tags[t].values)
+      if (!v.empty()) ++distinct[v];
+    const int d = int(distinct.size());
+    if (d >= 2 && d <= 12 && (best < 0 || d < best_distinct)) best = int(t), best_distinct = d;
+    const double repeat = d > 0 ? double(collection.size()) / d : 0.0;
+    if (repeat > fallback_repeat) fallback = int(t), fallback_repeat = repeat;
+  }
+  return best >= 0 ? best : fallback;
 }
 
 void MapView::set_options(const ViewOptions& o) {
   const bool colours = o.colour_by.kind != options_.colour_by.kind ||
                        o.colour_by.tag_column != options_.colour_by.tag_column || o.dark != options_.dark;
   options_ = o;
+  if (options_.colour_by.kind == ColourKind::kTag && options_.colour_by.tag_column == -1)
+    options_.colour_by.tag_column = default_colour_column(collection_);
   if (options_.colour_by.kind == ColourKind::kTag &&
       (options_.colour_by.tag_column < 0 || size_t(options_.colour_by.tag_column) >= collection_.tags.size()))
     options_.colour_by.kind = ColourKind::kPlain;

@@ -26,9 +26,14 @@ namespace kith {
 enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain, kMeasure, kGroup };
 
 struct ColourBy {
-  ColourKind kind = ColourKind::kTag;  // (default: the first tag column, if any)
-  int tag_column = 0;
+  ColourKind kind = ColourKind::kTag;  // (default: a tag column, if any)
+  int tag_column = -1;                 // -1: the column default_colour_column() picks (default: -1)
 };
+
+// The tag column that colours best by default: the one with the fewest distinct values among those
+// with 2 to 12 (a palette's worth); else the one whose values repeat most; -1 with no tag column.
+// A column of unique names colours nothing useful, so it is never the default when another exists.
+int default_colour_column(const Collection& collection);
 
 struct ViewOptions {
   float point_size = 0.f;      // disc diameter in pixels at the target distance; 0 = by item count (default: 0)
