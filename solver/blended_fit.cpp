@@ -1,0 +1,61 @@
+#include "solver/blended_fit.h"
+
+#include <random>
+#include <sstream>
+#include <stdexcept>
+
+#include "solver/optimizer.h"
+
+namespace kith {
+
+bool BlendedFitOptions::IsValid(std::string* error) const {
+  if (iterations < 0) {
+    if (error) *error = "iterations must be 0 or more, got " + std::to_string(iterations);
+    return false;
+  }
+  return true;
+}
+
+std::string BlendedFitSummary::report() const {
+  std::ostringstream m;
+  m.precision(4);
+  m << iterations << " iterations, cost " << cost << " (KL " << costs.neighbour << ", mean -log p " << costs.judgment
+    << ")" << (finite ? "" : ", stopped: the map went NaN or infinite");
+  return m.str();
+}
+
+Points random_start(size_t n, int dims, uint64_t seed, double scale) {
+  std::mt19937_64 rng(seed);
+  std::normal_distribution<double> g(0.0, scale);
+  Points y(Eigen::Index(n), dims);
+  for (Eigen::Index i = 0; i < y.size(); ++i) y.data()[i] = g(rng);
+  return y;
+}
+
+BlendedFitSummary fit_blended(BlendedObjective& objective, Points& y, const BlendedFitOptions& options) {
+  std::string error;
+  if (!options.IsValid(&error)) throw std::invalid_argument(error);
+  NeighbourTerm* neighbour = objective.neighbour_term();
+  Schedule schedule = options.schedule;
+  if (!neighbour) schedule.exaggeration_iterations = 0;  // nothing to exaggerate
+  GradientDescent descent;
+  BlendedFitSummary summary;
+  const size_t n = size_t(y.rows());
+  for (int it = 0; it < options.iterations; ++it) {
+    if (neighbour) neighbour->set_exaggeration(schedule.exaggeration_at(it));
+    if (schedule.switches_at(it) && schedule.reset_state_at_switch) descent.reset();
+    const StepResult r = descent.step(objective, y, schedule.step_at(it, n));
+    summary.iterations = it + 1;
+    summary.cost = r.cost;
+    if (!r.finite) {
+      summary.finite = false;
+      break;
+    }
+  }
+  if (neighbour) neighbour->set_exaggeration(1.0);
+  if (summary.finite) summary.cost = objective.evaluate(y, nullptr);
+  summary.costs = objective.last_costs();
+  return summary;
+}
+
+}  // namespace kith
