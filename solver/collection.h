@@ -41,6 +41,7 @@ struct TagColumn {
 
 struct Collection {
   std::string source;                      // the file it was loaded from
+  std::string id_column;                   // column the ids came from, "" if numbered (1.. for CSV, 0.. for .npy)
   std::vector<std::string> ids;            // unique, one per item
   std::vector<std::string> feature_names;  // one per feature column
   Points features;                         // N x F; F == 0 for a judgments-only collection
@@ -50,11 +51,14 @@ struct Collection {
   std::vector<Problem> warnings;
 
   size_t size() const { return ids.size(); }
-  // Index of an item by id; nullopt if unknown. Builds its lookup table on first use.
+  // Index of an item by id; nullopt if unknown. Uses the lookup table made by the loaders (or by
+  // build_index() after changing ids by hand); without a matching table it searches linearly.
+  // Never modifies the collection, so any number of threads may call it.
   std::optional<size_t> index_of(const std::string& id) const;
+  void build_index();
 
  private:
-  mutable std::unordered_map<std::string, size_t> index_;
+  std::unordered_map<std::string, size_t> index_;
 };
 
 struct LoadOptions {
@@ -64,9 +68,25 @@ struct LoadOptions {
   std::string tags_csv;                   // for .npy: CSV of ids and tags, same row count (default: none)
   size_t min_items = 2;                   // fewer is an error (default: 2)
   bool allow_no_features = false;         // judgments-only collections (default: false)
+
+  // False with a readable message when an option is impossible.
+  bool is_valid(std::string* error) const;
 };
 
 // Reads .csv, .tsv (by extension or by sniffing tabs) or .npy. Throws LoadError.
+//
+// Column rules for CSV/TSV: a column is numeric when most of its non-empty values are numbers;
+// any other value in a numeric column is then an error. The id column is options.id_column, else a
+// column named "id" (any case), else the first text column whose values are all present and
+// unique (not the picture column), else items are numbered from 1. Numeric columns are features
+// unless excluded (excluded ones become tags); other text columns are tags. The picture column is
+// options.picture_column, else the first text column whose values all end in an image extension;
+// relative paths are resolved against the table's folder.
 Collection load_collection(const std::string& path, const LoadOptions& options = {});
+
+// The same from bytes in memory (the fuzz targets and tests use this). `name` stands for the file
+// in messages, picks the format (.npy by its magic bytes; TSV by a .tsv/.tab name or by tabs in the
+// header line) and is the folder picture paths are relative to. options.tags_csv is read from disk.
+Collection load_collection_from_memory(std::string data, const std::string& name, const LoadOptions& options = {});
 
 }  // namespace kith

@@ -15,7 +15,6 @@ int pending(const char* name) {
 
 #define KITH_PENDING(NAME) \
   __attribute__((weak)) int cmd_##NAME(const Args&) { return pending(#NAME); }
-KITH_PENDING(check)
 KITH_PENDING(fit)
 KITH_PENDING(open)
 KITH_PENDING(render)
@@ -24,6 +23,5 @@ KITH_PENDING(new)
 KITH_PENDING(judge)
 KITH_PENDING(export)
 KITH_PENDING(report)
-KITH_PENDING(describe)
 
 }  // namespace kith

@@ -1,0 +1,199 @@
+// Crash safety and locking with real processes: a child adds judgments through the store and is
+// killed with SIGKILL at random moments; every judgment it acknowledged (through a pipe, after
+// add_judgment returned) must be in the file afterwards, and the file must pass
+// PRAGMA integrity_check. A second process opening a session is refused read-write.
+#include <doctest/doctest.h>
+#include <signal.h>
+#include <sqlite3.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cstdio>
+#include <map>
+#include <random>
+
+#include "solver/session_store.h"
+#include "tests/approx.h"
+#include "tests/sessions_support.h"
+
+using kith::SessionError;
+using kith::SessionStore;
+
+namespace {
+
+struct Ack {
+  int64_t id;
+  int32_t anchor, nearer, farther;
+  int32_t round;
+};
+
+// The child: opens the session and adds judgments until it is killed, acknowledging each one
+// after the store said it was written. Every fifth judgment it also posts a map checkpoint, so
+// kills land in the writer thread's transactions too. Never returns.
+[[noreturn]] void child_adds_judgments(const std::string& path, int ack_fd, int round, int n_items) {
+  try {
+    auto store = SessionStore::open(path);
+    std::mt19937 rng(uint32_t(round) * 7919u + 1u);
+    std::uniform_int_distribution<int> item(0, n_items - 1);
+    for (uint64_t k = 0;; ++k) {
+      kith::Judgment j;
+      j.anchor = item(rng);
+      do j.nearer = item(rng); while (j.nearer == j.anchor);
+      do j.farther = item(rng); while (j.farther == j.anchor || j.farther == j.nearer);
+      j.person = "round " + std::to_string(round);
+      j.kind = kith::JudgmentKind::kPair;
+      const Ack ack{store->add_judgment(j), j.anchor, j.nearer, j.farther, round};
+      if (::write(ack_fd, &ack, sizeof ack) != ssize_t(sizeof ack)) ::_exit(4);
+      if (k % 5 == 0) store->post_checkpoint(kith::Points::Random(n_items, 3), k);
+    }
+  } catch (const std::exception& e) {
+    std::fprintf(stderr, "crash-test child: %s\n", e.what());
+    ::_exit(3);
+  }
+}
+
+std::string integrity_check(const std::string& path) {
+  sqlite3* db = nullptr;
+  std::string result;
+  if (sqlite3_open_v2(path.c_str(), &db, SQLITE_OPEN_READONLY, nullptr) != SQLITE_OK) {
+    result = "cannot open";
+  } else {
+    sqlite3_stmt* s = nullptr;
+    sqlite3_prepare_v2(db, "PRAGMA integrity_check", -1, &s, nullptr);
+    while (sqlite3_step(s) == SQLITE_ROW) result += reinterpret_cast<const char*>(sqlite3_column_text(s, 0));
+    sqlite3_finalize(s);
+  }
+  sqlite3_close(db);
+  return result;
+}
+
+}  // namespace
+
+TEST_CASE("sessions: killed at random moments, a session keeps every acknowledged judgment") {
+  const std::string dir = kith::test::temp_dir("sessions-crash");
+  const std::string path = dir + "/workshop.kith";
+  const int n_items = 60;
+  SessionStore::create(path, kith::test::swatch_collection(n_items, 4, 11)).reset();
+
+  std::mt19937 rng(2026);  // fixed seed: the same kill moments every run
+  std::uniform_int_distribution<int> delay_us(200, 80000);
+  const int rounds = 60;
+  int kills = 0, losses = 0, failed_checks = 0, child_errors = 0;
+  size_t acknowledged = 0, unacknowledged_but_kept = 0, kills_with_acks = 0;
+  std::map<int64_t, Ack> all_acks;
+  for (int round = 0; round < rounds; ++round) {
+    int fds[2];
+    REQUIRE(::pipe(fds) == 0);
+    const int wait = delay_us(rng);
+    const pid_t pid = ::fork();
+    REQUIRE(pid >= 0);
+    if (pid == 0) {
+      ::close(fds[0]);
+      child_adds_judgments(path, fds[1], round, n_items);
+    }
+    ::close(fds[1]);
+    ::usleep(useconds_t(wait));
+    ::kill(pid, SIGKILL);
+    int status = 0;
+    ::waitpid(pid, &status, 0);
+    if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
+    else ++child_errors;
+    Ack ack{};
+    size_t this_round = 0;
+    while (::read(fds[0], &ack, sizeof ack) == ssize_t(sizeof ack)) {
+      all_acks[ack.id] = ack;
+      ++this_round;
+    }
+    ::close(fds[0]);
+    acknowledged += this_round;
+    if (this_round > 0) ++kills_with_acks;
+
+    // The file as the crash left it (with its WAL) must be sound...
+    const std::string check = integrity_check(path);
+    if (check != "ok") {
+      ++failed_checks;
+      MESSAGE("round " << round << ": integrity_check says " << check);
+    }
+    // ...and hold every judgment acknowledged in this and every earlier round.
+    auto store = SessionStore::open(path);
+    std::map<int64_t, kith::Judgment> kept;
+    for (const auto& j : store->judgments()) kept[j.id] = j;
+    for (const auto& [id, a] : all_acks) {
+      auto it = kept.find(id);
+      if (it == kept.end() || it->second.anchor != a.anchor || it->second.nearer != a.nearer ||
+          it->second.farther != a.farther || it->second.person != "round " + std::to_string(a.round))
+        ++losses;
+    }
+    unacknowledged_but_kept = kept.size() - all_acks.size();
+  }
+  std::printf("sessions crash test: %d kills (SIGKILL), %zu rounds killed after at least one acknowledgement, "
+              "%zu judgments acknowledged, %d lost, %zu written but killed before acknowledging, "
+              "%d failed integrity checks\n",
+              kills, kills_with_acks, acknowledged, losses, unacknowledged_but_kept, failed_checks);
+  CHECK(child_errors == 0);
+  CHECK(kills >= 50);
+  CHECK(kills_with_acks >= 25);  // the kills must land while judgments are being written, not only at start-up
+  CHECK(losses == 0);
+  CHECK(failed_checks == 0);
+  CHECK(integrity_check(path) == "ok");
+}
+
+TEST_CASE("sessions: a second process is refused read-write and may open read-only") {
+  const std::string dir = kith::test::temp_dir("sessions-lock");
+  const std::string path = dir + "/shared.kith";
+  {
+    auto store = SessionStore::create(path, kith::test::swatch_collection(20, 3, 2));
+    kith::Judgment j;
+    j.anchor = 0, j.nearer = 1, j.farther = 2, j.person = "Ines";
+    store->add_judgment(j);
+  }
+  int ready[2], done[2];
+  REQUIRE(::pipe(ready) == 0);
+  REQUIRE(::pipe(done) == 0);
+  const pid_t pid = ::fork();
+  REQUIRE(pid >= 0);
+  if (pid == 0) {
+    int code = 0;
+    try {
+      auto store = SessionStore::open(path);
+      kith::Judgment j;
+      j.anchor = 3, j.nearer = 4, j.farther = 5;
+      store->add_judgment(j);
+      char c = 'R';
+      if (::write(ready[1], &c, 1) != 1) code = 4;
+      if (::read(done[0], &c, 1) != 1) code = 5;
+    } catch (...) {
+      code = 3;
+    }
+    ::_exit(code);
+  }
+  char c = 0;
+  REQUIRE(::read(ready[0], &c, 1) == 1);
+  try {
+    SessionStore::open(path);
+    FAIL("a second process opened the session read-write");
+  } catch (const SessionError& e) {
+    const std::string m = e.what();
+    CAPTURE(m);
+    CHECK(e.kind() == SessionError::Kind::kInUse);
+    CHECK(m.find("another kith process (process " + std::to_string(pid) + ")") != std::string::npos);
+    CHECK(m.find("read-only") != std::string::npos);
+  }
+  CHECK(SessionStore::inspect(path).in_use);
+  // Read-only works meanwhile and sees the other process's committed judgment.
+  CHECK(SessionStore::open(path, {true})->judgment_count() == 2);
+  // create --force will not replace it under the other process's feet either.
+  kith::SessionCreateOptions force;
+  force.overwrite = true;
+  CHECK_THROWS_AS(SessionStore::create(path, kith::test::swatch_collection(5, 1, 1), {}, force), SessionError);
+  c = 'D';
+  REQUIRE(::write(done[1], &c, 1) == 1);
+  int status = 0;
+  ::waitpid(pid, &status, 0);
+  CHECK(WIFEXITED(status));
+  CHECK(WEXITSTATUS(status) == 0);
+  for (int fd : {ready[0], ready[1], done[0], done[1]}) ::close(fd);
+  // The other process closed it: now it opens read-write here.
+  CHECK(SessionStore::open(path)->judgment_count() == 2);
+  CHECK_FALSE(SessionStore::inspect(path).in_use);
+}

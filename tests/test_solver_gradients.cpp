@@ -1,0 +1,158 @@
+// Gradient checks for the neighbour term against central finite differences, and the fast
+// repulsion paths against the slow obvious one.
+#include <doctest/doctest.h>
+
+#include <random>
+
+#include "solver/affinities.h"
+#include "solver/neighbour_term.h"
+#include "solver/neighbours.h"
+#include "tests/approx.h"
+
+namespace {
+
+kith::Points random_points(int n, int d, uint64_t seed, double scale = 1.0) {
+  std::mt19937_64 rng(seed);
+  std::normal_distribution<double> g(0.0, scale);
+  kith::Points x(n, d);
+  for (int i = 0; i < n; ++i)
+    for (int c = 0; c < d; ++c) x(i, c) = g(rng) + (i % 3) * 2.0 * scale;  // three loose clusters
+  return x;
+}
+
+std::shared_ptr<const kith::SparseAffinities> affinities_for(const kith::Points& x, double perplexity) {
+  const size_t k = std::min<size_t>(size_t(x.rows()) - 1, size_t(3 * perplexity));
+  auto graph = kith::find_neighbours(x, k);
+  kith::AffinityOptions o;
+  o.perplexity = perplexity;
+  return std::make_shared<kith::SparseAffinities>(kith::joint_affinities(graph, o));
+}
+
+// Central differences of term.evaluate at y, step h.
+kith::Points numeric_gradient(kith::ObjectiveTerm& term, const kith::Points& y, double h) {
+  kith::Points g(y.rows(), y.cols());
+  kith::Points yy = y;
+  for (Eigen::Index i = 0; i < y.rows(); ++i)
+    for (Eigen::Index c = 0; c < y.cols(); ++c) {
+      yy(i, c) = y(i, c) + h;
+      const double up = term.evaluate(yy, nullptr);
+      yy(i, c) = y(i, c) - h;
+      const double down = term.evaluate(yy, nullptr);
+      yy(i, c) = y(i, c);
+      g(i, c) = (up - down) / (2 * h);
+    }
+  return g;
+}
+
+}  // namespace
+
+TEST_CASE("solver: neighbour term gradient equals central finite differences (exact path)") {
+  // Step and tolerance: central differences have O(h^2) truncation error; with h = 1e-5 and
+  // costs of order 1 the rounding error is ~1e-11 / h = 1e-6 in the worst element.
+  constexpr double kStep = 1e-5, kAbsTol = 1e-6, kRelTol = 1e-5;
+  const kith::Points x = random_points(60, 5, 7);
+  auto p = affinities_for(x, 8.0);
+  for (int dims : {2, 3})
+    for (double dof : {1.0, 2.0, 0.7})
+      for (double exaggeration : {1.0, 12.0}) {
+        CAPTURE(dims);
+        CAPTURE(dof);
+        CAPTURE(exaggeration);
+        kith::NeighbourTermOptions o;
+        o.dof = dof;
+        o.force_exact = true;
+        kith::NeighbourTerm term(p, o);
+        term.set_exaggeration(exaggeration);
+        const kith::Points y = random_points(60, dims, 11, 0.7);
+        kith::Points g;
+        term.evaluate(y, &g);
+        kith::test::assert_near(g, numeric_gradient(term, y, kStep), kAbsTol, kRelTol, "gradient");
+      }
+}
+
+TEST_CASE("solver: cost at exaggeration 1 is KL(P||Q) computed the obvious way") {
+  const kith::Points x = random_points(40, 4, 3);
+  auto p = affinities_for(x, 6.0);
+  const kith::Points y = random_points(40, 3, 5);
+  for (double dof : {1.0, 2.0}) {
+    kith::NeighbourTermOptions o;
+    o.dof = dof;
+    o.force_exact = true;
+    kith::NeighbourTerm term(p, o);
+    // Dense Q by definition: w_ij = (1 + d^2/dof)^(-(dof+1)/2), q = w / sum w.
+    const Eigen::Index n = y.rows();
+    Eigen::MatrixXd w(n, n);
+    for (Eigen::Index i = 0; i < n; ++i)
+      for (Eigen::Index j = 0; j < n; ++j)
+        w(i, j) = i == j ? 0.0 : std::pow(1.0 + (y.row(i) - y.row(j)).squaredNorm() / dof, -(dof + 1) / 2);
+    const double z = w.sum();
+    double kl = 0.0;
+    for (size_t i = 0; i < p->n; ++i)
+      for (int64_t e = p->row_ptr[i]; e < p->row_ptr[i + 1]; ++e) {
+        const double pij = p->val[size_t(e)];
+        kl += pij * std::log(pij / (w(Eigen::Index(i), p->col[size_t(e)]) / z));
+      }
+    CHECK(term.evaluate(y, nullptr) == doctest::Approx(kl).epsilon(1e-12));
+  }
+}
+
+TEST_CASE("solver: Barnes-Hut with theta = 0 equals the exact repulsion") {
+  // The tree works in float32; the exact path in double. kRelTol allows float rounding.
+  constexpr double kRelTol = 2e-5;
+  const kith::Points x = random_points(700, 6, 21);
+  auto p = affinities_for(x, 10.0);
+  for (int dims : {2, 3})
+    for (double dof : {1.0, 2.0, 1.5}) {
+      CAPTURE(dims);
+      CAPTURE(dof);
+      const kith::Points y = random_points(700, dims, 4, 3.0);
+      kith::NeighbourTermOptions exact, tree;
+      exact.dof = tree.dof = dof;
+      exact.force_exact = true;
+      tree.exact_below = 0;
+      tree.theta = 0.0;
+      kith::NeighbourTerm a(p, exact), b(p, tree);
+      kith::Points ga, gb;
+      const double ca = a.evaluate(y, &ga), cb = b.evaluate(y, &gb);
+      CHECK(cb == doctest::Approx(ca).epsilon(kRelTol));
+      const double scale = ga.cwiseAbs().maxCoeff();
+      kith::test::assert_near(gb, ga, kRelTol * scale, 0.0, "gradient theta=0 vs exact");
+    }
+}
+
+TEST_CASE("solver: Barnes-Hut at theta = 0.5 is close to exact, and its own gradient is consistent") {
+  const kith::Points x = random_points(2000, 6, 23);
+  auto p = affinities_for(x, 15.0);
+  const kith::Points y = random_points(2000, 3, 9, 4.0);
+  kith::NeighbourTermOptions exact, tree;
+  exact.force_exact = true;
+  tree.exact_below = 0;
+  kith::NeighbourTerm a(p, exact), b(p, tree);
+  kith::Points ga, gb;
+  const double ca = a.evaluate(y, &ga), cb = b.evaluate(y, &gb);
+  // Common practice: theta = 0.5 keeps the repulsion within about 1% of exact.
+  CHECK(cb == doctest::Approx(ca).epsilon(1e-3));
+  CHECK((ga - gb).norm() / ga.norm() < 0.02);
+}
+
+TEST_CASE("solver: the same map and gradient whatever the thread count") {
+  const kith::Points x = random_points(3000, 5, 31);
+  auto p = affinities_for(x, 10.0);
+  const kith::Points y = random_points(3000, 3, 2, 5.0);
+  kith::Points g1, g2;
+  double c1, c2;
+  {
+    kith::NeighbourTermOptions o;
+    o.threads = 1;
+    kith::NeighbourTerm t(p, o);
+    c1 = t.evaluate(y, &g1);
+  }
+  {
+    kith::NeighbourTermOptions o;
+    o.threads = 3;
+    kith::NeighbourTerm t(p, o);
+    c2 = t.evaluate(y, &g2);
+  }
+  CHECK(c1 == c2);
+  CHECK((g1.array() == g2.array()).all());
+}
