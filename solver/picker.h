@@ -1,21 +1,24 @@
 // Picker: chooses the next question (solver/question_flow.h's Question) from the current map.
 //   random:            anchor and candidates uniformly at random;
-//   most informative:  the anchor is the least-judged of a few random items; candidates are its
-//                      nearest items in the map (and in feature space when features are given)
-//                      plus a few random ones; the pair chosen maximizes the expected information
-//                      gain about the map from the answer, under the t-STE model
-//                        I = H(E[p]) - E[H(p)],   H(p) = -p log p - (1-p) log(1-p),
-//                      the expectation over map positions jittered by their uncertainty
-//                      sigma_i^2 = (jitter * s)^2 / (1 + k_i), k_i = judgments naming item i, s
-//                      the anchor's typical neighbour distance (a cheap stand-in for a posterior
-//                      over maps, in the spirit of Tamuz et al. 2011's adaptive triplets; E[.] is
-//                      over `samples` draws). A question whose answer the model can already
-//                      predict, or whose answer is a coin toss whatever the map, gains little.
+//   most informative:  (adaptive triplets in the spirit of Tamuz et al. 2011) the anchor is the
+//                      least-judged of a few random items. Where the anchor belongs is uncertain:
+//                      its posterior is taken over S candidate places x_s (its own map position
+//                      and those of `samples` random items, the map's own points as the prior),
+//                      weighted by the t-STE likelihood of every judgment naming the anchor were
+//                      it at x_s, the other items fixed. Candidates are the anchor's nearest items
+//                      in the map (and in feature space when features are given) plus random
+//                      ones; the pair asked maximizes the expected information gain
+//                        I(b,c) = H(sum_s w_s p_s) - sum_s w_s H(p_s),
+//                        p_s = K(x_s,b) / (K(x_s,b) + K(x_s,c)),  H(p) = -p log p - (1-p) log(1-p).
+//                      A question whose answer the model can already predict, or whose answer is
+//                      a coin toss wherever the anchor stands, gains little; one that splits the
+//                      anchor's plausible places in two gains most.
 //   grid:              anchor + N candidates grown greedily, each new candidate adding the most
 //                      information over pairs with those already chosen;
 //   selection:         either rule, with the anchor restricted to a set of items.
 // A Picker owns its random generator; use it from one thread. Cost per choice: O(N d) to find
-// map neighbours, plus O(samples * candidates^2).
+// map neighbours, O(samples * judgments naming the anchor) for the posterior (plus one pass over
+// the judgments to find them), and O(samples * candidates^2) for the pairs.
 #pragma once
 #include <cstdint>
 #include <random>
@@ -36,8 +39,9 @@ struct PickerOptions {
   int feature_candidates = 8;  // nearest items in feature space, when features are given (default: 8)
   int random_candidates = 8;   // random items added for the long range (default: 8)
   int anchor_draws = 8;        // anchor = least-judged of this many random items (default: 8)
-  int samples = 16;            // jittered maps for the expectation (default: 16)
-  double jitter = 0.5;         // position uncertainty of an unjudged item, in neighbour distances (default: 0.5)
+  int anchors_scored = 1;      // anchors tried; the one whose best question gains most wins (default: 1)
+  double random_share = 0.0;   // share of questions asked at random, to keep the map honest globally (default: 0)
+  int samples = 256;           // candidate places for the anchor's posterior (default: 256)
   double alpha = 1.0;          // t-STE kernel dof (default: 1)
   uint64_t seed = 1;           // (default: 1)
   bool IsValid(std::string* error) const;
