@@ -18,9 +18,11 @@ packages=(cmake g++ make pkg-config
   python3-numpy python3-sklearn python3-skimage
   chromium)
 
+# One dpkg-query for all of them keeps the "everything is there" case fast.
+installed="$(dpkg-query -W -f='${Package} ${Status}\n' "${packages[@]}" 2>/dev/null || true)"
 missing=()
 for p in "${packages[@]}"; do
-  dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
+  grep -Fqx "$p install ok installed" <<<"$installed" || missing+=("$p")
 done
 if [ ${#missing[@]} -gt 0 ]; then
   echo "kith set-up: installing ${missing[*]}"
@@ -39,7 +41,7 @@ cmake --build "$build_dir" -j"$(nproc)"
 case "$what" in
   build) ;;
   test)
-    ctest --test-dir "$build_dir" --output-on-failure -j1 "$@"
+    ctest --test-dir "$build_dir" --output-on-failure -j"$(nproc)" "$@"
     ;;
   demo)
     exec "$build_dir/kith" demo "$@"

@@ -170,10 +170,13 @@ std::string read_file(const std::string& path) {
   std::FILE* f = std::fopen(path.c_str(), "rb");
   if (!f) throw LoadError(Problem{path, 0, 0, std::string("cannot open: ") + std::strerror(errno)});
   std::string data;
-  if (S_ISREG(st.st_mode) && st.st_size > 0) data.reserve(size_t(st.st_size));
+  if (S_ISREG(st.st_mode) && st.st_size > 0) {  // read straight into place
+    data.resize(size_t(st.st_size));
+    data.resize(std::fread(data.data(), 1, data.size(), f));
+  }
   char buf[1 << 16];
   size_t got;
-  while ((got = std::fread(buf, 1, sizeof buf, f)) > 0) data.append(buf, got);
+  while ((got = std::fread(buf, 1, sizeof buf, f)) > 0) data.append(buf, got);  // grew meanwhile, or a pipe
   const bool bad = std::ferror(f);
   std::fclose(f);
   if (bad) throw LoadError(Problem{path, 0, 0, "cannot read the whole file"});

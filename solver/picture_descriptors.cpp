@@ -373,8 +373,10 @@ std::vector<Problem> describe_collection(Collection& collection, const Descripto
   if (collection.features.cols() > 0 || collection.pictures.empty()) return {};
   DescribedPictures d = describe_pictures(collection.pictures, options);
   if (d.paths.size() < 2)
-    throw std::runtime_error(collection.source + ": only " + std::to_string(d.paths.size()) +
-                             " of the collection's pictures could be read; at least 2 are needed");
+    throw LoadError(Problem{collection.source, 0, 0,
+                            "only " + std::to_string(d.paths.size()) + " of the collection's " +
+                                std::to_string(collection.pictures.size()) +
+                                " pictures could be read; at least 2 are needed"});
   Collection out;
   out.source = collection.source;
   out.picture_column = collection.picture_column;

@@ -7,6 +7,8 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 #include <random>
+#include <set>
+#include <algorithm>
 
 #include "solver/collection.h"
 #include "solver/csv_table.h"
@@ -262,4 +264,22 @@ TEST_CASE("missing and unreadable files") {
                        "/nonexistent/items.csv: cannot open: No such file or directory", LoadError);
   CHECK_THROWS_WITH_AS(kith::load_collection(KITH_TEST_DATA), (std::string(KITH_TEST_DATA) + ": expected a file, found a folder").c_str(),
                        LoadError);
+}
+
+TEST_CASE("the bundled sample collection loads") {
+  const Collection c = kith::load_collection(std::string(KITH_SOURCE_DIR) + "/assets/tea_blends.csv");
+  CHECK(c.size() == 300);
+  CHECK(c.id_column == "id");
+  CHECK(c.features.cols() == 12);
+  CHECK(c.warnings.empty());
+  const auto* family = tag(c, "family");
+  REQUIRE(family != nullptr);
+  CHECK(std::set<std::string>(family->values.begin(), family->values.end()).size() == 6);
+  const auto* name = tag(c, "name");
+  REQUIRE(name != nullptr);
+  // Some names hold commas and quotes, written with RFC 4180 quoting by Python's csv module.
+  CHECK(std::any_of(name->values.begin(), name->values.end(),
+                    [](const std::string& s) { return s.find(", late harvest") != std::string::npos; }));
+  CHECK(std::any_of(name->values.begin(), name->values.end(),
+                    [](const std::string& s) { return s.rfind("The \"", 0) == 0; }));
 }

@@ -3,7 +3,11 @@
 #include <doctest/doctest.h>
 #include <stb_image_write.h>
 
+#include <sys/wait.h>
+
 #include <cmath>
+#include <cstdlib>
+#include <filesystem>
 #include <cstdint>
 #include <fstream>
 #include <string>
@@ -235,4 +239,77 @@ TEST_CASE("demo descriptors: broken files are reported and skipped; blocks get e
     CHECK(std::abs(total_variance - 1.0) < 1e-9);
   }
   CHECK(kith::descriptor_names().size() == size_t(kith::descriptor_size()));
+}
+
+namespace {
+int run_kith(const std::string& args) {
+  const int status = std::system((std::string(KITH_BINARY) + " " + args + " >/dev/null 2>&1").c_str());
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+std::vector<std::string> read_lines(const std::string& path) {
+  std::ifstream in(path);
+  std::vector<std::string> lines;
+  for (std::string l; std::getline(in, l);) lines.push_back(l);
+  return lines;
+}
+}  // namespace
+
+TEST_CASE("demo descriptors: kith describe on a folder, an items table, and bad input") {
+  const std::string dir = kith::test::temp_dir("describe-cli");
+  std::filesystem::create_directories(dir + "/pics/sub");
+  for (int i = 0; i < 4; ++i) {
+    const Rgb8 im = stripes(i * 40, 6 + 3 * i, 10 * i, -10 * i);
+    const std::string p = dir + (i < 2 ? "/pics/" : "/pics/sub/") + "p" + std::to_string(i) + ".png";
+    REQUIRE(stbi_write_png(p.c_str(), im.w, im.h, 3, im.px.data(), im.w * 3));
+  }
+  std::ofstream(dir + "/pics/broken.jpg") << "not a jpeg";
+  std::ofstream(dir + "/pics/notes.txt") << "ignored";
+  CHECK(run_kith("describe " + dir + "/pics -o " + dir + "/f.csv") == 0);
+  auto lines = read_lines(dir + "/f.csv");
+  REQUIRE(lines.size() == 5);  // header + 4 readable pictures; broken.jpg skipped
+  CHECK(lines[0].rfind("id,picture,colour_mean_L,", 0) == 0);
+  CHECK(lines[1].rfind("p0,pics/p0.png,", 0) == 0);
+  CHECK(lines[3].rfind("sub/p2,pics/sub/p2.png,", 0) == 0);
+  // The output is a collection kith reads, features from the pictures.
+  const kith::Collection c = kith::load_collection(dir + "/f.csv");
+  CHECK(c.size() == 4);
+  CHECK(c.features.cols() == kith::descriptor_size());
+  CHECK(c.pictures.size() == 4);
+  // Does not overwrite without --force.
+  CHECK(run_kith("describe " + dir + "/pics -o " + dir + "/f.csv") == 2);
+  CHECK(run_kith("describe " + dir + "/pics -o " + dir + "/f.csv --force") == 0);
+
+  // An items table with picture paths and tags, one picture missing.
+  std::ofstream(dir + "/items.csv") << "id,kind,picture\na,x,pics/p0.png\nb,y,pics/p1.png\nc,x,pics/sub/p3.png\n"
+                                       "d,y,pics/gone.png\n";
+  CHECK(run_kith("describe " + dir + "/items.csv -o " + dir + "/g.csv") == 0);
+  lines = read_lines(dir + "/g.csv");
+  REQUIRE(lines.size() == 4);
+  CHECK(lines[0].rfind("id,picture,kind,colour_mean_L", 0) == 0);
+  CHECK(lines[3].rfind("c,pics/sub/p3.png,x,", 0) == 0);
+
+  // Bad input: exit 3.
+  CHECK(run_kith("describe " + dir + "/nothing-here -o " + dir + "/h.csv") == 3);
+  std::filesystem::create_directories(dir + "/empty");
+  CHECK(run_kith("describe " + dir + "/empty -o " + dir + "/h.csv") == 3);
+  CHECK(run_kith("describe " + dir + "/pics/broken.jpg " + dir + "/pics/p0.png -o " + dir + "/h.csv") == 3);
+  std::ofstream(dir + "/bad.csv") << "id,picture\n\"unclosed,x.png\n";
+  CHECK(run_kith("describe " + dir + "/bad.csv -o " + dir + "/h.csv") == 3);
+  CHECK_FALSE(std::filesystem::exists(dir + "/h.csv"));
+  CHECK(run_kith("describe --help") == 0);
+  CHECK(run_kith("describe " + dir + "/pics") == 2);
+
+  // describe_collection: a loaded collection with pictures and no features gets them; the item
+  // whose picture is missing is left out with a warning.
+  kith::LoadOptions load;
+  load.allow_no_features = true;
+  kith::Collection items = kith::load_collection(dir + "/items.csv", load);
+  REQUIRE(items.features.cols() == 0);
+  const auto problems = kith::describe_collection(items, {});
+  CHECK(problems.size() == 1);
+  CHECK(items.size() == 3);
+  CHECK(items.features.cols() == kith::descriptor_size());
+  CHECK(items.index_of("d") == std::nullopt);
+  CHECK(items.index_of("c") == std::optional<size_t>(2));
+  CHECK(items.tags[0].values == std::vector<std::string>{"x", "y", "x"});
 }

@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "solver/collection.h"
 #include "solver/picture_descriptors.h"
 #include "viewer/commands.h"
 
@@ -21,8 +22,9 @@ const char* kUsage =
     "Computes features from PNG and JPEG pictures: CIELAB colour statistics, a coarse CIELAB\n"
     "histogram, texture energy and orientation at three scales, and a 4 x 4 layout thumbnail, each\n"
     "block weighted to the same spread over the pictures (see the README). PICTURES is a folder\n"
-    "(searched recursively for .png, .jpg, .jpeg) or one or more picture files. Pictures that\n"
-    "cannot be read are reported and left out.\n"
+    "(searched recursively for .png, .jpg, .jpeg), one or more picture files, or an items table\n"
+    "(CSV/TSV) with a column of picture paths, whose ids and tags are kept. Pictures that cannot\n"
+    "be read are reported and left out.\n"
     "\n"
     "options:\n"
     "  -o, --output FILE     the features CSV to write (required)\n"
@@ -129,8 +131,10 @@ int cmd_describe(const Args& args) {
     return kExitUsage;
   }
 
-  // Gather pictures; ids are paths relative to the folder given, without the extension.
+  // Gather pictures; ids are paths relative to the folder given, without the extension, or the
+  // items table's ids.
   std::vector<std::string> paths, ids;
+  std::vector<TagColumn> tags;
   std::set<std::string> seen_ids;
   for (const auto& in : inputs) {
     if (!fs::exists(in, ec)) {
@@ -153,9 +157,31 @@ int cmd_describe(const Args& args) {
         paths.push_back(p.string());
         ids.push_back(fs::relative(p, in, ec).replace_extension().generic_string());
       }
-    } else {
+    } else if (is_picture_name(in)) {
       paths.push_back(in);
       ids.push_back(fs::path(in).stem().string());
+    } else {  // an items table
+      if (inputs.size() != 1) {
+        std::fprintf(stderr, "kith describe: give one items table, or pictures and folders, not both\n");
+        return kExitUsage;
+      }
+      LoadOptions load;
+      load.allow_no_features = true;
+      Collection c;
+      try {
+        c = load_collection(in, load);
+      } catch (const LoadError& e) {
+        std::fprintf(stderr, "kith describe: %s\n", e.problem().str().c_str());
+        return kExitBadInput;
+      }
+      if (c.pictures.empty()) {
+        std::fprintf(stderr, "kith describe: %s: no column of picture paths found (values ending in .png, .jpg...)\n",
+                     in.c_str());
+        return kExitBadInput;
+      }
+      paths = c.pictures;
+      ids = c.ids;
+      tags = c.tags;
     }
   }
   if (paths.empty()) {
@@ -188,6 +214,7 @@ int cmd_describe(const Args& args) {
       return kExitBadInput;
     }
     out << "id,picture";
+    for (const auto& t : tags) out << ',' << csv_field(t.name);
     for (const auto& n : descriptor_names()) out << ',' << n;
     out << '\n';
     char buf[32];
@@ -196,6 +223,7 @@ int cmd_describe(const Args& args) {
       fs::path rel = fs::relative(abs, base, ec);
       if (ec || rel.empty()) rel = abs;
       out << csv_field(ids[d.input_index[r]]) << ',' << csv_field(rel.generic_string());
+      for (const auto& t : tags) out << ',' << csv_field(t.values[d.input_index[r]]);
       for (int c = 0; c < d.features.cols(); ++c) {
         std::snprintf(buf, sizeof buf, "%.9g", d.features(Eigen::Index(r), c));
         out << ',' << buf;
