@@ -4,7 +4,7 @@
 #include <sstream>
 #include <stdexcept>
 
-#include "solver/optimizer.h"
+#include "solver/fit.h"
 
 namespace kith {
 
@@ -36,24 +36,19 @@ BlendedFitSummary fit_blended(BlendedObjective& objective, Points& y, const Blen
   std::string error;
   if (!options.IsValid(&error)) throw std::invalid_argument(error);
   NeighbourTerm* neighbour = objective.neighbour_term();
-  Schedule schedule = options.schedule;
-  if (!neighbour) schedule.exaggeration_iterations = 0;  // nothing to exaggerate
-  GradientDescent descent;
+  LoopOptions loop;
+  loop.schedule = options.schedule;
+  if (!neighbour) loop.schedule.exaggeration_iterations = 0;  // nothing to exaggerate
+  loop.iterations = options.iterations;
   BlendedFitSummary summary;
-  const size_t n = size_t(y.rows());
-  for (int it = 0; it < options.iterations; ++it) {
-    if (neighbour) neighbour->set_exaggeration(schedule.exaggeration_at(it));
-    if (schedule.switches_at(it) && schedule.reset_state_at_switch) descent.reset();
-    const StepResult r = descent.step(objective, y, schedule.step_at(it, n));
-    summary.iterations = it + 1;
-    summary.cost = r.cost;
-    if (!r.finite) {
-      summary.finite = false;
-      break;
-    }
+  try {
+    const FitSummary s = run_schedule(
+        objective, [neighbour](double e) { if (neighbour) neighbour->set_exaggeration(e); }, y, loop);
+    summary.iterations = int(s.iterations);
+    summary.cost = s.kl;  // run_schedule's final evaluation: the whole objective here
+  } catch (const DivergenceError&) {
+    summary.finite = false;
   }
-  if (neighbour) neighbour->set_exaggeration(1.0);
-  if (summary.finite) summary.cost = objective.evaluate(y, nullptr);
   summary.costs = objective.last_costs();
   return summary;
 }

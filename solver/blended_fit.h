@@ -1,5 +1,5 @@
-// Batch fit of a BlendedObjective: gradient descent (solver/optimizer.h) under the shared
-// schedule (solver/schedule.h) for a fixed number of iterations. Early exaggeration applies to
+// Batch fit of a BlendedObjective: the shared optimization loop (run_schedule, solver/fit.h)
+// for a fixed number of iterations. Early exaggeration applies to
 // the neighbour term only; a judgments-only objective (no neighbour term) runs with the schedule's
 // momenta and learning rate, without exaggeration. Used by `kith fit`, the held-out agreement
 // and the tests and benchmarks. Runs on the calling thread.
@@ -29,7 +29,7 @@ struct BlendedFitSummary {
 // Small random start (Gaussian, standard deviation `scale`), as t-SNE's random initialization.
 Points random_start(size_t n, int dims, uint64_t seed, double scale = 1e-4);
 
-// Optimizes y in place. Returns early (finite = false) if the map goes NaN or infinite.
+// Optimizes y in place. finite = false (y then holds the last map) if the map diverged.
 BlendedFitSummary fit_blended(BlendedObjective& objective, Points& y, const BlendedFitOptions& options = {});
 
 }  // namespace kith
