@@ -635,8 +635,8 @@ std::string iso_time(double t) {
   return buf;
 }
 
+// Inside the caller's transaction.
 void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings) {
-  Transaction t(d);
   exec(d, kSchemaV1);
   {
     Stmt m(d, "INSERT INTO meta(key, value) VALUES (?, ?)");
@@ -645,6 +645,7 @@ void write_schema_and_collection(Db& d, const Collection& c, const SessionSettin
     m.bind(1, std::string("created_by")).bind(2, std::string("kith 0.1")).run();
     m.bind(1, std::string("source")).bind(2, c.source).run();
     m.bind(1, std::string("picture_column")).bind(2, c.picture_column).run();
+    m.bind(1, std::string("id_column")).bind(2, c.id_column).run();
   }
   write_settings(d, settings);
   {
@@ -668,7 +669,6 @@ void write_schema_and_collection(Db& d, const Collection& c, const SessionSettin
       tg.bind(1, int64_t(i)).bind(2, int64_t(col)).bind(3, c.tags[col].values[i]).run();
     }
   }
-  t.commit();
 }
 
 void validate_collection(const std::string& path, const Collection& c) {
@@ -826,14 +826,24 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
     fs::remove(tmp + "-journal", ec);
   };
   try {
-    Db d;
+    // Everything goes into the temporary file in one transaction; the staging Impl is only used
+    // for its judgment checks and inserts (no lock, no writer thread).
+    Impl staging;
+    staging.path = path;  // for messages
+    Db& d = staging.db;
     open_db(d, tmp, file_uri(tmp, "mode=rwc"), SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE);
     exec(d, "PRAGMA page_size = 8192");
     exec(d, ("PRAGMA application_id = " + std::to_string(kSessionApplicationId)).c_str());
     exec(d, ("PRAGMA user_version = " + std::to_string(kSessionSchemaVersion)).c_str());
     exec(d, "PRAGMA journal_mode = WAL");
     exec(d, "PRAGMA synchronous = FULL");
-    write_schema_and_collection(d, collection, settings);
+    {
+      Transaction t(d);
+      write_schema_and_collection(d, collection, settings);
+      staging.items = collection.size();
+      for (const Judgment& j : options.judgments) staging.insert_judgment(j);
+      t.commit();
+    }
     exec(d, "PRAGMA wal_checkpoint(TRUNCATE)");
     d.close();  // last connection: the WAL is folded in and removed
     {
@@ -877,13 +887,25 @@ size_t SessionStore::item_count() const {
   return impl_->item_count_unlocked_on(impl_->db);
 }
 
+std::vector<std::string> SessionStore::item_ids() const {
+  std::lock_guard<std::mutex> lock(impl_->mutex);
+  std::vector<std::string> ids;
+  ids.reserve(impl_->items);
+  Stmt q(impl_->db, "SELECT id FROM items ORDER BY item");
+  while (q.step()) ids.push_back(q.text(0));
+  return ids;
+}
+
 Collection SessionStore::collection() const {
   std::lock_guard<std::mutex> lock(impl_->mutex);
   Db& d = impl_->db;
   Collection c;
   {
-    Stmt m(d, "SELECT key, value FROM meta WHERE key IN ('source', 'picture_column')");
-    while (m.step()) (m.text(0) == "source" ? c.source : c.picture_column) = m.text(1);
+    Stmt m(d, "SELECT key, value FROM meta WHERE key IN ('source', 'picture_column', 'id_column')");
+    while (m.step()) {
+      const std::string k = m.text(0);
+      (k == "source" ? c.source : k == "id_column" ? c.id_column : c.picture_column) = m.text(1);
+    }
   }
   {
     Stmt f(d, "SELECT name FROM feature_columns ORDER BY col");
@@ -920,6 +942,7 @@ Collection SessionStore::collection() const {
     const size_t i = size_t(tg.i64(0)), col = size_t(tg.i64(1));
     if (i < n && col < c.tags.size()) c.tags[col].values[i] = tg.text(2);
   }
+  c.build_index();
   if (any_picture) {
     c.pictures = std::move(pictures);
     for (size_t i = 0; i < n; ++i) {

@@ -103,6 +103,7 @@ struct SessionOpenOptions {
 struct SessionCreateOptions {
   bool overwrite = false;       // replace an existing file (atomically, by rename) (default: false)
   int checkpoints_to_keep = 3;  // (default: 3)
+  std::vector<Judgment> judgments;  // written with the collection, in the same transaction (default: none)
 };
 
 // What a check of a file found (SessionStore::inspect): nothing is changed.
@@ -138,6 +139,7 @@ class SessionStore {
   // ---- the collection (fixed when the session is created) ----
   Collection collection() const;  // pictures as stored; warnings list pictures not found now
   size_t item_count() const;
+  std::vector<std::string> item_ids() const;  // in item order, without loading the features
   // Items whose stored picture path does not name a readable file on this machine.
   std::vector<size_t> missing_pictures() const;
 

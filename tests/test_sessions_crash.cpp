@@ -11,6 +11,7 @@
 #include <cstdio>
 #include <map>
 #include <random>
+#include <sstream>
 
 #include "solver/session_store.h"
 #include "tests/approx.h"
@@ -196,4 +197,88 @@ TEST_CASE("sessions: a second process is refused read-write and may open read-on
   // The other process closed it: now it opens read-write here.
   CHECK(SessionStore::open(path)->judgment_count() == 2);
   CHECK_FALSE(SessionStore::inspect(path).in_use);
+}
+
+TEST_CASE("sessions: kith judge killed at random moments loses no judgment it reported") {
+  const std::string dir = kith::test::temp_dir("sessions-crash-cli");
+  const std::string path = dir + "/workshop.kith";
+  const int n_items = 40;
+  const kith::Collection collection = kith::test::swatch_collection(n_items, 3, 12);
+  SessionStore::create(path, collection).reset();
+  std::mt19937 rng(77);
+  std::uniform_int_distribution<int> item(0, n_items - 1), delay_us(2000, 150000);
+  const int rounds = 15;
+  int kills = 0, losses = 0, failed_checks = 0;
+  size_t acknowledged = 0;
+  std::map<int64_t, std::string> all_acks;  // id -> "a,n,f" as printed
+  for (int round = 0; round < rounds; ++round) {
+    std::vector<std::string> argv_s = {"kith", "judge", path, "--person", "cli"};
+    for (int k = 0; k < 200; ++k) {
+      int a = item(rng), b, c;
+      do b = item(rng); while (b == a);
+      do c = item(rng); while (c == a || c == b);
+      argv_s.push_back("--add");
+      argv_s.push_back(collection.ids[size_t(a)] + "," + collection.ids[size_t(b)] + "," + collection.ids[size_t(c)]);
+    }
+    int fds[2];
+    REQUIRE(::pipe(fds) == 0);
+    const int wait = delay_us(rng);
+    const pid_t pid = ::fork();
+    REQUIRE(pid >= 0);
+    if (pid == 0) {
+      ::dup2(fds[1], 1);
+      ::close(fds[0]);
+      ::close(fds[1]);
+      std::vector<char*> argv;
+      for (auto& s : argv_s) argv.push_back(s.data());
+      argv.push_back(nullptr);
+      ::execv(KITH_BINARY, argv.data());
+      ::_exit(127);
+    }
+    ::close(fds[1]);
+    ::usleep(useconds_t(wait));
+    ::kill(pid, SIGKILL);
+    int status = 0;
+    ::waitpid(pid, &status, 0);
+    if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
+    std::string out;
+    char buf[4096];
+    ssize_t got;
+    while ((got = ::read(fds[0], buf, sizeof buf)) > 0) out.append(buf, size_t(got));
+    ::close(fds[0]);
+    std::istringstream lines(out);
+    std::string line;
+    while (std::getline(lines, line)) {
+      long long id = 0;
+      char triple[256] = {};
+      // A line cut by the kill is not an acknowledgement; a whole one ends in a newline, which
+      // getline removed, so only parse lines followed by one.
+      if (std::sscanf(line.c_str(), "added judgment %lld: %255s", &id, triple) == 2 && !lines.eof()) {
+        all_acks[id] = triple;
+        ++acknowledged;
+      }
+    }
+    if (integrity_check(path) != "ok") ++failed_checks;
+    auto store = SessionStore::open(path);
+    std::map<int64_t, kith::Judgment> kept;
+    for (const auto& j : store->judgments()) kept[j.id] = j;
+    for (const auto& [id, triple] : all_acks) {
+      auto it = kept.find(id);
+      if (it == kept.end()) {
+        ++losses;
+        continue;
+      }
+      const auto& j = it->second;
+      const std::string stored = collection.ids[size_t(j.anchor)] + "," + collection.ids[size_t(j.nearer)] + "," +
+                                 collection.ids[size_t(j.farther)];
+      if (stored != triple || j.person != "cli") ++losses;
+    }
+  }
+  std::printf("sessions crash test (kith judge): %d kills, %zu judgments reported added, %d lost, %d failed "
+              "integrity checks\n",
+              kills, acknowledged, losses, failed_checks);
+  CHECK(kills == rounds);
+  CHECK(acknowledged > 0);
+  CHECK(losses == 0);
+  CHECK(failed_checks == 0);
 }

@@ -16,12 +16,7 @@ int pending(const char* name) {
 #define KITH_PENDING(NAME) \
   __attribute__((weak)) int cmd_##NAME(const Args&) { return pending(#NAME); }
 KITH_PENDING(fit)
-KITH_PENDING(open)
-KITH_PENDING(render)
 KITH_PENDING(demo)
-KITH_PENDING(new)
-KITH_PENDING(judge)
-KITH_PENDING(export)
 KITH_PENDING(report)
 
 }  // namespace kith

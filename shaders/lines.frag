@@ -1,0 +1,4 @@
+#version 330 core
+in vec4 v_colour;
+out vec4 o_colour;
+void main() { o_colour = v_colour; }

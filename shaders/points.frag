@@ -1,0 +1,25 @@
+#version 330 core
+in vec3 v_colour;
+in float v_alpha;
+flat in uint v_flags;
+uniform vec3 u_ink;
+uniform vec3 u_ground;
+out vec4 o_colour;
+
+void main() {
+  vec2 p = gl_PointCoord * 2.0 - 1.0;
+  float r = length(p);
+  if (r > 1.0) discard;
+  vec3 c = v_colour;
+  // A slightly darker rim keeps touching discs apart.
+  c = mix(c, c * 0.62, smoothstep(0.70, 0.95, r));
+  bool selected = (v_flags & 1u) != 0u;
+  bool pinned = (v_flags & 2u) != 0u;
+  bool hovered = (v_flags & 4u) != 0u;
+  if (selected || hovered) {
+    if (r > 0.74) c = u_ink;
+    else if (r > 0.62) c = u_ground;
+  }
+  if (pinned && r < 0.30) c = u_ink;  // a pin: a dark centre dot
+  o_colour = vec4(c, v_alpha);
+}

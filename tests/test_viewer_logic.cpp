@@ -1,0 +1,398 @@
+// The map window's logic without GL: camera, picking, selection, interaction, scene building,
+// input scripts. Drives MapView over MockRenderer and a StillFeed.
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <random>
+
+#include "viewer/camera.h"
+#include "viewer/input_script.h"
+#include "viewer/map_feed.h"
+#include "viewer/map_interaction.h"
+#include "viewer/map_view.h"
+#include "viewer/picking.h"
+#include "viewer/synthetic_collection.h"
+
+namespace kith {
+namespace {
+
+constexpr float kPixelTol = 0.05f;   // pixels, float round trips through the projection
+constexpr float kWorldTol = 1e-3f;   // relative to the map's size
+
+std::vector<glm::vec3> random_points(size_t n, uint64_t seed, float spread = 10.f) {
+  std::mt19937_64 rng(seed);
+  std::uniform_real_distribution<float> u(-spread, spread);
+  std::vector<glm::vec3> p(n);
+  for (auto& x : p) x = glm::vec3(u(rng), u(rng), u(rng));
+  return p;
+}
+
+Points to_points(const std::vector<glm::vec3>& p) {
+  Points y(Eigen::Index(p.size()), 3);
+  for (size_t i = 0; i < p.size(); ++i) y.row(Eigen::Index(i)) << p[i].x, p[i].y, p[i].z;
+  return y;
+}
+
+TEST_CASE("viewer camera: the target projects to the centre; the facing plane inverts the projection") {
+  Camera cam;
+  cam.set_viewport(800, 600);
+  CameraPose pose;
+  pose.target = glm::vec3(1, 2, 3);
+  pose.yaw = 0.7f;
+  pose.pitch = -0.4f;
+  pose.distance = 15.f;
+  cam.set_pose(pose);
+  const Projected c = cam.project(pose.target);
+  REQUIRE(c.visible);
+  CHECK(c.screen.x == doctest::Approx(400).epsilon(1e-5));
+  CHECK(c.screen.y == doctest::Approx(300).epsilon(1e-5));
+  CHECK(c.depth == doctest::Approx(15.f).epsilon(1e-5));
+  // Any point: project it, then cast back through its pixel onto the plane through it.
+  for (const glm::vec3& p : random_points(50, 3, 4.f)) {
+    const Projected pp = cam.project(p);
+    REQUIRE(pp.visible);
+    const glm::vec3 back = cam.on_facing_plane(pp.screen, p);
+    CHECK(glm::length(back - p) < kWorldTol * 10.f);
+  }
+  // A point behind the eye is not visible.
+  CHECK_FALSE(cam.project(cam.eye() - cam.forward() * 2.f).visible);
+}
+
+TEST_CASE("viewer camera: up on screen is +y; orbit keeps the target; zoom and pan move as expected") {
+  Camera cam;
+  cam.set_viewport(640, 480);
+  cam.set_pose(CameraPose{});
+  const glm::vec3 t = cam.pose().target;
+  CHECK(cam.project(t + glm::vec3(0, 1, 0)).screen.y < cam.project(t).screen.y);
+  cam.orbit(120, 40);
+  CHECK(glm::length(cam.pose().target - t) < 1e-6f);
+  const Projected mid = cam.project(t);
+  CHECK(mid.screen.x == doctest::Approx(320).epsilon(1e-4));
+  const float d = cam.goal().distance;
+  cam.zoom(1.f);
+  CHECK(cam.goal().distance == doctest::Approx(d * 0.88f));
+  cam.update(10.f);  // long past the ease time: the pose has arrived
+  CHECK(cam.pose().distance == doctest::Approx(d * 0.88f));
+  // Pan by (dx, dy) pixels: the point that was under the centre moves by (dx, dy) on screen.
+  cam.pan(30, -20);
+  const Projected moved = cam.project(t);
+  CHECK(moved.screen.x == doctest::Approx(320 + 30).epsilon(1e-3));
+  CHECK(moved.screen.y == doctest::Approx(240 - 20).epsilon(1e-3));
+}
+
+TEST_CASE("viewer camera: fit puts every point on screen; transitions converge smoothly") {
+  const auto pts = random_points(500, 11, 7.f);
+  glm::vec3 lo(1e9f), hi(-1e9f);
+  for (const auto& p : pts) lo = glm::min(lo, p), hi = glm::max(hi, p);
+  for (float yaw : {0.f, 1.f, 2.5f}) {
+    Camera cam;
+    cam.set_viewport(1000, 500);
+    CameraPose p;
+    p.yaw = yaw;
+    cam.set_pose(p);
+    cam.fit(lo, hi, true);
+    float last_gap = 1e9f;
+    for (int k = 0; k < 120; ++k) {  // two seconds at 60 fps
+      cam.update(1.f / 60.f);
+      const float gap = std::abs(std::log(cam.pose().distance / cam.goal().distance));
+      CHECK(gap <= last_gap + 1e-6f);  // monotone approach, no overshoot
+      last_gap = gap;
+    }
+    CHECK_FALSE(cam.moving());
+    for (const auto& q : pts) {
+      const Projected s = cam.project(q);
+      REQUIRE(s.visible);
+      CHECK(s.screen.x >= 0.f);
+      CHECK(s.screen.x <= 1000.f);
+      CHECK(s.screen.y >= 0.f);
+      CHECK(s.screen.y <= 500.f);
+    }
+  }
+}
+
+TEST_CASE("viewer camera: --camera text round-trips and bad text is explained") {
+  Camera cam;
+  CameraPose p;
+  p.yaw = 1.25f;
+  p.pitch = 0.5f;
+  p.distance = 33.f;
+  p.target = glm::vec3(1, -2, 3);
+  cam.set_pose(p);
+  std::string error;
+  auto q = Camera::parse(cam.str(), &error);
+  REQUIRE(q);
+  CHECK(q->yaw == doctest::Approx(1.25f));
+  CHECK(q->distance == doctest::Approx(33.f));
+  CHECK(q->target.y == doctest::Approx(-2.f));
+  CHECK_FALSE(Camera::parse("1,2", &error));
+  CHECK(error.find("3 or 6") != std::string::npos);
+  CHECK_FALSE(Camera::parse("1,x,3", &error));
+  CHECK(error.find("'x'") != std::string::npos);
+  CHECK_FALSE(Camera::parse("1,0,-3", &error));
+}
+
+TEST_CASE("viewer picking: the nearest item on screen, checked against brute force") {
+  const auto pts = random_points(2000, 5);
+  Camera cam;
+  cam.set_viewport(900, 700);
+  cam.fit(glm::vec3(-10), glm::vec3(10), false);
+  std::mt19937 rng(9);
+  std::uniform_real_distribution<float> ux(0, 900), uy(0, 700);
+  for (int trial = 0; trial < 200; ++trial) {
+    const glm::vec2 px(ux(rng), uy(rng));
+    const float radius = 8.f;
+    const int got = pick_item(cam, pts, px, radius);
+    // Slow obvious reference: project each point with Camera::project.
+    int want = -1;
+    float best = radius * radius;
+    for (size_t i = 0; i < pts.size(); ++i) {
+      const Projected p = cam.project(pts[i]);
+      if (!p.visible) continue;
+      const float d2 = glm::dot(p.screen - px, p.screen - px);
+      if (d2 <= best) best = d2, want = int(i);
+    }
+    if (want < 0) {
+      CHECK(got == -1);
+    } else {
+      REQUIRE(got >= 0);
+      const Projected g = cam.project(pts[got]);
+      // Same item, or one within a pixel of the same screen distance (then the nearer to the eye).
+      CHECK(glm::distance(g.screen, px) <= std::sqrt(best) + 1.f);
+    }
+  }
+}
+
+TEST_CASE("viewer picking: box selection matches brute force; search by id and by tag") {
+  const auto pts = random_points(1500, 8);
+  Camera cam;
+  cam.set_viewport(800, 800);
+  cam.fit(glm::vec3(-10), glm::vec3(10), false);
+  const glm::vec2 a(500, 120), b(180, 460);  // corners in any order
+  const auto hits = pick_box(cam, pts, a, b);
+  std::vector<int> want;
+  for (size_t i = 0; i < pts.size(); ++i) {
+    const Projected p = cam.project(pts[i]);
+    if (p.visible && p.screen.x >= 180 && p.screen.x <= 500 && p.screen.y >= 120 && p.screen.y <= 460) want.push_back(int(i));
+  }
+  CHECK(hits == want);
+  CHECK(!hits.empty());
+
+  const Collection c = synthetic_collection(60, 3);
+  CHECK(search_items(c, "s0001").size() == 10);  // s00010..s00019
+  const auto oak = search_items(c, "material=OAK");
+  CHECK(oak.size() == 20);
+  for (int i : oak) CHECK(c.tags[0].values[i] == "oak");
+  CHECK(items_with_tag(c, 0, "linen").size() == 20);
+  CHECK(search_items(c, "no such thing").empty());
+  CHECK(search_items(c, "").empty());
+}
+
+struct Rig {
+  Collection collection = synthetic_collection(300, 4);
+  MockRenderer renderer;
+  StillFeed feed{collection.ids, rough_positions(collection)};
+  MapView view{collection, renderer};
+  MapInteraction interaction{view, feed};
+  Rig() {
+    view.camera().set_viewport(1000, 700);
+    view.set_snapshot(feed.latest());
+    view.frame(0.f, 1000, 700);
+  }
+  glm::vec2 screen_of(int item) const { return view.camera().project(view.positions()[item]).screen; }
+};
+
+TEST_CASE("viewer interaction: click selects, shift-click adds, click on empty space clears") {
+  Rig r;
+  const int a = r.view.item_at(r.screen_of(17)), b = r.view.item_at(r.screen_of(123));
+  REQUIRE(a >= 0);
+  REQUIRE(b >= 0);
+  r.interaction.pointer_move(r.screen_of(a));
+  r.interaction.button_down(0, false);
+  r.interaction.button_up(0);
+  CHECK(r.view.selection().items() == std::vector<int>{a});
+  r.interaction.pointer_move(r.screen_of(b));
+  r.interaction.button_down(0, true);
+  r.interaction.button_up(0);
+  CHECK(r.view.selection().size() == 2);
+  CHECK(r.view.selection().contains(b));
+  // The renderer got selection flags for exactly those two.
+  r.view.frame(0.f, 1000, 700);
+  int flagged = 0;
+  for (const auto& v : r.renderer.points) flagged += (v.flags & kPointSelected) ? 1 : 0;
+  CHECK(flagged == 2);
+  CHECK(r.renderer.highlights.size() >= 2);
+  r.interaction.pointer_move(glm::vec2(2, 2));  // a corner: nothing there after a fit
+  REQUIRE(r.view.item_at(glm::vec2(2, 2)) < 0);
+  r.interaction.button_down(0, false);
+  r.interaction.button_up(0);
+  CHECK(r.view.selection().empty());
+}
+
+TEST_CASE("viewer interaction: shift-drag on empty space selects by box; plain drag orbits") {
+  Rig r;
+  const float yaw = r.view.camera().pose().yaw;
+  r.interaction.pointer_move(glm::vec2(1, 1));
+  r.interaction.button_down(0, true);
+  r.interaction.pointer_move(glm::vec2(999, 699));
+  CHECK(r.interaction.state() == MapInteraction::State::kBoxing);
+  r.interaction.button_up(0);
+  CHECK(r.view.selection().size() == r.collection.size());  // the fit shows every item
+  r.interaction.pointer_move(glm::vec2(3, 3));
+  r.interaction.button_down(0, false);
+  r.interaction.pointer_move(glm::vec2(60, 3));
+  r.interaction.button_up(0);
+  CHECK(r.view.camera().pose().yaw != doctest::Approx(yaw));
+}
+
+TEST_CASE("viewer interaction: dragging posts drag targets in the facing plane; pin lands at the drop") {
+  Rig r;
+  const int item = r.view.item_at(r.screen_of(42));
+  REQUIRE(item >= 0);
+  const glm::vec3 start = r.view.positions()[item];
+  const glm::vec2 from = r.screen_of(item);
+  r.interaction.pointer_move(from);
+  r.interaction.button_down(0, false);
+  for (int step = 1; step <= 10; ++step) {
+    r.interaction.pointer_move(from + glm::vec2(8.f * step, -5.f * step));
+    r.interaction.per_frame();
+  }
+  CHECK(r.interaction.state() == MapInteraction::State::kDragging);
+  r.interaction.button_up(0);
+  REQUIRE(r.interaction.choosing());
+  const glm::vec3 drop = r.interaction.choice_position();
+  // The drop lies under the mouse, at the item's original depth.
+  const Projected p = r.view.camera().project(drop);
+  CHECK(glm::distance(p.screen, from + glm::vec2(80, -50)) < 0.05f);
+  CHECK(glm::dot(drop - start, r.view.camera().forward()) == doctest::Approx(0.f).epsilon(1e-3).scale(1.f));
+  r.interaction.choose_pin();
+  const auto log = r.feed.command_log();
+  int drags = 0, pins = 0, clears = 0;
+  for (const auto& c : log) {
+    drags += std::holds_alternative<cmd::DragTarget>(c.body) && std::get<cmd::DragTarget>(c.body).item == item;
+    pins += std::holds_alternative<cmd::Pin>(c.body);
+    clears += std::holds_alternative<cmd::ClearDrag>(c.body);
+  }
+  CHECK(drags == 10);
+  CHECK(pins == 1);
+  CHECK(clears == 1);
+  auto snap = r.feed.latest();
+  r.view.set_snapshot(snap);
+  CHECK(r.view.pinned(item));
+  CHECK(glm::distance(r.view.positions()[item], drop) < kWorldTol);
+  // Unpin through the selection.
+  r.interaction.unpin_selection();
+  r.view.set_snapshot(r.feed.latest());
+  CHECK_FALSE(r.view.pinned(item));
+}
+
+TEST_CASE("viewer interaction: release lets go; teach posts the hook's judgments") {
+  Rig r;
+  const int item = r.view.item_at(r.screen_of(7));
+  REQUIRE(item >= 0);
+  r.interaction.teach = [&](const Snapshot&, int it, const glm::vec3&, const glm::vec3&) {
+    Judgment j;
+    j.anchor = it;
+    j.nearer = 1;
+    j.farther = 2;
+    return std::vector<Judgment>{j, j};
+  };
+  auto drag = [&] {
+    const glm::vec2 from = r.screen_of(item);
+    r.interaction.pointer_move(from);
+    r.interaction.button_down(0, false);
+    r.interaction.pointer_move(from + glm::vec2(30, 0));
+    r.interaction.per_frame();
+    r.interaction.button_up(0);
+    REQUIRE(r.interaction.choosing());
+  };
+  drag();
+  r.interaction.choose_release();
+  CHECK_FALSE(r.interaction.choosing());
+  CHECK(r.view.dragged() == -1);
+  drag();
+  r.interaction.choose_teach();
+  int judgments = 0;
+  for (const auto& c : r.feed.command_log())
+    if (auto* a = std::get_if<cmd::AddJudgment>(&c.body)) {
+      ++judgments;
+      CHECK(a->judgment.kind == JudgmentKind::kDrag);
+    }
+  CHECK(judgments == 2);
+  CHECK_FALSE(r.view.pinned(item));
+}
+
+TEST_CASE("viewer scene: legend counts tags; measures ramp; cards respect the limit") {
+  Rig r;
+  REQUIRE(r.view.legend().size() == 4);
+  size_t total = 0;
+  for (const auto& e : r.view.legend()) total += e.count;
+  CHECK(total == r.collection.size());
+  // Same tag, same colour; different tags, different colours.
+  const auto a = r.view.colour_of(0), b = r.view.colour_of(4), c = r.view.colour_of(1);
+  CHECK(a.r == b.r);
+  CHECK((a.r != c.r || a.g != c.g || a.b != c.b));
+  ViewOptions o = r.view.options();
+  o.colour_by.kind = ColourKind::kJudgments;
+  r.view.set_options(o);
+  Judgment j;
+  j.anchor = 3;
+  j.nearer = 4;
+  j.farther = 5;
+  r.view.set_judgments({j, j});
+  r.view.frame(0.f, 1000, 700);
+  CHECK(r.view.colour_of(3).r == doctest::Approx(r.view.palette().ramp(1.f).r));
+  CHECK(r.view.colour_of(9).r == doctest::Approx(r.view.palette().ramp(0.f).r));
+  // Judgment lines appear only for the selection's judgments: 2 judgments x 2 segments x 2 ends.
+  CHECK(r.renderer.lines.empty());
+  r.view.selection().add(4);
+  r.view.selection_changed();
+  r.view.frame(0.f, 1000, 700);
+  CHECK(r.renderer.lines.size() == 8);
+  // No pictures in this collection: no cards, whatever the selection.
+  CHECK(r.renderer.cards.empty());
+  CHECK(o.IsValid().empty());
+  o.card_limit = 1000;
+  CHECK_FALSE(o.IsValid().empty());
+}
+
+TEST_CASE("viewer scene: nearest lists agree with brute force in both spaces") {
+  Rig r;
+  const int item = 5;
+  const auto f = r.view.nearest_in_features(item, 6);
+  const auto m = r.view.nearest_in_map(item, 6);
+  REQUIRE(f.size() == 6);
+  REQUIRE(m.size() == 6);
+  double worst_listed = 0, best_unlisted = 1e300;
+  const auto& F = r.collection.features;
+  for (Eigen::Index i = 0; i < F.rows(); ++i) {
+    if (i == item) continue;
+    const double d = (F.row(i) - F.row(item)).squaredNorm();
+    if (std::count(f.begin(), f.end(), int(i))) worst_listed = std::max(worst_listed, d);
+    else best_unlisted = std::min(best_unlisted, d);
+  }
+  CHECK(worst_listed <= best_unlisted);
+  CHECK(std::count(m.begin(), m.end(), item) == 0);
+}
+
+TEST_CASE("viewer input script: parses events and reports the line of a mistake") {
+  const auto ev = parse_input_script("# a comment\n5 move 10 20\n5 move @s00003\n6 move +5 -3\n7 press left\n"
+                                     "8 key shift+R\n9 scroll -2\n10 shot a.png\n11 wait-settle 50\n12 quit\n",
+                                     "t.txt");
+  REQUIRE(ev.size() == 9);
+  CHECK(ev[0].kind == InputEvent::kMove);
+  CHECK(ev[1].kind == InputEvent::kMoveToItem);
+  CHECK(ev[1].text == "s00003");
+  CHECK(ev[2].kind == InputEvent::kMoveBy);
+  CHECK(ev[2].pos.y == doctest::Approx(-3));
+  CHECK(ev[4].mods != 0);
+  CHECK(ev[5].amount == doctest::Approx(-2));
+  CHECK_THROWS_WITH_AS(parse_input_script("1 move 1 1\n2 jump\n", "bad.txt"), doctest::Contains("bad.txt:2"),
+                       std::runtime_error);
+  CHECK_THROWS_WITH_AS(parse_input_script("x move 1 1\n", "bad.txt"), doctest::Contains("frame number"),
+                       std::runtime_error);
+  CHECK_THROWS_WITH_AS(parse_input_script("1 key NOPE\n", "bad.txt"), doctest::Contains("unknown key"),
+                       std::runtime_error);
+}
+
+}  // namespace
+}  // namespace kith

@@ -1,0 +1,185 @@
+// The real kith executable: the window under Xvfb (screenshot vs camera projection, scripted
+// drag and pin reaching the engine) and the windowless `kith render` with DISPLAY unset.
+// Skipped with a message when xvfb-run is missing.
+#include <doctest/doctest.h>
+#include <stb_image.h>
+
+#include <cmath>
+#include <cstdlib>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <random>
+#include <string>
+
+#include "tests/approx.h"
+
+namespace {
+
+constexpr const char* kXvfb = "xvfb-run -a -s '-screen 0 1280x800x24' ";
+
+bool have_xvfb() { return std::system("command -v xvfb-run >/dev/null 2>&1") == 0; }
+
+int run(const std::string& command) {
+  const int status = std::system(command.c_str());
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+struct Image {
+  int w = 0, h = 0;
+  std::vector<unsigned char> rgb;
+  const unsigned char* at(int x, int y) const { return &rgb[(size_t(y) * w + x) * 3]; }
+};
+
+Image load_png(const std::string& path) {
+  Image im;
+  int channels = 0;
+  unsigned char* data = stbi_load(path.c_str(), &im.w, &im.h, &channels, 3);
+  REQUIRE_MESSAGE(data != nullptr, "cannot read " << path);
+  im.rgb.assign(data, data + size_t(im.w) * im.h * 3);
+  stbi_image_free(data);
+  return im;
+}
+
+nlohmann::json load_json(const std::string& path) {
+  std::ifstream in(path);
+  REQUIRE_MESSAGE(in.good(), "no " << path);
+  return nlohmann::json::parse(in);
+}
+
+int colour_distance(const unsigned char* a, const unsigned char* b) {
+  return std::abs(a[0] - b[0]) + std::abs(a[1] - b[1]) + std::abs(a[2] - b[2]);
+}
+
+void write(const std::string& path, const std::string& text) { std::ofstream(path) << text; }
+
+TEST_CASE("viewer window: the screenshot shows items where the camera projection puts them") {
+  if (!have_xvfb()) {
+    MESSAGE("xvfb-run not installed: window test skipped");
+    return;
+  }
+  const std::string dir = kith::test::temp_dir("viewer-shot");
+  write(dir + "/script.txt", "20 dump " + dir + "/state.json\n20 shot " + dir + "/shot.png\n22 quit\n");
+  const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open --generate 400 --paused --no-panels --frames 60 --script " +
+                          dir + "/script.txt > " + dir + "/log.txt 2>&1";
+  REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+  const Image im = load_png(dir + "/shot.png");
+  const auto state = load_json(dir + "/state.json");
+  CHECK(im.w == state["width"].get<int>());
+  CHECK(im.h == state["height"].get<int>());
+  // The ground is the most common colour: the corner pixel after a fit.
+  const unsigned char* ground = im.at(2, im.h - 3);
+  size_t not_ground = 0;
+  for (int y = 0; y < im.h; y += 2)
+    for (int x = 0; x < im.w; x += 2) not_ground += colour_distance(im.at(x, y), ground) > 30;
+  CHECK(not_ground > size_t(im.w / 2) * (im.h / 2) / 100);  // not blank: > 1 % of the picture
+  // Every item's projected centre is covered by a disc (its own or one in front of it).
+  size_t inside = 0, covered = 0;
+  std::vector<std::pair<float, float>> centres;
+  for (const auto& item : state["items"]) {
+    if (!item["visible"].get<bool>()) continue;
+    const float x = item["x"].get<float>(), y = item["y"].get<float>();
+    centres.push_back({x, y});
+    if (x < 1 || y < 1 || x >= im.w - 1 || y >= im.h - 1) continue;
+    ++inside;
+    covered += colour_distance(im.at(int(x), int(y)), ground) > 30;
+  }
+  REQUIRE(inside > 300);
+  CHECK(double(covered) / double(inside) > 0.97);
+  // And places far from every item are ground (or the faint floor grid).
+  std::mt19937 rng(4);
+  size_t empty_spots = 0, empty_ground = 0;
+  for (int k = 0; k < 4000; ++k) {
+    const int x = int(rng() % unsigned(im.w)), y = int(rng() % unsigned(im.h));
+    bool far = true;
+    for (const auto& c : centres) far = far && std::hypot(c.first - x, c.second - y) > 25.f;
+    if (!far) continue;
+    ++empty_spots;
+    empty_ground += colour_distance(im.at(x, y), ground) < 40;
+  }
+  REQUIRE(empty_spots > 100);
+  CHECK(double(empty_ground) / double(empty_spots) > 0.95);
+}
+
+TEST_CASE("viewer window: a scripted drag and pin reaches the engine and the item stays at the drop") {
+  if (!have_xvfb()) {
+    MESSAGE("xvfb-run not installed: window test skipped");
+    return;
+  }
+  const std::string dir = kith::test::temp_dir("viewer-drag");
+  write(dir + "/script.txt",
+        "30 move @s00005\n30 press left\n"
+        "32 move +6 +0\n34 move +12 -4\n36 move +20 -10\n38 move +20 -10\n40 move +20 -10\n"
+        "42 release left\n"
+        "44 key P\n"
+        "46 wait-settle 5\n"
+        "60 dump " + dir + "/state.json\n"
+        "60 shot " + dir + "/shot.png\n"
+        "61 quit\n");
+  const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open --generate 300 --frames 200 --script " + dir +
+                          "/script.txt > " + dir + "/log.txt 2>&1";
+  REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+  const auto state = load_json(dir + "/state.json");
+  REQUIRE_MESSAGE(state.contains("drop"), "no drop recorded: " << state.dump().substr(0, 400));
+  const auto& drop = state["drop"];
+  const std::string id = drop["item"];
+  // The item dragged is the one the script pointed at, or one drawn over it (nearer the eye).
+  int index = -1;
+  for (size_t i = 0; i < state["items"].size(); ++i)
+    if (state["items"][i]["id"] == id) index = int(i);
+  REQUIRE(index >= 0);
+  int drag_targets = 0, pins = 0, clears = 0;
+  for (const auto& c : state["log"]) {
+    if (c["item"].get<int>() != index) continue;
+    drag_targets += c["kind"] == "drag-target";
+    pins += c["kind"] == "pin";
+    clears += c["kind"] == "clear-drag";
+  }
+  CHECK(drag_targets >= 3);  // the engine received the drag, frame by frame
+  CHECK(pins == 1);
+  CHECK(clears == 1);
+  CHECK(drop["snapshot_applied"].get<bool>());
+  bool pinned = false;
+  for (const auto& p : state["pinned"]) pinned = pinned || p == id;
+  CHECK(pinned);
+  // The next snapshot has the pinned item at the drop position.
+  const auto& want = drop["position"];
+  const auto& got = drop["snapshot_position"];
+  const auto& lo = state["bounds"][0];
+  const auto& hi = state["bounds"][1];
+  const double size = std::hypot(hi[0].get<double>() - lo[0].get<double>(), hi[1].get<double>() - lo[1].get<double>(),
+                                 hi[2].get<double>() - lo[2].get<double>());
+  constexpr double kPinTolerance = 1e-3;  // of the map's size: a hard pin holds exactly (float round trip)
+  double d2 = 0;
+  for (int k = 0; k < 3; ++k) d2 += std::pow(want[k].get<double>() - got[k].get<double>(), 2);
+  CHECK(std::sqrt(d2) <= kPinTolerance * size);
+  // The drop was away from where the item started (the drag moved it).
+  CHECK(drop["drag_targets"].get<int>() >= 3);
+}
+
+TEST_CASE("viewer render: kith render with DISPLAY unset writes a PNG of the asked size with items") {
+  const std::string dir = kith::test::temp_dir("viewer-render");
+  const std::string png = dir + "/map.png";
+  const std::string cmd = std::string("env -u DISPLAY -u WAYLAND_DISPLAY ") + KITH_BINARY +
+                          " render --generate 500 --iterations 100 --size 320x240 -o " + png + " > " + dir +
+                          "/log.txt 2>&1";
+  REQUIRE_MESSAGE(run(cmd) == 0, "kith render failed: see " << dir << "/log.txt");
+  const Image im = load_png(png);
+  CHECK(im.w == 320);
+  CHECK(im.h == 240);
+  const unsigned char* ground = im.at(im.w - 2, im.h - 2);
+  size_t coloured = 0;
+  for (int y = 0; y < im.h; ++y)
+    for (int x = 0; x < im.w; ++x) {
+      const unsigned char* p = im.at(x, y);
+      // Saturated pixels: item discs in the categorical palette (the ground and text are grey-ish).
+      const int mx = std::max({p[0], p[1], p[2]}), mn = std::min({p[0], p[1], p[2]});
+      coloured += (mx - mn > 60) && colour_distance(p, ground) > 60;
+    }
+  CHECK(coloured > size_t(im.w) * im.h / 200);
+  // Bad input: a clear message and the usage exit code.
+  CHECK(run(std::string("env -u DISPLAY ") + KITH_BINARY + " render --generate 50 --size 10 -o " + dir +
+            "/x.png > /dev/null 2>&1") == 2);
+  CHECK(run(std::string(KITH_BINARY) + " render " + dir + "/missing.csv -o " + dir + "/x.png > /dev/null 2>&1") == 3);
+}
+
+}  // namespace

@@ -1,0 +1,77 @@
+// Camera: an orbit camera around a target point, with smooth transitions.
+//
+// Pose: the eye sits at target + distance * (cos(pitch) sin(yaw), sin(pitch), cos(pitch) cos(yaw)),
+// looking at the target with +y up; perspective projection with a vertical field of view.
+// Orbit/pan/zoom act on the goal pose; update(dt) moves the shown pose toward the goal with an
+// exponential ease (time constant kEaseSeconds), so fit-to-view and focus-on-selection glide.
+// Screen coordinates are pixels with (0,0) at the top-left, as GLFW reports the mouse.
+// Plain value type, no GL; used by the window's thread only.
+#pragma once
+#include <glm/glm.hpp>
+#include <optional>
+#include <string>
+
+namespace kith {
+
+struct CameraPose {
+  glm::vec3 target{0.f};
+  float yaw = 0.6f;        // radians around +y
+  float pitch = 0.35f;     // radians above the horizon, kept within +-kMaxPitch
+  float distance = 10.f;   // eye to target
+};
+
+struct Projected {
+  glm::vec2 screen{0.f};   // pixels, top-left origin
+  float depth = 0.f;       // distance along the view direction (> 0 in front of the eye)
+  bool visible = false;    // in front of the near plane
+};
+
+class Camera {
+ public:
+  static constexpr float kMaxPitch = 1.5f;
+  static constexpr float kEaseSeconds = 0.18f;
+  static constexpr float kFovYDegrees = 40.f;
+
+  void set_viewport(int width, int height);
+  int width() const { return width_; }
+  int height() const { return height_; }
+
+  const CameraPose& pose() const { return pose_; }
+  const CameraPose& goal() const { return goal_; }
+  void set_pose(const CameraPose& pose);   // jumps (no transition)
+  void glide_to(const CameraPose& goal);   // smooth transition
+  bool moving() const;
+
+  // Mouse gestures, in pixels of mouse motion.
+  void orbit(float dx, float dy);
+  void pan(float dx, float dy);
+  void zoom(float steps);  // > 0 moves closer; one step = 12 % of the distance
+  void spin(float radians) { goal_.yaw += radians; pose_.yaw += radians; }  // auto-rotation
+
+  // Goals framing a box or a set of points (a sphere around them fits the view).
+  void fit(const glm::vec3& lo, const glm::vec3& hi, bool smooth = true);
+
+  void update(float dt_seconds);
+
+  glm::vec3 eye() const;
+  glm::vec3 forward() const;  // unit, eye -> target
+  glm::mat4 view() const;
+  glm::mat4 projection() const;
+  float near_plane() const { return pose_.distance * 0.01f; }
+  float far_plane() const { return pose_.distance * 20.f + 1.f; }
+
+  Projected project(const glm::vec3& world) const;
+  // The point under pixel (x, y) on the plane through `anchor` facing the camera.
+  glm::vec3 on_facing_plane(const glm::vec2& pixel, const glm::vec3& anchor) const;
+
+  // "yaw,pitch,distance,tx,ty,tz" (the --camera option and the state dump).
+  std::string str() const;
+  static std::optional<CameraPose> parse(const std::string& text, std::string* error);
+
+ private:
+  static glm::vec3 eye_of(const CameraPose& p);
+  CameraPose pose_, goal_;
+  int width_ = 1280, height_ = 800;
+};
+
+}  // namespace kith

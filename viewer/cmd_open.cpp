@@ -1,0 +1,99 @@
+// kith open: the live map of a collection in a window.
+#include <cstdio>
+
+#include "viewer/app.h"
+#include "viewer/commands.h"
+#include "viewer/map_source.h"
+#include "viewer/offscreen_render.h"
+
+namespace kith {
+
+namespace {
+const char* kHelp =
+    "usage: kith open ITEMS [options]      (or just: kith ITEMS)\n"
+    "Opens the live map of a collection in a window: the optimization runs while you look,\n"
+    "select, drag and pin. Press H in the window for the keys.\n\n"
+    "  --size WxH          window size (default: 1280x800)\n"
+    "  --perplexity P      about how many neighbours each item listens to (default: 30)\n"
+    "  --theta T           Barnes-Hut angle, 0 = exact (default: 0.5)\n"
+    "  --blend B           weight of judgments against features (default: 1)\n"
+    "  --seed S            random seed (default: 42)\n"
+    "  --paused            start with the optimization paused\n"
+    "  --colour COLUMN     colour by this tag column (default: the first)\n"
+    "  --dark              the night ground instead of paper\n"
+    "  --turn              start with the slow turn on (for a shared screen)\n"
+    "  --no-panels         start with the panels hidden (Tab shows them)\n";
+}  // namespace
+
+int cmd_open(const Args& args) {
+  FlagReader flags(args, "open");
+  if (flags.flag("--help") || flags.flag("-h")) {
+    std::fputs(kHelp, stdout);
+    return kExitOk;
+  }
+  WindowOptions wo;
+  if (auto v = flags.value("--size"); v && !parse_size(*v, &wo.width, &wo.height)) {
+    std::fprintf(stderr, "kith open: --size expects WxH, e.g. 1600x1000, got '%s'\n", v->c_str());
+    return kExitUsage;
+  }
+  std::string colour;
+  if (auto v = flags.value("--colour")) colour = *v;
+  if (auto v = flags.value("--color")) colour = *v;
+  wo.view.dark = flags.flag("--dark");
+  wo.auto_rotate = flags.flag("--turn");
+  wo.panels = !flags.flag("--no-panels");
+  // Hidden options for tests and benchmarks.
+  double generate = 0, frames = 0;
+  if (auto v = flags.value("--generate"); v && (!parse_number(*v, &generate) || generate < 2)) {
+    std::fprintf(stderr, "kith open: --generate expects a count >= 2\n");
+    return kExitUsage;
+  }
+  if (auto v = flags.value("--frames"); v && (!parse_number(*v, &frames) || frames < 0)) {
+    std::fprintf(stderr, "kith open: --frames expects a count >= 0\n");
+    return kExitUsage;
+  }
+  wo.frames = int(frames);
+  if (auto v = flags.value("--script")) wo.script = *v;
+  if (auto v = flags.value("--screenshot")) wo.screenshot = *v;
+  if (auto v = flags.value("--fps-report")) wo.fps_report = *v;
+  if (flags.flag("--no-vsync")) wo.vsync = false;
+  EngineOptions eo;
+  if (!read_engine_flags(flags, "open", &eo)) return kExitUsage;
+  std::vector<std::string> positional;
+  if (!flags.finish(&positional)) {
+    std::fprintf(stderr, "kith %s\n", flags.error().c_str());
+    return kExitUsage;
+  }
+  if (positional.size() > 1) {
+    std::fprintf(stderr, "kith open: one collection at a time, got %zu\n", positional.size());
+    return kExitUsage;
+  }
+#ifdef KITH_HAVE_ENGINE
+  if (std::string e; !eo.IsValid(&e)) {
+    std::fprintf(stderr, "kith open: %s\n", e.c_str());
+    return kExitUsage;
+  }
+#endif
+  int code = kExitOk;
+  auto collection = load_items_or_report("open", positional.empty() ? "" : positional[0], size_t(generate), &code);
+  if (!collection) return code;
+  if (!colour.empty()) {
+    bool found = false;
+    for (size_t t = 0; t < collection->tags.size() && !found; ++t)
+      if (collection->tags[t].name == colour) wo.view.colour_by = {ColourKind::kTag, int(t)}, found = true;
+    if (!found) {
+      std::fprintf(stderr, "kith open: --colour: no tag column named '%s'\n", colour.c_str());
+      return kExitUsage;
+    }
+  }
+  if (!display_available()) {
+    std::fprintf(stderr,
+                 "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
+                 "or run the window under xvfb-run.\n",
+                 positional.empty() ? "ITEMS" : positional[0].c_str());
+    return kExitUsage;
+  }
+  return run_window(*collection, eo, wo);
+}
+
+}  // namespace kith

@@ -1,0 +1,47 @@
+// MapFeed: where the window gets its map from and sends its commands to. The live one wraps the
+// engine (solver/engine.h): post() goes to its inbox, latest() reads its snapshot mailbox.
+// StillFeed holds a fixed map and applies pins and drags itself; it serves `kith render` of a
+// finished layout and builds without the engine. post()/latest()/command_log() are thread-safe.
+#pragma once
+#include <memory>
+#include <mutex>
+#include <string>
+#include <vector>
+
+#include "solver/engine.h"
+
+namespace kith {
+
+class MapFeed {
+ public:
+  virtual ~MapFeed() = default;
+  virtual uint64_t post(CommandBody body) = 0;
+  virtual std::shared_ptr<const Snapshot> latest() const = 0;
+  virtual std::vector<Command> command_log() const = 0;
+  virtual bool live() const = 0;  // true when an optimizer moves the map
+};
+
+class StillFeed : public MapFeed {
+ public:
+  StillFeed(std::vector<std::string> ids, Points positions);
+  uint64_t post(CommandBody body) override;
+  std::shared_ptr<const Snapshot> latest() const override;
+  std::vector<Command> command_log() const override;
+  bool live() const override { return false; }
+
+ private:
+  mutable std::mutex mutex_;
+  std::shared_ptr<Snapshot> current_;
+  std::vector<Command> log_;
+  uint64_t next_seq_ = 1;
+};
+
+// The live engine over `collection`, started; nullptr when this build has no engine yet.
+std::unique_ptr<MapFeed> make_engine_feed(const Collection& collection, const EngineOptions& options,
+                                          std::vector<Judgment> judgments = {}, Points start = {});
+
+// A starting map without the optimizer: the first three feature columns, standardized
+// (zeros where there are fewer). For `kith render` of a collection with no engine in the build.
+Points rough_positions(const Collection& collection);
+
+}  // namespace kith
