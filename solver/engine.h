@@ -48,6 +48,9 @@ struct Command {
   uint64_t seq = 0;         // assigned by post()
   uint64_t iteration = 0;   // iteration at which the worker applied it (filled in the log)
   CommandBody body;
+  bool superseded = false;  // replaced before it was applied: by a later drag target of the same item, or
+                            // (perplexity) by a later one while it waited for a rebuild
+  std::string rejected;     // non-empty: not applied, and why (unknown item, NaN, impossible value)
 };
 
 // ---- snapshots --------------------------------------------------------------
@@ -67,11 +70,15 @@ struct Snapshot {
   double pin_cost = 0.0;
   HealthFigures health;
   uint64_t iteration = 0;
-  uint64_t last_command = 0;        // sequence number of the last command applied
+  uint64_t last_command = 0;        // highest sequence number applied (or rejected/superseded) so far
   uint64_t generation = 0;          // increases with every publish
   double iterations_per_second = 0.0;
+  double movement = 0.0;            // mean step of the last iteration over the map's RMS radius
   bool paused = false;
   bool settled = false;             // converged and sleeping
+  bool rebuilding = false;          // a heavy rebuild (perplexity, new items) runs on the helper thread
+  size_t waiting_commands = 0;      // taken from the inbox but waiting for that rebuild
+  std::string last_rejected;        // why the most recent rejected command was rejected ("" if none)
 };
 
 // ---- the engine ---------------------------------------------------------------
@@ -85,6 +92,15 @@ struct EngineOptions {
   uint64_t seed = 42;           // (default: 42)
   int threads = 0;              // threads for one evaluation, 0 = all (default: 0)
   bool start_paused = false;    // (default: false)
+  // Settling: an iteration is quiet when the items moved less than settle_tolerance (mean step
+  // over the map's RMS radius); after slow_after quiet iterations the worker slows down, after
+  // settle_after it sleeps until a command arrives. It also sleeps after settle_cap iterations
+  // without a command, however much the map still drifts (0 = never).
+  double settle_tolerance = 3e-4;  // (default: 3e-4)
+  int slow_after = 50;             // (default: 50)
+  int settle_after = 150;          // (default: 150)
+  uint64_t settle_cap = 3000;      // (default: 3000)
+  double publish_interval_ms = 16.0;  // minimum time between two routine snapshots (default: 16)
   bool IsValid(std::string* error) const;
 };
 
@@ -103,6 +119,16 @@ class Engine {
   uint64_t post(CommandBody body);                // thread-safe; returns the sequence number
   std::shared_ptr<const Snapshot> latest() const; // thread-safe, never blocks on the optimizer
   std::vector<Command> command_log() const;       // applied commands with their iterations
+
+  // Replays a recorded command log on the calling thread (the worker must not be running): from
+  // this engine's start, applies every logged command at its logged iteration and runs
+  // `iterations` iterations in all, then publishes the result. Same start + same log + same
+  // options -> the identical map.
+  void replay(const std::vector<Command>& log, uint64_t iterations);
+
+ private:
+  struct Impl;
+  std::unique_ptr<Impl> impl_;
 };
 
 }  // namespace kith

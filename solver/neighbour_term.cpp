@@ -17,6 +17,8 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdint>
+#include <cstring>
+#include <immintrin.h>
 #include <stdexcept>
 #include <vector>
 
@@ -46,22 +48,103 @@ inline T kernel_w(T t, T half_exponent) {
 
 constexpr size_t kRowChunk = 512;
 
+bool have_avx2() {
+  static const bool yes = __builtin_cpu_supports("avx2");
+  return yes;
+}
+
+// sum_e p[e] log(1 + u[e]) for u >= 0, vectorized: x = 1 + u = m 2^e with m in [sqrt(1/2), sqrt(2)),
+// log m = 2 atanh(s), s = (m - 1)/(m + 1), |s| <= 0.172, series to s^17 (error ~1e-15). Four
+// lanes summed in a fixed order; the AVX2 and the plain version do the same IEEE operations, so
+// they agree to the last bit. libm's log1p here cost more than the whole attraction.
+constexpr double kLn2 = 0.6931471805599453, kSqrt2 = 1.4142135623730951;
+inline double log_series(double m, double e) {
+  const double s = (m - 1.0) / (m + 1.0), s2 = s * s;
+  const double poly =
+      1.0 + s2 * (1.0 / 3 + s2 * (1.0 / 5 + s2 * (1.0 / 7 + s2 * (1.0 / 9 + s2 * (1.0 / 11 + s2 * (1.0 / 13 +
+      s2 * (1.0 / 15 + s2 * (1.0 / 17))))))));
+  return e * kLn2 + 2.0 * s * poly;
+}
+inline double log_one_plus(double u) {
+  const double x = 1.0 + u;
+  uint64_t bits;
+  std::memcpy(&bits, &x, sizeof bits);
+  double e = double(int64_t(bits >> 52) - 1023);
+  bits = (bits & 0x000fffffffffffffULL) | 0x3ff0000000000000ULL;
+  double m;
+  std::memcpy(&m, &bits, sizeof m);
+  if (m > kSqrt2) {
+    m = m * 0.5;
+    e = e + 1.0;
+  }
+  return log_series(m, e);
+}
+double sum_p_log1p_plain(const double* p, const double* u, size_t n) {
+  double acc[4] = {0, 0, 0, 0};
+  size_t k = 0;
+  for (; k + 4 <= n; k += 4)
+    for (int l = 0; l < 4; ++l) acc[l] = acc[l] + p[k + size_t(l)] * log_one_plus(u[k + size_t(l)]);
+  double tail = 0.0;
+  for (; k < n; ++k) tail += p[k] * log_one_plus(u[k]);
+  return ((acc[0] + acc[1]) + (acc[2] + acc[3])) + tail;
+}
+__attribute__((target("avx2"))) double sum_p_log1p_avx2(const double* p, const double* u, size_t n) {
+  const __m256d one = _mm256_set1_pd(1.0), half = _mm256_set1_pd(0.5), sqrt2 = _mm256_set1_pd(kSqrt2);
+  const __m256i mant_mask = _mm256_set1_epi64x(0x000fffffffffffffLL), one_bits = _mm256_set1_epi64x(0x3ff0000000000000LL);
+  const __m256i magic_i = _mm256_set1_epi64x(0x4330000000000000LL);  // 2^52: exact int -> double for 0 <= e < 2^52
+  const __m256d magic_d = _mm256_set1_pd(4503599627370496.0 + 1023.0);
+  __m256d acc = _mm256_setzero_pd();
+  size_t k = 0;
+  for (; k + 4 <= n; k += 4) {
+    const __m256d x = _mm256_add_pd(one, _mm256_loadu_pd(u + k));
+    const __m256i bits = _mm256_castpd_si256(x);
+    // biased exponent (0 .. 2047) as a double, minus the bias
+    __m256d e = _mm256_sub_pd(_mm256_castsi256_pd(_mm256_or_si256(_mm256_srli_epi64(bits, 52), magic_i)), magic_d);
+    __m256d m = _mm256_castsi256_pd(_mm256_or_si256(_mm256_and_si256(bits, mant_mask), one_bits));
+    const __m256d big = _mm256_cmp_pd(m, sqrt2, _CMP_GT_OQ);
+    m = _mm256_blendv_pd(m, _mm256_mul_pd(m, half), big);
+    e = _mm256_blendv_pd(e, _mm256_add_pd(e, one), big);
+    const __m256d s = _mm256_div_pd(_mm256_sub_pd(m, one), _mm256_add_pd(m, one));
+    const __m256d s2 = _mm256_mul_pd(s, s);
+    __m256d poly = _mm256_set1_pd(1.0 / 17);
+    for (double c : {1.0 / 15, 1.0 / 13, 1.0 / 11, 1.0 / 9, 1.0 / 7, 1.0 / 5, 1.0 / 3, 1.0})
+      poly = _mm256_add_pd(_mm256_set1_pd(c), _mm256_mul_pd(s2, poly));
+    const __m256d lg = _mm256_add_pd(_mm256_mul_pd(e, _mm256_set1_pd(kLn2)),
+                                     _mm256_mul_pd(_mm256_mul_pd(_mm256_set1_pd(2.0), s), poly));
+    acc = _mm256_add_pd(acc, _mm256_mul_pd(_mm256_loadu_pd(p + k), lg));
+  }
+  alignas(32) double lanes[4];
+  _mm256_store_pd(lanes, acc);
+  double tail = 0.0;
+  for (; k < n; ++k) tail += p[k] * log_one_plus(u[k]);
+  return ((lanes[0] + lanes[1]) + (lanes[2] + lanes[3])) + tail;
+}
+
 // ============================================================================ tree
+template <int D>
+struct Node {
+  float c[D];       // centre of mass
+  float size2;      // (largest side of the tight bounding box)^2
+  float lo[D], hi[D];
+  float mass;       // number of points
+  int32_t begin, end;            // range of Morton-sorted points
+  int32_t first_child, child_count;
+};
+
 template <int D>
 struct Tree {
   // Points in Morton order, float32, structure of arrays.
   std::vector<float> px[D];
   std::vector<int32_t> order;  // sorted position -> item
-  // Nodes in breadth-first order; a node's children are contiguous.
-  std::vector<int32_t> begin, end, first_child, child_count;
-  std::vector<float> cx[D], mass, size2, lo[D], hi[D];
-  std::vector<int32_t> leaves;
+  std::vector<Node<D>> nodes;  // breadth-first; a node's children are contiguous
+  std::vector<int32_t> groups; // nodes whose points share one interaction list, in Morton order
 };
 
 template <int D>
-void build_tree(const Points& y, size_t leaf_size, Tree<D>& t) {
+void build_tree(const Points& y, size_t leaf_size, size_t group_size, Tree<D>& t) {
   const Eigen::Index n = y.rows();
   constexpr int kBits = D == 3 ? 21 : 31;
+  constexpr uint64_t kDigit = (1u << D) - 1;
   double mn[D], mx[D];
   for (int d = 0; d < D; ++d) {
     mn[d] = y.col(d).minCoeff();
@@ -77,7 +160,7 @@ void build_tree(const Points& y, size_t leaf_size, Tree<D>& t) {
     uint64_t code = 0;
     uint64_t q[D];
     for (int d = 0; d < D; ++d) {
-      double v = (y(i, d) - mn[d]) * scale;
+      const double v = (y(i, d) - mn[d]) * scale;
       q[d] = v >= cells ? (uint64_t(1) << kBits) - 1 : uint64_t(std::max(v, 0.0));
     }
     for (int b = kBits - 1; b >= 0; --b)
@@ -91,66 +174,57 @@ void build_tree(const Points& y, size_t leaf_size, Tree<D>& t) {
     t.order[size_t(s)] = keys[size_t(s)].second;
     for (int d = 0; d < D; ++d) t.px[d][size_t(s)] = float(y(keys[size_t(s)].second, d));
   }
-  t.begin.assign(1, 0);
-  t.end.assign(1, int32_t(n));
-  t.first_child.assign(1, -1);
-  t.child_count.assign(1, 0);
+  t.nodes.clear();
+  t.nodes.push_back(Node<D>{});
+  t.nodes[0].begin = 0;
+  t.nodes[0].end = int32_t(n);
+  t.nodes[0].first_child = -1;
+  t.nodes[0].child_count = 0;
   std::vector<int> level(1, 0);
-  t.leaves.clear();
-  for (size_t q = 0; q < t.begin.size(); ++q) {
-    const int32_t b = t.begin[q], e = t.end[q];
+  for (size_t q = 0; q < t.nodes.size(); ++q) {
+    const int32_t b = t.nodes[q].begin, e = t.nodes[q].end;
     int lev = level[q];
-    if (size_t(e - b) <= leaf_size) {
-      t.leaves.push_back(int32_t(q));
-      continue;
-    }
-    // Descend levels until the range splits in two or more cells (skipping single-child chains).
+    if (size_t(e - b) <= leaf_size) continue;
+    // Descend levels until the range splits in two or more cells (no single-child chains).
     for (; lev < kBits; ++lev) {
       const int shift = D * (kBits - lev - 1);
-      const uint64_t first = (keys[size_t(b)].first >> shift) & ((1u << D) - 1);
-      const uint64_t last = (keys[size_t(e - 1)].first >> shift) & ((1u << D) - 1);
-      if (first != last) break;
+      if (((keys[size_t(b)].first >> shift) & kDigit) != ((keys[size_t(e - 1)].first >> shift) & kDigit)) break;
     }
-    if (lev == kBits) {  // all codes equal (coincident points): a leaf, however big
-      t.leaves.push_back(int32_t(q));
-      continue;
-    }
+    if (lev == kBits) continue;  // all codes equal (coincident points): a leaf, however big
     const int shift = D * (kBits - lev - 1);
-    t.first_child[q] = int32_t(t.begin.size());
+    t.nodes[q].first_child = int32_t(t.nodes.size());
     int32_t start = b;
-    uint64_t digit = (keys[size_t(b)].first >> shift) & ((1u << D) - 1);
+    uint64_t digit = (keys[size_t(b)].first >> shift) & kDigit;
+    int32_t children = 0;
     for (int32_t s = b + 1; s <= e; ++s) {
-      const uint64_t dg = s < e ? (keys[size_t(s)].first >> shift) & ((1u << D) - 1) : ~uint64_t(0);
+      const uint64_t dg = s < e ? (keys[size_t(s)].first >> shift) & kDigit : ~uint64_t(0);
       if (dg != digit) {
-        t.begin.push_back(start);
-        t.end.push_back(s);
-        t.first_child.push_back(-1);
-        t.child_count.push_back(0);
+        Node<D> child{};
+        child.begin = start;
+        child.end = s;
+        child.first_child = -1;
+        child.child_count = 0;
+        t.nodes.push_back(child);
         level.push_back(lev + 1);
-        ++t.child_count[q];
+        ++children;
         start = s;
         digit = dg;
       }
     }
+    t.nodes[q].child_count = children;
   }
   // Summaries bottom-up (children have larger indices than their parent).
-  const size_t m = t.begin.size();
-  t.mass.assign(m, 0.f);
-  t.size2.assign(m, 0.f);
-  for (int d = 0; d < D; ++d) {
-    t.cx[d].assign(m, 0.f);
-    t.lo[d].assign(m, 0.f);
-    t.hi[d].assign(m, 0.f);
-  }
+  const size_t m = t.nodes.size();
   std::vector<double> sum(m * D, 0.0);
   for (size_t q = m; q-- > 0;) {
+    Node<D>& nd = t.nodes[q];
     float l[D], h[D];
     for (int d = 0; d < D; ++d) {
       l[d] = INFINITY;
       h[d] = -INFINITY;
     }
-    if (t.child_count[q] == 0) {
-      for (int32_t s = t.begin[q]; s < t.end[q]; ++s)
+    if (nd.child_count == 0) {
+      for (int32_t s = nd.begin; s < nd.end; ++s)
         for (int d = 0; d < D; ++d) {
           const float v = t.px[d][size_t(s)];
           sum[q * D + d] += v;
@@ -158,23 +232,36 @@ void build_tree(const Points& y, size_t leaf_size, Tree<D>& t) {
           h[d] = std::max(h[d], v);
         }
     } else {
-      for (int32_t c = t.first_child[q]; c < t.first_child[q] + t.child_count[q]; ++c)
+      for (int32_t c = nd.first_child; c < nd.first_child + nd.child_count; ++c)
         for (int d = 0; d < D; ++d) {
           sum[q * D + d] += sum[size_t(c) * D + d];
-          l[d] = std::min(l[d], t.lo[d][size_t(c)]);
-          h[d] = std::max(h[d], t.hi[d][size_t(c)]);
+          l[d] = std::min(l[d], t.nodes[size_t(c)].lo[d]);
+          h[d] = std::max(h[d], t.nodes[size_t(c)].hi[d]);
         }
     }
-    const double count = double(t.end[q] - t.begin[q]);
-    t.mass[q] = float(count);
+    const double count = double(nd.end - nd.begin);
+    nd.mass = float(count);
     float side = 0.f;
     for (int d = 0; d < D; ++d) {
-      t.cx[d][q] = float(sum[q * D + d] / count);
-      t.lo[d][q] = l[d];
-      t.hi[d][q] = h[d];
+      nd.c[d] = float(sum[q * D + d] / count);
+      nd.lo[d] = l[d];
+      nd.hi[d] = h[d];
       side = std::max(side, h[d] - l[d]);
     }
-    t.size2[q] = side * side;
+    nd.size2 = side * side;
+  }
+  // Groups: the highest nodes with at most group_size points (or leaves), in Morton order.
+  t.groups.clear();
+  std::vector<int32_t> stack{0};
+  while (!stack.empty()) {
+    const int32_t q = stack.back();
+    stack.pop_back();
+    const Node<D>& nd = t.nodes[size_t(q)];
+    if (nd.child_count == 0 || size_t(nd.end - nd.begin) <= group_size) {
+      t.groups.push_back(q);
+    } else {
+      for (int32_t c = nd.first_child + nd.child_count - 1; c >= nd.first_child; --c) stack.push_back(c);
+    }
   }
 }
 
@@ -184,18 +271,32 @@ constexpr int kLanes = 8;
 template <int D>
 struct InteractionList {
   std::vector<float> x[D], m;
-  void clear() {
-    for (int d = 0; d < D; ++d) x[d].clear();
-    m.clear();
+  size_t size = 0;
+  void clear() { size = 0; }
+  void reserve_more(size_t extra) {
+    if (size + extra > m.size()) {
+      const size_t cap = std::max(2 * m.size(), size + extra + kLanes);
+      for (int d = 0; d < D; ++d) x[d].resize(cap);
+      m.resize(cap);
+    }
   }
   void add(const float* p, float mass) {
-    for (int d = 0; d < D; ++d) x[d].push_back(p[d]);
-    m.push_back(mass);
+    reserve_more(1);
+    for (int d = 0; d < D; ++d) x[d][size] = p[d];
+    m[size++] = mass;
+  }
+  void add_range(const std::vector<float>* px, int32_t b, int32_t e) {
+    const size_t count = size_t(e - b);
+    reserve_more(count);
+    for (int d = 0; d < D; ++d) std::copy(px[d].begin() + b, px[d].begin() + e, x[d].begin() + long(size));
+    std::fill(m.begin() + long(size), m.begin() + long(size + count), 1.f);
+    size += count;
   }
   void pad() {
-    while (m.size() % kLanes) {
-      for (int d = 0; d < D; ++d) x[d].push_back(0.f);
-      m.push_back(0.f);
+    reserve_more(kLanes);
+    while (size % kLanes) {
+      for (int d = 0; d < D; ++d) x[d][size] = 0.f;
+      m[size++] = 0.f;
     }
   }
 };
@@ -203,40 +304,30 @@ struct InteractionList {
 template <int D>
 void build_list(const Tree<D>& t, int32_t group, float theta2, InteractionList<D>& list, std::vector<int32_t>& stack) {
   list.clear();
-  const int32_t gb = t.begin[size_t(group)], ge = t.end[size_t(group)];
-  float glo[D], ghi[D];
-  for (int d = 0; d < D; ++d) {
-    glo[d] = t.lo[d][size_t(group)];
-    ghi[d] = t.hi[d][size_t(group)];
-  }
+  const Node<D>& g = t.nodes[size_t(group)];
+  const int32_t gb = g.begin, ge = g.end;
   stack.clear();
   stack.push_back(0);
   while (!stack.empty()) {
-    const size_t q = size_t(stack.back());
+    const Node<D>& nd = t.nodes[size_t(stack.back())];
     stack.pop_back();
-    const bool contains_group = t.begin[q] <= gb && ge <= t.end[q];
+    const bool contains_group = nd.begin <= gb && ge <= nd.end;
     if (!contains_group) {
       float dmin2 = 0.f;
       for (int d = 0; d < D; ++d) {
-        const float c = t.cx[d][q];
-        const float gap = std::max(std::max(glo[d] - c, c - ghi[d]), 0.f);
+        const float c = nd.c[d];
+        const float gap = std::max(std::max(g.lo[d] - c, c - g.hi[d]), 0.f);
         dmin2 += gap * gap;
       }
-      if (t.size2[q] < theta2 * dmin2) {
-        float c[D];
-        for (int d = 0; d < D; ++d) c[d] = t.cx[d][q];
-        list.add(c, t.mass[q]);
+      if (nd.size2 < theta2 * dmin2) {
+        list.add(nd.c, nd.mass);
         continue;
       }
     }
-    if (t.child_count[q] == 0) {
-      for (int32_t s = t.begin[q]; s < t.end[q]; ++s) {
-        float p[D];
-        for (int d = 0; d < D; ++d) p[d] = t.px[d][size_t(s)];
-        list.add(p, 1.f);
-      }
+    if (nd.child_count == 0) {
+      list.add_range(t.px, nd.begin, nd.end);
     } else {
-      for (int32_t c = t.first_child[q] + t.child_count[q] - 1; c >= t.first_child[q]; --c) stack.push_back(c);
+      for (int32_t c = nd.first_child + nd.child_count - 1; c >= nd.first_child; --c) stack.push_back(c);
     }
   }
   list.pad();
@@ -244,10 +335,10 @@ void build_list(const Tree<D>& t, int32_t group, float theta2, InteractionList<D
 
 // Sum over the list of m w and m w t (y_i - x) for one target point; lanes keep the order fixed.
 template <int D, Kernel K>
-inline void apply_list(const InteractionList<D>& list, const float* yi, float inv_dof, float half_exponent,
-                       double& z_out, double* f_out) {
+__attribute__((always_inline)) inline void apply_list(const InteractionList<D>& list, const float* yi, float inv_dof,
+                                                      float half_exponent, double& z_out, double* f_out) {
   float z[kLanes] = {}, f[D][kLanes] = {};
-  const size_t len = list.m.size();
+  const size_t len = list.size;
   const float* xs[D];
   for (int d = 0; d < D; ++d) xs[d] = list.x[d].data();
   const float* ms = list.m.data();
@@ -273,6 +364,36 @@ inline void apply_list(const InteractionList<D>& list, const float* yi, float in
     for (int l = 0; l < kLanes; ++l) s += double(f[d][l]);
     f_out[d] = s;
   }
+}
+
+// All points of one group against its list. Compiled twice (AVX2 and baseline) and chosen at run
+// time; both do the same IEEE operations lane by lane (no contraction), so results are identical.
+template <int D, Kernel K>
+__attribute__((always_inline)) inline double apply_group_body(const Tree<D>& t, const Node<D>& g,
+                                                              const InteractionList<D>& list, float inv_dof,
+                                                              float half, Points& repulsion) {
+  double z = 0.0;
+  for (int32_t s = g.begin; s < g.end; ++s) {
+    float yi[D];
+    for (int d = 0; d < D; ++d) yi[d] = t.px[d][size_t(s)];
+    double zi, f[D];
+    apply_list<D, K>(list, yi, inv_dof, half, zi, f);
+    z += zi - 1.0;  // the point itself is in its own near list with w = 1 and zero force
+    const Eigen::Index item = t.order[size_t(s)];
+    for (int d = 0; d < D; ++d) repulsion(item, d) = f[d];
+  }
+  return z;
+}
+template <int D, Kernel K>
+__attribute__((target("avx2"))) double apply_group_avx2(const Tree<D>& t, const Node<D>& g,
+                                                        const InteractionList<D>& list, float inv_dof, float half,
+                                                        Points& repulsion) {
+  return apply_group_body<D, K>(t, g, list, inv_dof, half, repulsion);
+}
+template <int D, Kernel K>
+double apply_group_plain(const Tree<D>& t, const Node<D>& g, const InteractionList<D>& list, float inv_dof,
+                         float half, Points& repulsion) {
+  return apply_group_body<D, K>(t, g, list, inv_dof, half, repulsion);
 }
 
 }  // namespace
@@ -304,9 +425,12 @@ struct NeighbourTerm::Impl {
     std::vector<double> partial(chunks, 0.0);
     const double inv_dof = 1.0 / options.dof;
     const SparseAffinities& P = *p;
+    const bool avx2 = have_avx2();
     parallel_for(chunks, options.threads, [&](size_t c) {
-      double s = 0.0;
-      for (size_t i = c * kRowChunk; i < std::min(size_t(n), (c + 1) * kRowChunk); ++i) {
+      const size_t r0 = c * kRowChunk, r1 = std::min(size_t(n), (c + 1) * kRowChunk);
+      const int64_t e0 = P.row_ptr[r0];
+      std::vector<double> us(size_t(P.row_ptr[r1] - e0));
+      for (size_t i = r0; i < r1; ++i) {
         double f[3] = {0, 0, 0};
         const double* yi = &y(Eigen::Index(i), 0);
         for (int64_t e = P.row_ptr[i]; e < P.row_ptr[i + 1]; ++e) {
@@ -320,11 +444,12 @@ struct NeighbourTerm::Impl {
           const double pv = P.val[size_t(e)];
           const double pt = pv / (1.0 + u);
           for (Eigen::Index d = 0; d < dims; ++d) f[d] += pt * diff[d];
-          s += pv * std::log1p(u);
+          us[size_t(e - e0)] = u;
         }
         for (Eigen::Index d = 0; d < dims; ++d) attraction(Eigen::Index(i), d) = f[d];
       }
-      partial[c] = s;
+      partial[c] = avx2 ? sum_p_log1p_avx2(&P.val[size_t(e0)], us.data(), us.size())
+                        : sum_p_log1p_plain(&P.val[size_t(e0)], us.data(), us.size());
     });
     double total = 0.0;
     for (double v : partial) total += v;
@@ -366,32 +491,26 @@ struct NeighbourTerm::Impl {
 
   template <int D, Kernel K>
   double repel_tree(const Points& y, Tree<D>& t) {
-    constexpr size_t kLeafSize = 16;
-    constexpr size_t kGroupsPerChunk = 8;
-    build_tree<D>(y, kLeafSize, t);
+    constexpr size_t kLeafSize = 8, kGroupSize = 64, kGroupsPerChunk = 4;
+    build_tree<D>(y, kLeafSize, kGroupSize, t);
     const Eigen::Index n = y.rows();
     repulsion.setZero(n, D);
-    const size_t groups = t.leaves.size();
+    const size_t groups = t.groups.size();
     const size_t chunks = (groups + kGroupsPerChunk - 1) / kGroupsPerChunk;
     std::vector<double> partial(chunks, 0.0);
     const float theta2 = float(options.theta * options.theta);
     const float inv_dof = float(1.0 / options.dof), half = float((options.dof + 1.0) / 2.0);
+    const bool avx2 = have_avx2();
     parallel_for(chunks, options.threads, [&](size_t c) {
       InteractionList<D> list;
       std::vector<int32_t> stack;
       double z = 0.0;
       for (size_t g = c * kGroupsPerChunk; g < std::min(groups, (c + 1) * kGroupsPerChunk); ++g) {
-        const int32_t leaf = t.leaves[g];
-        build_list<D>(t, leaf, theta2, list, stack);
-        for (int32_t s = t.begin[size_t(leaf)]; s < t.end[size_t(leaf)]; ++s) {
-          float yi[D];
-          for (int d = 0; d < D; ++d) yi[d] = t.px[d][size_t(s)];
-          double zi, f[D];
-          apply_list<D, K>(list, yi, inv_dof, half, zi, f);
-          z += zi - 1.0;  // the point itself is in its own near list with w = 1 and zero force
-          const Eigen::Index item = t.order[size_t(s)];
-          for (int d = 0; d < D; ++d) repulsion(item, d) = f[d];
-        }
+        const int32_t group = t.groups[g];
+        build_list<D>(t, group, theta2, list, stack);
+        const Node<D>& nd = t.nodes[size_t(group)];
+        z += avx2 ? apply_group_avx2<D, K>(t, nd, list, inv_dof, half, repulsion)
+                  : apply_group_plain<D, K>(t, nd, list, inv_dof, half, repulsion);
       }
       partial[c] = z;
     });

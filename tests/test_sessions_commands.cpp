@@ -174,6 +174,22 @@ TEST_CASE("sessions: kith export writes the layout as CSV and JSON") {
   CHECK(doc["items"][7]["z"].get<double>() == doctest::Approx(map(7, 2)).epsilon(1e-8));
   CHECK(doc["items"][7]["group"].is_number_integer());
 
+  // A picture of the same map: a PNG of the asked size (width and height are IHDR bytes 16..23).
+  kith::SessionStore::open(session)->set_pin(4, {0, 0, 0});
+  r = kith_run("export " + session + " --picture " + dir + "/map.png --size 320x200");
+  CAPTURE(r.output);
+  REQUIRE(r.code == 0);
+  const std::string png = kith::test::file_bytes(dir + "/map.png");
+  REQUIRE(png.size() > 24);
+  CHECK(png.substr(1, 3) == "PNG");
+  auto be32 = [&](size_t at) {
+    return (uint32_t(uint8_t(png[at])) << 24) | (uint32_t(uint8_t(png[at + 1])) << 16) |
+           (uint32_t(uint8_t(png[at + 2])) << 8) | uint32_t(uint8_t(png[at + 3]));
+  };
+  CHECK(be32(16) == 320);
+  CHECK(be32(20) == 200);
+  CHECK(kith_run("export " + session + " --picture " + dir + "/m.png --size 3x3").code == 2);
+
   // Exports never overwrite a session, and the session is only read (it may be open elsewhere).
   auto open_elsewhere = kith::SessionStore::open(session);
   const std::string other = dir + "/other.kith";

@@ -14,6 +14,7 @@
 #include "solver/session_store.h"
 #include "solver/suspects.h"
 #include "viewer/commands.h"
+#include "viewer/offscreen_render.h"
 #include "viewer/session_cli.h"
 #if __has_include("solver/judgment_io.h")
 #include "solver/judgment_io.h"
@@ -26,7 +27,7 @@ namespace {
 const char* const kUsage =
     "usage: kith export SESSION [--layout out.csv|out.json] [--judgments out.csv] [--picture out.png]\n"
     "                           [--flat out.csv] [--people names|codes|leave-out] [--include-retracted]\n"
-    "                           [--tag COLUMN]\n"
+    "                           [--tag COLUMN] [--size WxH]\n"
     "\n"
     "Writes what a session holds for use elsewhere. Several exports may be given at once. The\n"
     "session is only read (it may be open in a window at the same time).\n"
@@ -37,7 +38,8 @@ const char* const kUsage =
     "                        suspect score (0: the item's neighbours share its tag, 1: none do).\n"
     "                        CSV, or JSON when FILE ends in .json\n"
     "  --judgments FILE      every judgment as CSV: anchor,nearer,farther,person,time,kind,weight by id\n"
-    "  --picture FILE        a PNG of the map\n"
+    "  --picture FILE        a PNG of the map from the last checkpoint, pins marked\n"
+    "  --size WxH            size of --picture in pixels (default: 1280x800)\n"
     "  --flat FILE           a 2-D arrangement (for print or a slide): the same blended objective\n"
     "                        run in 2-D, started from the 3-D map; CSV like --layout without z\n"
     "\n"
@@ -173,7 +175,7 @@ std::string layout_json(const Collection& c, const Points& map, const LayoutExtr
 int cmd_export(const Args& args) {
   session_cli::Parsed p;
   const std::string error = session_cli::parse(
-      args, {"--layout", "--judgments", "--picture", "--flat", "--people", "--tag"}, {"--include-retracted"}, &p);
+      args, {"--layout", "--judgments", "--picture", "--flat", "--people", "--tag", "--size"}, {"--include-retracted"}, &p);
   if (p.help) {
     std::fputs(kUsage, stdout);
     return kExitOk;
@@ -198,7 +200,6 @@ int cmd_export(const Args& args) {
 #ifndef KITH_HAVE_JUDGMENT_IO
   if (p.has("--judgments")) return usage_error("--judgments: not available in this build yet");
 #endif
-  if (p.has("--picture")) return usage_error("--picture: not available in this build yet");
   if (p.has("--flat")) return usage_error("--flat: not available in this build yet");
 
   try {
@@ -231,6 +232,33 @@ int cmd_export(const Args& args) {
       }
       std::printf("%s: %zu items, map of iteration %llu\n", out.c_str(), c.size(),
                   static_cast<unsigned long long>(checkpoint->iteration));
+    }
+
+    if (p.has("--picture")) {
+      const auto checkpoint = store->last_checkpoint();
+      if (!checkpoint) {
+        std::fprintf(stderr, "kith export: %s has no map yet: open it (kith open %s) and let the map settle first\n",
+                     path.c_str(), path.c_str());
+        return kExitBadInput;
+      }
+      RenderOptions r;
+      if (p.has("--size")) {
+        int w = 0, h = 0;
+        if (std::sscanf(p.value("--size").c_str(), "%dx%d", &w, &h) != 2 || w < 16 || h < 16 || w > 8192 || h > 8192)
+          return usage_error("--size expects WxH between 16 and 8192, e.g. 1600x1000");
+        r.width = w;
+        r.height = h;
+      }
+      r.pinned.assign(c.size(), 0);
+      for (const auto& pin : store->pins()) r.pinned[size_t(pin.item)] = 1;
+      r.title = std::filesystem::path(path).filename().string();
+      const std::string out = p.value("--picture");
+      const std::string problem = render_map_png(c, checkpoint->positions, r, out);
+      if (!problem.empty()) {
+        std::fprintf(stderr, "kith export: --picture: %s\n", problem.c_str());
+        return kExitBadInput;
+      }
+      std::printf("%s: %dx%d picture of the map\n", out.c_str(), r.width, r.height);
     }
 
 #ifdef KITH_HAVE_JUDGMENT_IO

@@ -15,7 +15,6 @@ int pending(const char* name) {
 
 #define KITH_PENDING(NAME) \
   __attribute__((weak)) int cmd_##NAME(const Args&) { return pending(#NAME); }
-KITH_PENDING(fit)
 KITH_PENDING(demo)
 KITH_PENDING(report)
 
