@@ -325,7 +325,7 @@ void MapView::rebuild_points() {
 void MapView::rebuild_grid() {
   std::vector<LineVertex> g;
   const glm::vec3 size = hi_ - lo_;
-  const float extent = std::max({size.x, size.z, 1e-3f}) * 1.3f;
+  const float extent = std::max({size.x, size.z, 1e-7f}) * 1.3f;
   // A round step: 1, 2 or 5 times a power of ten, about 12 cells across.
   const float raw = extent / 12.f;
   const float p10 = std::pow(10.f, std::floor(std::log10(raw)));
@@ -490,7 +490,7 @@ FrameParams MapView::frame_params() const {
   f.ink = glm::vec3(palette_.ink.r, palette_.ink.g, palette_.ink.b);
   f.reference_distance = camera_.pose().distance;
   f.point_scale = 1.f;
-  const float radius = std::max(glm::length(hi_ - lo_) * 0.5f, 1e-3f);
+  const float radius = std::max(glm::length(hi_ - lo_) * 0.5f, 1e-7f);
   const float centre_depth = glm::dot((lo_ + hi_) * 0.5f - camera_.eye(), camera_.forward());
   f.fade_near = centre_depth - radius * 0.8f;
   f.fade_far = centre_depth + radius;
