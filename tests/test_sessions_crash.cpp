@@ -208,7 +208,7 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
   std::mt19937 rng(77);
   std::uniform_int_distribution<int> item(0, n_items - 1), delay_us(2000, 150000);
   const int rounds = 15;
-  int kills = 0, losses = 0, failed_checks = 0;
+  int kills = 0, finished = 0, losses = 0, failed_checks = 0;
   size_t acknowledged = 0;
   std::map<int64_t, std::string> all_acks;  // id -> "a,n,f" as printed
   for (int round = 0; round < rounds; ++round) {
@@ -241,6 +241,8 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
     int status = 0;
     ::waitpid(pid, &status, 0);
     if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
+    // A round whose child finished its adds before the kill landed is a clean run, not a failure.
+    if (WIFEXITED(status) && WEXITSTATUS(status) == 0) ++finished;
     std::string out;
     char buf[4096];
     ssize_t got;
@@ -277,7 +279,8 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
   std::printf("sessions crash test (kith judge): %d kills, %zu judgments reported added, %d lost, %d failed "
               "integrity checks\n",
               kills, acknowledged, losses, failed_checks);
-  CHECK(kills == rounds);
+  CHECK(kills + finished == rounds);  // every child was either killed or finished cleanly
+  CHECK(kills >= rounds / 2);
   CHECK(acknowledged > 0);
   CHECK(losses == 0);
   CHECK(failed_checks == 0);
