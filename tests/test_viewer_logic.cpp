@@ -3,7 +3,10 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <map>
 #include <random>
+#include <set>
+#include <tuple>
 
 #include "viewer/camera.h"
 #include "viewer/input_script.h"
@@ -394,5 +397,90 @@ TEST_CASE("viewer input script: parses events and reports the line of a mistake"
                        std::runtime_error);
 }
 
+}  // namespace
+}  // namespace kith
+
+namespace kith {
+namespace {
+TEST_CASE("viewer camera: fit_points frames every point, and tightly (some point near the edge)") {
+  std::mt19937_64 rng(21);
+  std::normal_distribution<float> g(0.f, 3.f);
+  std::vector<glm::vec3> pts(800);
+  for (auto& p : pts) p = glm::vec3(g(rng) * 2.f, g(rng), g(rng) + 5.f);
+  for (float yaw : {0.f, 0.9f, 2.2f}) {
+    Camera cam;
+    cam.set_viewport(1200, 700);
+    CameraPose p;
+    p.yaw = yaw;
+    cam.set_pose(p);
+    cam.fit_points(pts, false, 0.05f);
+    float edge = 0.f;  // the largest |offset from the centre| as a fraction of the half-size
+    for (const auto& q : pts) {
+      const Projected s = cam.project(q);
+      REQUIRE(s.visible);
+      edge = std::max({edge, std::abs(s.screen.x - 600.f) / 600.f, std::abs(s.screen.y - 350.f) / 350.f});
+    }
+    CHECK(edge <= 1.f);
+    CHECK(edge >= 0.85f);  // tight: the farthest point is near the 5 % margin
+  }
+}
+}  // namespace
+}  // namespace kith
+
+namespace kith {
+namespace {
+TEST_CASE("viewer scene: level of detail draws a sample while the view moves, everything at rest") {
+  const Collection c = synthetic_collection(5000, 5);
+  MockRenderer renderer;
+  StillFeed feed(c.ids, rough_positions(c));
+  MapView view(c, renderer);
+  ViewOptions o;
+  o.moving_budget = 1000;
+  view.set_options(o);
+  view.set_snapshot(feed.latest());
+  view.frame(1.f / 60, 800, 600);
+  view.camera().orbit(40, 0);
+  view.frame(1.f / 60, 800, 600);
+  CHECK(view.reduced_detail());
+  CHECK(renderer.last_frame.point_budget == 1000);
+  REQUIRE(renderer.points.size() == 5000);
+  // The sample drawn (the buffer's first 1000) spreads over every group in about the right shares.
+  std::map<uint32_t, int> per_colour;
+  for (size_t k = 0; k < 1000; ++k) ++per_colour[renderer.points[k].rgba];
+  CHECK(per_colour.size() == 5);
+  for (const auto& [colour, count] : per_colour) CHECK(std::abs(count - 200) < 60);  // binomial sd ~13
+  for (int k = 0; k < 30; ++k) view.frame(1.f / 60, 800, 600);  // half a second at rest
+  CHECK_FALSE(view.reduced_detail());
+  CHECK(renderer.last_frame.point_budget == 0);
+  // Every item is in the buffer exactly once.
+  std::set<std::tuple<float, float, float>> seen;
+  for (const auto& v : renderer.points) seen.insert({v.position.x, v.position.y, v.position.z});
+  CHECK(seen.size() == 5000);
+}
+}  // namespace
+}  // namespace kith
+
+namespace kith {
+namespace {
+TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow and grows back") {
+  const Collection c = synthetic_collection(60000, 3);
+  MockRenderer renderer;
+  StillFeed feed(c.ids, rough_positions(c));
+  MapView view(c, renderer);
+  view.set_snapshot(feed.latest());
+  auto moving_frame = [&](float seconds) {
+    view.camera().orbit(5, 0);
+    view.frame(1.f / 60, 800, 600);
+    view.note_frame_time(seconds);
+  };
+  moving_frame(0.02f);
+  REQUIRE(view.reduced_detail());
+  CHECK(view.detail_budget() == 40000);
+  for (int k = 0; k < 40; ++k) moving_frame(0.2f);  // 5 fps: far too slow
+  CHECK(view.detail_budget() == 5000);                // down to the floor
+  for (int k = 0; k < 80; ++k) moving_frame(0.01f);  // 100 fps: room to spare
+  CHECK(view.detail_budget() == 40000);               // back up to the cap, never beyond
+  CHECK(renderer.last_frame.point_budget == 40000);
+}
 }  // namespace
 }  // namespace kith

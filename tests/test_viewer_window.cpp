@@ -183,3 +183,49 @@ TEST_CASE("viewer render: kith render with DISPLAY unset writes a PNG of the ask
 }
 
 }  // namespace
+
+#include "solver/session_store.h"
+#include "viewer/synthetic_collection.h"
+
+namespace {
+
+TEST_CASE("viewer window: a session opens with its pins, and a pin made in the window is written to it") {
+  if (!have_xvfb()) {
+    MESSAGE("xvfb-run not installed: window test skipped");
+    return;
+  }
+  const std::string dir = kith::test::temp_dir("viewer-session");
+  const std::string path = dir + "/s.kith";
+  {
+    const kith::Collection c = kith::synthetic_collection(200, 4);
+    auto store = kith::SessionStore::create(path, c);
+    store->set_pin(3, {1.0, 2.0, 3.0});  // a pin from an earlier sitting
+  }
+  write(dir + "/script.txt",
+        "30 move @s00010\n30 press left\n32 move +10 +0\n34 move +30 -10\n36 move +30 -10\n38 release left\n"
+        "40 key P\n42 wait-settle 3\n50 dump " + dir + "/state.json\n51 quit\n");
+  const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open " + path + " --frames 200 --script " + dir +
+                          "/script.txt > " + dir + "/log.txt 2>&1";
+  REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+  const auto state = load_json(dir + "/state.json");
+  bool old_pin = false;
+  for (const auto& p : state["pinned"]) old_pin = old_pin || p == "s00003";
+  CHECK(old_pin);  // the stored pin reached the map
+  REQUIRE(state.contains("drop"));
+  const std::string moved = state["drop"]["item"];
+  int moved_index = -1;
+  for (size_t i = 0; i < state["items"].size(); ++i)
+    if (state["items"][i]["id"] == moved) moved_index = int(i);
+  auto store = kith::SessionStore::open(path);
+  bool found = false;
+  for (const auto& p : store->pins()) {
+    if (p.item != moved_index) continue;
+    found = true;
+    REQUIRE(p.position.size() == 3);
+    for (int k = 0; k < 3; ++k) CHECK(p.position[k] == doctest::Approx(state["drop"]["position"][k].get<double>()));
+  }
+  CHECK_MESSAGE(found, "the pin of " << moved << " was not written to the session");
+  CHECK(store->checkpoint_count() >= 1);  // the map was saved when the window closed
+}
+
+}  // namespace

@@ -31,8 +31,13 @@
 #include "viewer/gl_renderer.h"
 #include "viewer/input_script.h"
 #include "viewer/offscreen_render.h"
+#include "viewer/panel_structure.h"
 #include "viewer/picking.h"
 #include "viewer/ui_style.h"
+#if __has_include("solver/teach.h")
+#include "solver/teach.h"
+#define KITH_HAVE_TEACH 1
+#endif
 
 namespace kith {
 
@@ -101,6 +106,8 @@ struct App {
   std::unique_ptr<GlRenderer> renderer;
   std::unique_ptr<MapView> view;
   std::unique_ptr<MapInteraction> interaction;
+  std::unique_ptr<StructurePanel> structure;  // suspects, groups, neighbours (key S)
+  bool show_structure = false;
   std::unordered_map<std::string, int> index_of_id;
 
   // Input.
@@ -362,6 +369,7 @@ void App::handle_key(int key, int mods) {
       apply_ui_style(view->options().dark);
       break;
     case GLFW_KEY_TAB: show_panels = !show_panels; break;
+    case GLFW_KEY_S: show_structure = !show_structure, show_panels = true; break;
     case GLFW_KEY_H:
     case GLFW_KEY_F1: show_help = !show_help; break;
     case GLFW_KEY_SLASH:
@@ -435,6 +443,7 @@ const char* kKeys[][2] = {
     {"[ / ]", "smaller / larger discs"},
     {"N", "night or paper ground"},
     {"Tab", "hide or show the panels"},
+    {"S", "structure: suspects, groups, neighbour comparison"},
     {"F12", "save the view as PNG"},
     {"H, F1, ?", "this help"},
 };
@@ -468,6 +477,7 @@ void App::panels() {
         apply_ui_style(o.dark);
       }
       if (ImGui::MenuItem("Next colouring", "C")) cycle_colour();
+      ImGui::MenuItem("Structure", "S", &show_structure);
       if (ImGui::MenuItem("Panels", "Tab", &show_panels)) {
       }
       ImGui::EndMenu();
@@ -505,6 +515,7 @@ void App::panels() {
   ImGui::SetNextWindowPos(ImVec2(10, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.f, 1.f));
   ImGui::SetNextWindowSizeConstraints(ImVec2(420, 0), ImVec2(420, io.DisplaySize.y * 0.5f));
   panel_selection();
+  if (show_structure) structure->draw(&show_structure);
 }
 
 void App::panel_map() {
@@ -888,8 +899,16 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
     app.view->auto_rotate = options.auto_rotate;
     app.view->set_judgments(std::move(judgments));
     app.interaction = std::make_unique<MapInteraction>(*app.view, feed);
+    app.structure = std::make_unique<StructurePanel>(collection, *app.view);
     app.interaction->teach = app.hooks.teach;
-    app.interaction->on_post = app.hooks.on_post;
+    app.interaction->on_post = [&app](const CommandBody& body, uint64_t seq) {
+      if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
+        std::vector<Judgment> all = app.view->judgments();
+        all.push_back(a->judgment);
+        app.view->set_judgments(std::move(all));
+      }
+      if (app.hooks.on_post) app.hooks.on_post(body, seq);
+    };
     app.show_panels = options.panels;
     app.blend = float(options.blend);
     app.perplexity = float(options.perplexity);
@@ -906,9 +925,11 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
     while (!glfwWindowShouldClose(app.window) && !app.quit) {
       glfwPollEvents();
       const auto now = Clock::now();
-      const float dt = std::min(std::chrono::duration<float>(now - last).count(), 0.1f);
+      const float raw_dt = std::chrono::duration<float>(now - last).count();
+      const float dt = std::min(raw_dt, 0.1f);  // a stall must not fling the camera
       last = now;
-      app.frame_seconds.push_back(dt);
+      app.frame_seconds.push_back(raw_dt);
+      if (app.frame > 0) app.view->note_frame_time(raw_dt);
       if (app.frame % 15 == 0 && app.frame_seconds.size() > 1) {
         const size_t n = std::min<size_t>(60, app.frame_seconds.size() - 1);
         double sum = 0;
@@ -920,6 +941,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       if (auto s = feed.latest(); s && s->generation != app.last_generation) {
         app.last_generation = s->generation;
         app.view->set_snapshot(s);
+        if (app.hooks.on_snapshot) app.hooks.on_snapshot(s);
         if (now - app.last_health > std::chrono::milliseconds(250)) {
           app.last_health = now;
           app.kl.add(float(s->health.kl));
@@ -993,6 +1015,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
   }
 
   // ---- tear-down, in reverse ------------------------------------------------------
+  app.structure.reset();
   app.interaction.reset();
   app.view.reset();
   app.renderer.reset();
@@ -1004,10 +1027,22 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
   return exit_code;
 }
 
+WindowHooks default_window_hooks() {
+  WindowHooks h;
+#ifdef KITH_HAVE_TEACH
+  h.teach = [](const Snapshot& s, int item, const glm::vec3& from, const glm::vec3& to) {
+    const double f[3] = {from.x, from.y, from.z}, t[3] = {to.x, to.y, to.z};
+    return teach_from_drag(s.positions, int32_t(item), f, t, "", double(std::time(nullptr)));
+  };
+#endif
+  return h;
+}
+
 int run_window(const Collection& collection, const EngineOptions& engine, const WindowOptions& options,
                std::vector<Judgment> judgments, WindowHooks hooks) {
   std::unique_ptr<MapFeed> feed = make_engine_feed(collection, engine, judgments);
   if (!feed) feed = std::make_unique<StillFeed>(collection.ids, rough_positions(collection));
+  if (!hooks.teach) hooks.teach = default_window_hooks().teach;
   WindowOptions o = options;
   o.blend = engine.blend;
   o.perplexity = engine.perplexity;

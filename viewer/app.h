@@ -39,7 +39,11 @@ struct WindowOptions {
 struct WindowHooks {
   TeachHook teach;                                                 // drag -> judgments
   std::function<void(const CommandBody&, uint64_t seq)> on_post;   // every command the window posts
+  std::function<void(const std::shared_ptr<const Snapshot>&)> on_snapshot;  // each new snapshot shown
 };
+
+// The hooks every window gets unless told otherwise: teach through solver/teach.h when built in.
+WindowHooks default_window_hooks();
 
 // Runs the window until closed (or options.frames). Returns a kith exit code; prints problems.
 int run_window(const Collection& collection, MapFeed& feed, const WindowOptions& options,

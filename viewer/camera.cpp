@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstdio>
 #include <glm/gtc/matrix_transform.hpp>
+#include <limits>
 #include <sstream>
 #include <vector>
 
@@ -63,6 +64,35 @@ void Camera::fit(const glm::vec3& lo, const glm::vec3& hi, bool smooth) {
   const float half_fov_x = std::atan(std::tan(half_fov_y) * float(width_) / float(height_));
   const float half = std::min(half_fov_x, half_fov_y);
   g.distance = radius / std::sin(half) * 1.02f;
+  if (smooth)
+    glide_to(g);
+  else
+    set_pose(g);
+}
+
+void Camera::fit_points(const std::vector<glm::vec3>& points, bool smooth, float margin) {
+  if (points.empty()) return;
+  glm::vec3 lo(std::numeric_limits<float>::max()), hi(-std::numeric_limits<float>::max());
+  for (const auto& p : points) lo = glm::min(lo, p), hi = glm::max(hi, p);
+  CameraPose g = goal_;
+  g.target = (lo + hi) * 0.5f;
+  // For an offset o = (x, y, z) in the view basis (z away from the eye), the point fits when
+  // |x| <= (d + z) tan(half_x) and |y| <= (d + z) tan(half_y): d >= |x| / tan(half_x) - z, etc.
+  const glm::vec3 eye_dir(std::cos(g.pitch) * std::sin(g.yaw), std::sin(g.pitch), std::cos(g.pitch) * std::cos(g.yaw));
+  const glm::vec3 f = -eye_dir;
+  const glm::vec3 right = glm::normalize(glm::cross(f, glm::vec3(0, 1, 0)));
+  const glm::vec3 up = glm::cross(right, f);
+  const float tan_y = std::tan(glm::radians(kFovYDegrees) / 2.f) * (1.f - margin);
+  const float tan_x = std::tan(glm::radians(kFovYDegrees) / 2.f) * float(width_) / float(height_) * (1.f - margin);
+  float d = 1e-3f;
+  for (const auto& p : points) {
+    const glm::vec3 o = p - g.target;
+    const float x = glm::dot(o, right), y = glm::dot(o, up), z = glm::dot(o, f);
+    d = std::max({d, std::abs(x) / tan_x - z, std::abs(y) / tan_y - z});
+  }
+  // Keep the eye outside the cloud so the near plane does not cut it.
+  d = std::max(d, glm::length(hi - lo) * 0.5f * 1.05f);
+  g.distance = d;
   if (smooth)
     glide_to(g);
   else

@@ -10,6 +10,7 @@
 #include <glm/glm.hpp>
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace kith {
 
@@ -50,6 +51,9 @@ class Camera {
 
   // Goals framing a box or a set of points (a sphere around them fits the view).
   void fit(const glm::vec3& lo, const glm::vec3& hi, bool smooth = true);
+  // Tighter: the nearest distance, along the current view direction, at which every point
+  // projects inside the view with `margin` (a fraction of the half-width) to spare; target = box centre.
+  void fit_points(const std::vector<glm::vec3>& points, bool smooth = true, float margin = 0.06f);
 
   void update(float dt_seconds);
 

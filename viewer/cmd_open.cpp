@@ -1,10 +1,12 @@
 // kith open: the live map of a collection in a window.
 #include <cstdio>
+#include <filesystem>
 
 #include "viewer/app.h"
 #include "viewer/commands.h"
 #include "viewer/map_source.h"
 #include "viewer/offscreen_render.h"
+#include "viewer/session_link.h"
 
 namespace kith {
 
@@ -22,8 +24,54 @@ const char* kHelp =
     "  --colour COLUMN     colour by this tag column (default: the first)\n"
     "  --dark              the night ground instead of paper\n"
     "  --turn              start with the slow turn on (for a shared screen)\n"
-    "  --no-panels         start with the panels hidden (Tab shows them)\n";
+    "  --no-panels         start with the panels hidden (Tab shows them)\n"
+    "A session file (.kith) opens with its own settings, judgments, pins and last map, and\n"
+    "everything done in the window is written to it at once.\n";
 }  // namespace
+
+bool choose_colour(const Collection& c, const std::string& colour, WindowOptions* wo) {
+  if (colour.empty()) return true;
+  for (size_t t = 0; t < c.tags.size(); ++t)
+    if (c.tags[t].name == colour) {
+      wo->view.colour_by = {ColourKind::kTag, int(t)};
+      return true;
+    }
+  std::fprintf(stderr, "kith open: --colour: no tag column named '%s'\n", colour.c_str());
+  return false;
+}
+
+// A session: its collection, settings, judgments, pins and last map; everything done is recorded.
+int open_session(const std::string& path, WindowOptions wo, const std::string& colour) {
+  if (!display_available()) {
+    std::fprintf(stderr, "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
+                 "or run the window under xvfb-run.\n", path.c_str());
+    return kExitUsage;
+  }
+  std::unique_ptr<SessionLink> link;
+  try {
+    link = std::make_unique<SessionLink>(path);
+  } catch (const std::exception& e) {
+    std::fprintf(stderr, "kith open: %s\n", e.what());
+    return kExitBadInput;
+  }
+  if (!choose_colour(link->collection(), colour, &wo)) return kExitUsage;
+  const EngineOptions eo = link->engine_options();
+  std::unique_ptr<MapFeed> feed = make_engine_feed(link->collection(), eo, link->judgments(), link->start());
+  if (!feed) {
+    Points start = link->start();
+    if (start.rows() == 0) start = rough_positions(link->collection());
+    feed = std::make_unique<StillFeed>(link->collection().ids, start);
+  }
+  link->post_pins(*feed);
+  wo.title = std::filesystem::path(path).filename().string();
+  wo.session_state = link->title_state();
+  wo.blend = eo.blend;
+  wo.perplexity = eo.perplexity;
+  wo.theta = eo.theta;
+  const int code = run_window(link->collection(), *feed, wo, link->judgments(), link->hooks(default_window_hooks()));
+  if (auto s = feed->latest()) link->final_checkpoint(*s);
+  return code;
+}
 
 int cmd_open(const Args& args) {
   FlagReader flags(args, "open");
@@ -74,6 +122,8 @@ int cmd_open(const Args& args) {
     return kExitUsage;
   }
 #endif
+  if (!positional.empty() && std::filesystem::path(positional[0]).extension() == ".kith")
+    return open_session(positional[0], wo, colour);
   int code = kExitOk;
   auto collection = load_items_or_report("open", positional.empty() ? "" : positional[0], size_t(generate), &code);
   if (!collection) return code;

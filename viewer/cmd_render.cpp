@@ -1,4 +1,5 @@
 // kith render: a PNG of a collection's map with no display at all (EGL surfaceless, llvmpipe).
+#include <algorithm>
 #include <chrono>
 #include <cstdio>
 #include <thread>
@@ -17,7 +18,8 @@ const char* kHelp =
     "  -o, --output FILE      the PNG to write (required)\n"
     "  --size WxH             picture size in pixels (default: 1280x800)\n"
     "  --camera Y,P,D[,X,Y,Z] yaw and pitch in radians, distance, optional target point\n"
-    "                         (default: the whole map from a three-quarter view)\n"
+    "                         (default: the whole map from a three-quarter view; without X,Y,Z\n"
+    "                         the camera looks at the map's centre)\n"
     "  --colour COLUMN        colour by this tag column, or 'plain' (default: the first tag column)\n"
     "  --iterations N         optimization steps before drawing (default: 1000)\n"
     "  --select ID,ID,...     draw these items selected, with their picture cards\n"
@@ -43,6 +45,7 @@ int cmd_render(const Args& args) {
   if (auto v = flags.value("--camera")) {
     std::string error;
     ro.camera = Camera::parse(*v, &error);
+    ro.camera_at_centre = std::count(v->begin(), v->end(), ',') == 2;
     if (!ro.camera) {
       std::fprintf(stderr, "kith render: %s\n", error.c_str());
       return kExitUsage;

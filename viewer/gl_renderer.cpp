@@ -246,14 +246,17 @@ void GlRenderer::draw(const FrameParams& f) {
     glUniform1f(glGetUniformLocation(p, "u_fade_near"), f.fade_near);
     glUniform1f(glGetUniformLocation(p, "u_fade_far"), f.fade_far);
     glUniform1f(glGetUniformLocation(p, "u_fade_amount"), f.fade_amount);
+    glDisable(GL_BLEND);  // discs are opaque; blending would make llvmpipe read every covered pixel back
     glBindVertexArray(m.points.vao);
-    glDrawArrays(GL_POINTS, 0, m.points.count);
+    const GLsizei count = f.point_budget > 0 ? std::min<GLsizei>(m.points.count, GLsizei(f.point_budget)) : m.points.count;
+    glDrawArrays(GL_POINTS, 0, count);
     if (m.highlights.count) {
       glDisable(GL_DEPTH_TEST);
       glBindVertexArray(m.highlights.vao);
       glDrawArrays(GL_POINTS, 0, m.highlights.count);
       glEnable(GL_DEPTH_TEST);
     }
+    glEnable(GL_BLEND);
   }
   if (f.lines && m.lines.count) {
     set_camera(m.lines_program);

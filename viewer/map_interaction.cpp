@@ -1,6 +1,7 @@
 #include "viewer/map_interaction.h"
 
 #include <algorithm>
+#include <cstdio>
 
 #include "viewer/picking.h"
 
@@ -143,7 +144,13 @@ void MapInteraction::choose_release() {
 void MapInteraction::choose_teach() {
   if (state_ != State::kChoosing) return;
   if (teach && view_.snapshot()) {
-    for (Judgment& j : teach(*view_.snapshot(), drag_item_, drag_from_, drag_to_)) {
+    std::vector<Judgment> made;
+    try {
+      made = teach(*view_.snapshot(), drag_item_, drag_from_, drag_to_);
+    } catch (const std::exception& e) {
+      std::fprintf(stderr, "kith: teach: %s\n", e.what());
+    }
+    for (Judgment& j : made) {
       j.kind = JudgmentKind::kDrag;
       post(cmd::AddJudgment{j});
     }

@@ -6,6 +6,7 @@
 #include <cmath>
 #include <map>
 #include <numeric>
+#include <random>
 
 #include "viewer/picking.h"
 
@@ -75,6 +76,18 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
   if (first) fit_all(false);
   dirty_points_ = dirty_lines_ = true;
   if (options_.colour_by.kind == ColourKind::kDisplacement) dirty_colours_ = true;
+  map_still_seconds_ = 0.f;
+}
+
+void MapView::note_frame_time(float seconds) {
+  if (options_.moving_budget == 0 || !(seconds > 0.f)) return;
+  smoothed_frame_ = smoothed_frame_ == 0.f ? seconds : 0.8f * smoothed_frame_ + 0.2f * seconds;
+  if (!reduced_ && positions_.size() <= budget_) return;
+  // Scale the sample toward the frame-time target: the drawing cost is roughly linear in it.
+  const float ratio = std::clamp(options_.target_frame_seconds / smoothed_frame_, 0.7f, 1.15f);
+  const size_t floor = std::min<size_t>(5000, options_.moving_budget);
+  budget_ = std::clamp(size_t(float(budget_ == 0 ? options_.moving_budget : budget_) * ratio), floor,
+                       options_.moving_budget);
 }
 
 bool MapView::pinned(int item) const { return item >= 0 && size_t(item) < pinned_.size() && pinned_[item]; }
@@ -113,7 +126,10 @@ void MapView::update_bounds() {
 
 // ============================================================================ [camera]
 
-void MapView::fit_all(bool smooth) { camera_.fit(lo_, hi_, smooth); }
+void MapView::fit_all(bool smooth) {
+  if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
+  camera_.fit_points(positions_, smooth);
+}
 
 void MapView::focus_selection() {
   if (selection_.empty()) return fit_all(true);
@@ -125,7 +141,12 @@ void MapView::focus_selection() {
     }
   // A lone item: frame a neighbourhood a tenth of the map across.
   const glm::vec3 pad(std::max(glm::length(hi_ - lo_) * 0.05f, 1e-3f));
-  camera_.fit(lo - pad, hi + pad, true);
+  std::vector<glm::vec3> pts;
+  for (int i : selection_.items())
+    if (size_t(i) < positions_.size()) pts.push_back(positions_[i]);
+  pts.push_back(lo - pad);
+  pts.push_back(hi + pad);
+  camera_.fit_points(pts, true);
 }
 
 // ============================================================================ [pointing]
@@ -164,8 +185,29 @@ std::string MapView::colour_title() const {
     case ColourKind::kDisplacement: return "moved since opening";
     case ColourKind::kJudgments: return "judgments per item";
     case ColourKind::kPlain: return "items";
+    case ColourKind::kMeasure:
+    case ColourKind::kGroup: return external_title_;
   }
   return "";
+}
+
+void MapView::set_measure(const std::string& title, std::vector<float> values) {
+  external_title_ = title;
+  external_measure_ = std::move(values);
+  ViewOptions o = options_;
+  o.colour_by.kind = ColourKind::kMeasure;
+  set_options(o);
+  dirty_colours_ = true;
+}
+
+void MapView::set_groups(const std::string& title, std::vector<int> groups, std::vector<std::string> names) {
+  external_title_ = title;
+  external_groups_ = std::move(groups);
+  external_group_names_ = std::move(names);
+  ViewOptions o = options_;
+  o.colour_by.kind = ColourKind::kGroup;
+  set_options(o);
+  dirty_colours_ = true;
 }
 
 Rgb MapView::colour_of(int item) const {
@@ -216,6 +258,29 @@ void MapView::rebuild_colours() {
       std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
       legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
     }
+  } else if (by.kind == ColourKind::kMeasure && external_measure_.size() == n) {
+    float top = 1e-6f;
+    for (float v : external_measure_)
+      if (std::isfinite(v)) top = std::max(top, v);
+    for (size_t i = 0; i < n; ++i)
+      colours_[i] = std::isfinite(external_measure_[i]) ? palette_.ramp(external_measure_[i] / top) : palette_.muted;
+    char buf[64];
+    for (float t : {0.f, 0.5f, 1.f}) {
+      std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
+      legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
+    }
+  } else if (by.kind == ColourKind::kGroup && external_groups_.size() == n) {
+    std::vector<size_t> count(external_group_names_.size(), 0);
+    size_t none = 0;
+    for (size_t i = 0; i < n; ++i) {
+      const int g = external_groups_[i];
+      colours_[i] = palette_.category(g);  // -1: muted
+      if (g >= 0 && size_t(g) < count.size()) ++count[size_t(g)];
+      else ++none;
+    }
+    for (size_t g = 0; g < count.size(); ++g)
+      legend_.push_back({external_group_names_[g], palette_.category(int(g)), count[g], -1, ""});
+    if (none) legend_.push_back({"no group", palette_.muted, none, -1, ""});
   } else {
     legend_.push_back({"item", palette_.category(0), n, -1, ""});
   }
@@ -234,7 +299,14 @@ float MapView::auto_point_size() const {
 void MapView::rebuild_points() {
   std::vector<PointVertex> v(positions_.size()), highlights;
   const float size = options_.point_size > 0 ? options_.point_size : auto_point_size();
-  for (size_t i = 0; i < positions_.size(); ++i) {
+  if (draw_order_.size() != positions_.size()) {
+    draw_order_.resize(positions_.size());
+    std::iota(draw_order_.begin(), draw_order_.end(), 0);
+    std::mt19937 rng(12345);
+    std::shuffle(draw_order_.begin(), draw_order_.end(), rng);
+  }
+  for (size_t k = 0; k < positions_.size(); ++k) {
+    const size_t i = size_t(draw_order_[k]);
     const Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
     uint32_t flags = 0;
     if (selection_.contains(int(i))) flags |= kPointSelected;
@@ -242,8 +314,8 @@ void MapView::rebuild_points() {
     if (int(i) == hovered_) flags |= kPointHovered;
     if (int(i) == drag_item_) flags |= kPointDragged | kPointHovered;
     const float s = (flags & kPointPinned) ? std::max(size, 7.f) : size;
-    v[i] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
-    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[i]);
+    v[k] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
+    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[k]);
   }
   renderer_.set_points(v);
   renderer_.set_highlights(highlights);
@@ -426,6 +498,7 @@ FrameParams MapView::frame_params() const {
   f.grid = options_.grid;
   f.lines = options_.lines;
   f.cards = options_.cards;
+  f.point_budget = reduced_ ? budget_ : 0;
   return f;
 }
 
@@ -433,6 +506,15 @@ void MapView::frame(float dt, int width, int height) {
   camera_.set_viewport(width, height);
   if (auto_rotate && drag_item_ < 0) camera_.spin(rotate_speed * dt);
   camera_.update(dt);
+  const CameraPose& p = camera_.pose();
+  const bool moved = p.yaw != last_pose_.yaw || p.pitch != last_pose_.pitch || p.distance != last_pose_.distance ||
+                     p.target != last_pose_.target;
+  last_pose_ = p;
+  still_seconds_ = moved ? 0.f : still_seconds_ + dt;
+  map_still_seconds_ += dt;
+  if (budget_ == 0 || budget_ > options_.moving_budget) budget_ = options_.moving_budget;
+  const bool at_rest = still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f;
+  reduced_ = options_.moving_budget > 0 && positions_.size() > budget_ && !at_rest;
   if (dirty_colours_) rebuild_colours();
   if (dirty_grid_) rebuild_grid();
   if (dirty_points_ || last_hovered_drawn_ != hovered_) rebuild_points();

@@ -21,7 +21,9 @@
 
 namespace kith {
 
-enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain };
+// kMeasure and kGroup colour by values given from outside (set_measure / set_groups), e.g. the
+// structure panel's suspect scores, displacement from the reference map and groups.
+enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain, kMeasure, kGroup };
 
 struct ColourBy {
   ColourKind kind = ColourKind::kTag;  // (default: the first tag column, if any)
@@ -38,6 +40,11 @@ struct ViewOptions {
   int card_limit = 12;         // most cards drawn at once, so the frame rate holds (default: 12)
   float card_size = 96.f;      // card side in pixels (default: 96)
   bool dark = false;           // night ground instead of paper (default: off)
+  // Level of detail: while the view or the map moves, draw at most this many items (a fixed
+  // random sample, so the picture keeps its shape), fewer when frames take longer than
+  // target_frame_seconds; every item once both rest. 0 = always all (default: 40000)
+  size_t moving_budget = 40000;
+  float target_frame_seconds = 1.f / 30.f;  // (default: 30 fps)
   ColourBy colour_by;
   std::string IsValid() const;  // "" when valid, else what is wrong
 };
@@ -94,6 +101,10 @@ class MapView {
   const std::vector<LegendEntry>& legend() const { return legend_; }
   Rgb colour_of(int item) const;
   std::string colour_title() const;
+  // Colour by a measure (ramp from 0 to its largest value; NaN = muted) or by groups (-1 = muted,
+  // names[g] in the legend) and switch the colouring to it. N values each.
+  void set_measure(const std::string& title, std::vector<float> values);
+  void set_groups(const std::string& title, std::vector<int> groups, std::vector<std::string> names);
 
   // ---- nearest lists for the selection panel -----------------------------------
   std::vector<int> nearest_in_features(int item, int k) const;
@@ -106,6 +117,10 @@ class MapView {
   void frame(float dt, int width, int height);
   FrameParams frame_params() const;
   int frames_drawn() const { return frames_; }
+  bool reduced_detail() const { return reduced_; }  // the last frame drew a sample only
+  size_t detail_budget() const { return budget_; }
+  // The time the last whole frame took (window loop); adapts the level-of-detail budget.
+  void note_frame_time(float seconds);
 
  private:
   void rebuild_colours();
@@ -131,6 +146,10 @@ class MapView {
   bool have_bounds_ = false;
   glm::vec3 grid_lo_{0.f}, grid_hi_{0.f};
   std::vector<Rgb> colours_;
+  std::string external_title_;
+  std::vector<float> external_measure_;
+  std::vector<int> external_groups_;
+  std::vector<std::string> external_group_names_;
   std::vector<LegendEntry> legend_;
   Selection selection_;
   int hovered_ = -1;
@@ -144,6 +163,13 @@ class MapView {
   std::unordered_map<int, std::shared_ptr<Picture>> pictures_;  // decoded (empty Picture if unreadable)
   bool dirty_points_ = true, dirty_colours_ = true, dirty_grid_ = true, dirty_lines_ = true;
   int frames_ = 0;
+  std::vector<int> draw_order_;   // a fixed shuffle of the items: any prefix is a fair sample
+  CameraPose last_pose_;
+  float still_seconds_ = 1e9f;
+  float map_still_seconds_ = 1e9f;
+  float smoothed_frame_ = 0.f;
+  size_t budget_ = 0;
+  bool reduced_ = false;
   int last_hovered_drawn_ = -2;
   float grid_floor_y_ = 0.f;
 };

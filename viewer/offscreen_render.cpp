@@ -138,7 +138,9 @@ std::string render_map_pixels(const Collection& collection, const Points& positi
     Framebuffer fb(o.width, o.height);
     GlRenderer renderer;
     MapView view(collection, renderer);
-    view.set_options(o.view);
+    ViewOptions vo = o.view;
+    vo.moving_budget = 0;  // a picture is never in motion: every item, always
+    view.set_options(vo);
     StillFeed still(collection.ids, positions);
     for (size_t i = 0; i < o.pinned.size() && i < collection.size(); ++i)
       if (o.pinned[i]) still.post(cmd::Pin{int32_t(i), {}});
@@ -147,10 +149,12 @@ std::string render_map_pixels(const Collection& collection, const Points& positi
     view.set_judgments(o.judgments);
     for (int i : o.selected) view.selection().add(i);
     view.selection_changed();
-    if (o.camera)
-      view.camera().set_pose(*o.camera);
-    else
-      view.fit_all(false);
+    view.fit_all(false);
+    if (o.camera) {
+      CameraPose pose = *o.camera;
+      if (o.camera_at_centre) pose.target = view.camera().pose().target;
+      view.camera().set_pose(pose);
+    }
     // Cards are decoded a few per frame; draw until they are all in.
     for (int k = 0; k < 1 + int(o.selected.size()) / 2 + 8; ++k) view.frame(0.f, o.width, o.height);
     if (o.legend) draw_overlay(view, o);

@@ -19,6 +19,7 @@ struct RenderOptions {
   int width = 1280;                   // (default: 1280)
   int height = 800;                   // (default: 800)
   std::optional<CameraPose> camera;   // (default: fit the whole map, from a three-quarter view)
+  bool camera_at_centre = false;      // look at the map's centre instead of camera->target (default: off)
   ViewOptions view;                   // colours, sizes, grid, fade, cards (default: ViewOptions{})
   std::vector<int> selected;          // items drawn selected, with their picture cards (default: none)
   std::vector<uint8_t> pinned;        // per item, 1 = drawn pinned (default: none)

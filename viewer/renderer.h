@@ -52,6 +52,7 @@ struct FrameParams {
   float fade_near = 0.f, fade_far = 1.f;  // depth range for the fade toward the ground
   float fade_amount = 0.55f;            // 0 = no fade
   float max_point_size = 48.f;
+  size_t point_budget = 0;              // draw only the first this many points (level of detail); 0 = all
   bool grid = true;
   bool lines = true;
   bool cards = true;

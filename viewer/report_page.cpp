@@ -341,11 +341,14 @@ std::string report_html(const ReportContent& c) {
     const Displacement& d = *c.displacement;
     h << "<h2>What the judgments moved</h2><p class='note'>Distance between each item's place in the map fitted "
          "from the features alone (aligned by rotation, scale and shift) and its place now; alignment rms "
-      << fmt("%.3g", d.alignment.rms) << ".</p><table id='moved'><tr><th>item</th><th>tag</th><th>moved</th></tr>";
+      << fmt("%.3g", d.alignment.rms) << ".</p><table id='moved'><tr><th>item</th><th>tag</th><th>moved</th>"
+      << (c.moved_by.size() == n ? "<th>judgments pulling it that way most</th>" : "") << "</tr>";
     for (size_t k = 0; k < std::min(c.list_rows, d.ranking.size()); ++k) {
       const size_t i = size_t(d.ranking[k]);
       h << "<tr><td>" << html_escape(c.ids[i]) << "</td><td>" << html_escape(have_tags ? c.tags[i] : "")
-        << "</td><td class='num'>" << fmt("%.3g", d.distance[i]) << "</td></tr>";
+        << "</td><td class='num'>" << fmt("%.3g", d.distance[i]) << "</td>";
+      if (c.moved_by.size() == n) h << "<td>" << html_escape(c.moved_by[i]) << "</td>";
+      h << "</tr>";
     }
     h << "</table>\n";
   }

@@ -26,6 +26,7 @@ struct ReportContent {
   const Grouping* groups = nullptr;          // optional
   std::vector<double> kept;                  // neighbourhood kept per item (neighbour_compare.h), or empty
   const Displacement* displacement = nullptr;  // optional: reference map vs current
+  std::vector<std::string> moved_by;  // N or empty: which judgments moved each item, as text
   size_t list_rows = 25;              // rows in the suspect and most-moved lists (default: 25)
   int picture_size = 560;             // pixels per picture side (default: 560)
 };
