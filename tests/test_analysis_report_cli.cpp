@@ -8,6 +8,8 @@
 #include <filesystem>
 #include <fstream>
 #include <random>
+#include <set>
+#include <algorithm>
 #include <sstream>
 
 #include "solver/fit.h"
@@ -129,4 +131,30 @@ TEST_CASE("kith report: usage and data errors have their exit codes and touch no
   CHECK(run_kith("report " + dir + "/bad.kith -o " + dir + "/r.html") == 3);
   CHECK_FALSE(std::filesystem::exists(dir + "/r.html"));
   CHECK(slurp(items).size() > 1000);  // the input is intact
+}
+
+TEST_CASE("kith fit --suspects --groups adds the score and group columns") {
+  const std::string dir = test::temp_dir("fit-structure");
+  const std::string items = write_items(dir);
+  std::string said;
+  REQUIRE(run_kith("fit " + items + " -o " + dir + "/l.csv --quiet --iterations 300 --perplexity 10 --suspects --groups",
+                   &said) == 0);
+  const Collection layout = load_collection(dir + "/l.csv");
+  REQUIRE(layout.size() == 120);
+  // suspect and group are numeric columns of the layout.
+  const auto& names = layout.feature_names;
+  const auto s = std::find(names.begin(), names.end(), "suspect"), g = std::find(names.begin(), names.end(), "group");
+  REQUIRE(s != names.end());
+  REQUIRE(g != names.end());
+  const Eigen::Index sc = s - names.begin(), gc = g - names.begin();
+  CHECK(layout.features(4, sc) > 0.5);   // sw4 is tagged linen among wool
+  CHECK(layout.features(8, sc) > 0.5);
+  CHECK(layout.features(1, sc) < 0.2);
+  std::set<double> groups;
+  for (Eigen::Index i = 0; i < 120; ++i) groups.insert(layout.features(i, gc));
+  CHECK(groups.size() == 3);
+  CHECK(layout.features(1, gc) == layout.features(4, gc));  // sw4 sits in sw1's crowd
+  CHECK(said.find("groups: 3 groups") != std::string::npos);
+  CHECK(run_kith("fit " + items + " -o " + dir + "/m.csv --quiet --iterations 50 --suspects --tag nosuch") == 2);
+  CHECK_FALSE(std::filesystem::exists(dir + "/m.csv"));
 }

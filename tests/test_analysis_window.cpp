@@ -72,3 +72,16 @@ TEST_CASE("structure panel: a look on a helper thread, then choosing a suspect s
   CHECK(r.view.selection().size() == 11);  // the suspect and its 10 map neighbours
   for (size_t k = 0; k < 10; ++k) CHECK(r.view.selection().contains(f.map_graph.index[size_t(top) * f.map_graph.k + k]));
 }
+
+TEST_CASE("structure panel: the judgment-free reference map and the displacement from it") {
+  Rig r;
+  StructurePanel panel(r.collection, r.view);
+  panel.fit_reference();
+  panel.finish_reference();
+  const Displacement* d = panel.displacement();
+  REQUIRE(d != nullptr);
+  REQUIRE(d->distance.size() == r.collection.size());
+  // The still map is not the fitted one, so items moved; the ranking is by distance.
+  CHECK(d->distance[size_t(d->ranking.front())] >= d->distance[size_t(d->ranking.back())]);
+  CHECK(d->alignment.scale > 0.0);
+}

@@ -484,3 +484,29 @@ TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow
 }
 }  // namespace
 }  // namespace kith
+
+namespace kith {
+namespace {
+TEST_CASE("viewer scene: below the cap, slow frames still thin the moving view; fast frames draw all") {
+  const Collection c = synthetic_collection(12000, 3);
+  MockRenderer renderer;
+  StillFeed feed(c.ids, rough_positions(c));
+  MapView view(c, renderer);
+  view.set_snapshot(feed.latest());
+  auto moving_frame = [&](float seconds) {
+    view.camera().orbit(5, 0);
+    view.frame(1.f / 60, 800, 600);
+    view.note_frame_time(seconds);
+  };
+  moving_frame(0.01f);
+  CHECK_FALSE(view.reduced_detail());  // 12,000 fit the budget
+  for (int k = 0; k < 40; ++k) moving_frame(0.2f);
+  CHECK(view.detail_budget() == 5000);
+  moving_frame(0.2f);
+  CHECK(view.reduced_detail());
+  for (int k = 0; k < 80; ++k) moving_frame(0.01f);
+  CHECK(view.detail_budget() == 12000);
+  CHECK_FALSE(view.reduced_detail());
+}
+}  // namespace
+}  // namespace kith

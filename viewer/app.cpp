@@ -416,7 +416,11 @@ void App::handle_key(int key, int mods) {
       });
       break;
     }
-    default: break;
+    default:
+      if (hooks.on_key) {
+        if (const std::string line = hooks.on_key(key, mods); !line.empty()) say(line);
+      }
+      break;
   }
 }
 
@@ -515,6 +519,20 @@ void App::panels() {
   ImGui::SetNextWindowPos(ImVec2(10, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.f, 1.f));
   ImGui::SetNextWindowSizeConstraints(ImVec2(420, 0), ImVec2(420, io.DisplaySize.y * 0.5f));
   panel_selection();
+  if (hooks.take_selection) {
+    std::vector<int> items;
+    if (hooks.take_selection(&items)) {
+      view->selection().set(items);
+      view->selection_changed();
+    }
+  }
+  if (hooks.panel_lines) {
+    ImGui::SetNextWindowPos(ImVec2(io.DisplaySize.x - right_w - 10, top + 520), ImGuiCond_FirstUseEver);
+    ImGui::SetNextWindowSize(ImVec2(right_w, 0), ImGuiCond_FirstUseEver);
+    if (ImGui::Begin(hooks.panel_title.empty() ? "More" : hooks.panel_title.c_str()))
+      for (const auto& line : hooks.panel_lines()) ImGui::TextWrapped("%s", line.c_str());
+    ImGui::End();
+  }
   if (show_structure) structure->draw(&show_structure);
 }
 
@@ -879,6 +897,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
   glfwSetMouseButtonCallback(app.window, on_button);
   glfwSetScrollCallback(app.window, on_scroll);
   glfwSetKeyCallback(app.window, on_key);
+  if (app.hooks.on_open) app.hooks.on_open();
 
   IMGUI_CHECKVERSION();
   ImGui::CreateContext();

@@ -39,6 +39,13 @@ struct WindowOptions {
 struct WindowHooks {
   TeachHook teach;                                                 // drag -> judgments
   std::function<void(const CommandBody&, uint64_t seq)> on_post;   // every command the window posts
+  // Used by `kith demo` (all main thread):
+  std::function<void()> on_open;                                   // the window opened (before the first frame)
+  std::function<std::string(int key, int mods)> on_key;            // keys the window leaves unused; returns a
+                                                                   // line to show briefly ("" for none)
+  std::function<bool(std::vector<int>* items)> take_selection;     // once per frame: true = select *items
+  std::string panel_title;                                         // an extra panel, shown when
+  std::function<std::vector<std::string>()> panel_lines;           // panel_lines is set: its text lines
   std::function<void(const std::shared_ptr<const Snapshot>&)> on_snapshot;  // each new snapshot shown
 };
 

@@ -59,7 +59,7 @@ void Camera::zoom(float steps) { goal_.distance = std::max(goal_.distance * std:
 void Camera::fit(const glm::vec3& lo, const glm::vec3& hi, bool smooth) {
   CameraPose g = goal_;
   g.target = (lo + hi) * 0.5f;
-  const float radius = std::max(glm::length(hi - lo) * 0.5f, 1e-3f);
+  const float radius = std::max(glm::length(hi - lo) * 0.5f, 1e-7f);
   const float half_fov_y = glm::radians(kFovYDegrees) / 2.f;
   const float half_fov_x = std::atan(std::tan(half_fov_y) * float(width_) / float(height_));
   const float half = std::min(half_fov_x, half_fov_y);

@@ -13,6 +13,7 @@
 #include "solver/collection.h"
 #include "solver/fit.h"
 #include "solver/health.h"
+#include "solver/map_findings.h"
 #include "viewer/commands.h"
 
 namespace kith {
@@ -42,6 +43,10 @@ const char* kUsage =
     "  --standardize           scale every feature column to unit variance first\n"
     "  --threads N             threads, 0 = all (default: 0)\n"
     "  --quiet                 no progress line\n"
+    "  --suspects              add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
+    "                          neighbours, in the features and the map, tagged otherwise; see README)\n"
+    "  --groups                add each item's group in the map (DBSCAN, automatic radius; 0 = none)\n"
+    "  --tag COLUMN            the tag column suspects are judged by (default: the first)\n"
     "\n"
     "exit codes: 0 written, 1 the optimization diverged (nothing written), 2 bad usage (or the\n"
     "            output cannot be written), 3 bad input data\n";
@@ -68,8 +73,14 @@ std::string format_seconds(double s) {
   return buf;
 }
 
+// Extra per-item columns (suspect score, group) from --suspects / --groups; "" = no value.
+struct ExtraColumns {
+  std::vector<std::string> names;
+  std::vector<std::vector<std::string>> values;  // [column][item]
+};
+
 bool write_layout(const std::string& path, const Collection& c, const FitResult& r, const FitOptions& o,
-                  const MapHealth& h, std::string* error) {
+                  const MapHealth& h, std::string* error, const ExtraColumns& extra = {}) {
   // Written beside the target and renamed into place, so a failure never leaves half a file.
   const std::string tmp = path + ".tmp-" + std::to_string(::getpid());
   {
@@ -83,6 +94,7 @@ bool write_layout(const std::string& path, const Collection& c, const FitResult&
       out << "id";
       for (int d = 0; d < o.dims; ++d) out << ',' << axes[d];
       for (const auto& t : c.tags) out << ',' << csv_field(t.name);
+      for (const auto& name : extra.names) out << ',' << csv_field(name);
       out << '\n';
       char num[40];
       for (size_t i = 0; i < c.size(); ++i) {
@@ -92,6 +104,7 @@ bool write_layout(const std::string& path, const Collection& c, const FitResult&
           out << num;
         }
         for (const auto& t : c.tags) out << ',' << csv_field(t.values[i]);
+        for (const auto& column : extra.values) out << ',' << csv_field(column[i]);
         out << '\n';
       }
     } else {
@@ -113,6 +126,8 @@ bool write_layout(const std::string& path, const Collection& c, const FitResult&
           for (const auto& t : c.tags) tags[t.name] = t.values[i];
           it["tags"] = tags;
         }
+        for (size_t e = 0; e < extra.names.size(); ++e)
+          it[extra.names[e]] = extra.values[e][i].empty() ? nlohmann::json() : nlohmann::json::parse(extra.values[e][i]);
         items.push_back(it);
       }
       j["items"] = items;
@@ -138,7 +153,8 @@ bool write_layout(const std::string& path, const Collection& c, const FitResult&
 
 int cmd_fit(const Args& args) {
   std::string input, output;
-  bool force = false, quiet = false;
+  bool force = false, quiet = false, want_suspects = false, want_groups = false;
+  std::string suspect_tag;
   FitOptions o;
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string& a = args[i];
@@ -179,6 +195,14 @@ int cmd_fit(const Args& args) {
       output = *v;
     } else if (a == "--force") {
       force = true;
+    } else if (a == "--suspects") {
+      want_suspects = true;
+    } else if (a == "--groups") {
+      want_groups = true;
+    } else if (a == "--tag") {
+      const std::string* v = value();
+      if (!v) return kExitUsage;
+      suspect_tag = *v;
     } else if (a == "--quiet") {
       quiet = true;
     } else if (a == "--exact") {
@@ -283,13 +307,50 @@ int cmd_fit(const Args& args) {
   ho.threads = o.threads;
   MapHealth h = measure_health(r.features, r.map, ho);
   h.kl = r.summary.kl;
-  if (!write_layout(output, c, r, o, h, &error)) {
+  ExtraColumns extra;
+  std::string findings_note;
+  if (want_suspects || want_groups) {
+    const std::vector<std::string>* tags = nullptr;
+    for (const auto& t : c.tags)
+      if (suspect_tag.empty() ? tags == nullptr : t.name == suspect_tag) tags = &t.values;
+    if (!suspect_tag.empty() && !tags) {
+      std::fprintf(stderr, "kith fit: --tag: %s has no tag column '%s'; nothing written\n", input.c_str(),
+                   suspect_tag.c_str());
+      return kExitUsage;
+    }
+    FindingsOptions fo;
+    fo.search.seed = o.seed;
+    const MapFindings f = find_structure(r.features, r.map, want_suspects ? tags : nullptr, fo);
+    if (want_suspects && !tags) {
+      std::fprintf(stderr, "kith fit: --suspects: %s has no tag column; nothing written\n", input.c_str());
+      return kExitUsage;
+    }
+    char num[32];
+    if (want_suspects) {
+      extra.names.push_back("suspect");
+      extra.values.emplace_back(c.size());
+      for (size_t i = 0; i < c.size(); ++i)
+        if (!std::isnan(f.suspects.score[i])) {
+          std::snprintf(num, sizeof num, "%.4f", f.suspects.score[i]);
+          extra.values.back()[i] = num;
+        }
+      findings_note += "suspects: " + f.suspects.summary() + "\n";
+    }
+    if (want_groups) {
+      extra.names.push_back("group");
+      extra.values.emplace_back(c.size());
+      for (size_t i = 0; i < c.size(); ++i) extra.values.back()[i] = std::to_string(f.groups.label[i] + 1);
+      findings_note += "groups: " + f.groups.summary() + "\n";
+    }
+  }
+  if (!write_layout(output, c, r, o, h, &error, extra)) {
     std::fprintf(stderr, "kith fit: %s\n", error.c_str());
     return kExitUsage;
   }
   std::printf("wrote %s (%zu items)\n", output.c_str(), c.size());
   std::printf("fit: %s; %s\n", r.summary.BriefReport().c_str(), r.features_note.c_str());
   std::printf("health: %s\n", h.BriefReport().c_str());
+  std::fputs(findings_note.c_str(), stdout);
   return kExitOk;
 }
 

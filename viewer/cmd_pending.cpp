@@ -15,6 +15,5 @@ int pending(const char* name) {
 
 #define KITH_PENDING(NAME) \
   __attribute__((weak)) int cmd_##NAME(const Args&) { return pending(#NAME); }
-KITH_PENDING(demo)
 
 }  // namespace kith

@@ -82,12 +82,12 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
 void MapView::note_frame_time(float seconds) {
   if (options_.moving_budget == 0 || !(seconds > 0.f)) return;
   smoothed_frame_ = smoothed_frame_ == 0.f ? seconds : 0.8f * smoothed_frame_ + 0.2f * seconds;
-  if (!reduced_ && positions_.size() <= budget_) return;
+  if (still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f) return;  // at rest: every item is drawn anyway
   // Scale the sample toward the frame-time target: the drawing cost is roughly linear in it.
   const float ratio = std::clamp(options_.target_frame_seconds / smoothed_frame_, 0.7f, 1.15f);
-  const size_t floor = std::min<size_t>(5000, options_.moving_budget);
-  budget_ = std::clamp(size_t(float(budget_ == 0 ? options_.moving_budget : budget_) * ratio), floor,
-                       options_.moving_budget);
+  const size_t cap = std::min(options_.moving_budget, std::max<size_t>(positions_.size(), 1));
+  const size_t floor = std::min<size_t>(5000, cap);
+  budget_ = std::clamp(size_t(float(budget_ == 0 ? cap : budget_) * ratio), floor, cap);
 }
 
 bool MapView::pinned(int item) const { return item >= 0 && size_t(item) < pinned_.size() && pinned_[item]; }
@@ -325,7 +325,7 @@ void MapView::rebuild_points() {
 void MapView::rebuild_grid() {
   std::vector<LineVertex> g;
   const glm::vec3 size = hi_ - lo_;
-  const float extent = std::max({size.x, size.z, 1e-3f}) * 1.3f;
+  const float extent = std::max({size.x, size.z, 1e-7f}) * 1.3f;
   // A round step: 1, 2 or 5 times a power of ten, about 12 cells across.
   const float raw = extent / 12.f;
   const float p10 = std::pow(10.f, std::floor(std::log10(raw)));
@@ -490,7 +490,7 @@ FrameParams MapView::frame_params() const {
   f.ink = glm::vec3(palette_.ink.r, palette_.ink.g, palette_.ink.b);
   f.reference_distance = camera_.pose().distance;
   f.point_scale = 1.f;
-  const float radius = std::max(glm::length(hi_ - lo_) * 0.5f, 1e-3f);
+  const float radius = std::max(glm::length(hi_ - lo_) * 0.5f, 1e-7f);
   const float centre_depth = glm::dot((lo_ + hi_) * 0.5f - camera_.eye(), camera_.forward());
   f.fade_near = centre_depth - radius * 0.8f;
   f.fade_far = centre_depth + radius;
@@ -513,6 +513,7 @@ void MapView::frame(float dt, int width, int height) {
   still_seconds_ = moved ? 0.f : still_seconds_ + dt;
   map_still_seconds_ += dt;
   if (budget_ == 0 || budget_ > options_.moving_budget) budget_ = options_.moving_budget;
+  budget_ = std::min(budget_, std::max<size_t>(positions_.size(), 1));
   const bool at_rest = still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f;
   reduced_ = options_.moving_budget > 0 && positions_.size() > budget_ && !at_rest;
   if (dirty_colours_) rebuild_colours();

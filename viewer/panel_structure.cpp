@@ -8,6 +8,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "solver/fit.h"
 #include "solver/neighbour_compare.h"
 
 namespace kith {
@@ -23,6 +24,7 @@ StructurePanel::StructurePanel(const Collection& collection, MapView& view) : co
 
 StructurePanel::~StructurePanel() {
   if (job_.valid()) job_.wait();
+  if (reference_job_.valid()) reference_job_.wait();
 }
 
 const std::string& StructurePanel::tag_of(int item) const {
@@ -128,6 +130,10 @@ void StructurePanel::draw(bool* open) {
     }
     if (ImGui::BeginTabItem("Neighbours")) {
       tab_neighbours();
+      ImGui::EndTabItem();
+    }
+    if (ImGui::BeginTabItem("Moved")) {
+      tab_moved();
       ImGui::EndTabItem();
     }
     ImGui::EndTabBar();
@@ -319,6 +325,101 @@ void StructurePanel::tab_neighbours() {
       ImGui::Text("%.2f", found_->kept[size_t(i)]);
     }
     ImGui::EndTable();
+  }
+}
+
+}  // namespace kith
+
+namespace kith {
+
+void StructurePanel::fit_reference() {
+  if (reference_job_.valid() || collection_.features.cols() == 0) return;
+  const auto snapshot = view_.snapshot();
+  FitOptions options;
+  if (snapshot && (snapshot->positions.cols() == 2 || snapshot->positions.cols() == 3))
+    options.dims = int(snapshot->positions.cols());
+  if (!options.IsValid(nullptr, collection_.size())) options.perplexity = std::max(1.0, (collection_.size() - 1) / 3.0);
+  Points features = collection_.features;  // a copy: the helper thread shares nothing
+  reference_job_ = std::async(std::launch::async, [features = std::move(features), options]() {
+    return std::make_shared<Points>(fit_map(features, options).map);
+  });
+}
+
+void StructurePanel::poll_reference() {
+  if (!reference_job_.valid() || reference_job_.wait_for(std::chrono::seconds(0)) != std::future_status::ready) return;
+  try {
+    reference_ = reference_job_.get();
+    compare_with_reference();
+  } catch (const std::exception& e) {
+    reference_job_ = {};
+    status_ = std::string("could not fit the reference map: ") + e.what();
+  }
+}
+
+void StructurePanel::finish_reference() {
+  if (reference_job_.valid()) reference_job_.wait();
+  poll_reference();
+}
+
+void StructurePanel::compare_with_reference() {
+  const auto snapshot = view_.snapshot();
+  if (!reference_ || !snapshot || snapshot->positions.rows() != reference_->rows() ||
+      snapshot->positions.cols() != reference_->cols())
+    return;
+  moved_map_ = snapshot->positions;
+  moved_ = measure_displacement(*reference_, moved_map_);
+  pulls_item_ = -1;
+}
+
+void StructurePanel::tab_moved() {
+  poll_reference();
+  if (collection_.features.cols() == 0) return ImGui::TextWrapped("The reference map needs features; there are none.");
+  if (!reference_) {
+    ImGui::TextWrapped("Compare the map with the one the features alone give (no judgments): fit it first.");
+    if (ImGui::Button(reference_job_.valid() ? "Fitting..." : "Fit the map from the features alone")) fit_reference();
+    return;
+  }
+  if (ImGui::Button("Compare with the map now")) compare_with_reference();
+  if (!moved_) return;
+  ImGui::SameLine();
+  if (ImGui::Button("Colour by displacement"))
+    view_.set_measure("moved by judgments", std::vector<float>(moved_->distance.begin(), moved_->distance.end()));
+  ImGui::TextDisabled("aligned by rotation, scale %.3g and shift; rms %.3g", moved_->alignment.scale, moved_->alignment.rms);
+  if (ImGui::BeginTable("moved", 3, ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg, ImVec2(0, 200))) {
+    for (size_t r = 0; r < std::min<size_t>(100, moved_->ranking.size()); ++r) {
+      const int32_t i = moved_->ranking[r];
+      ImGui::TableNextRow();
+      ImGui::TableNextColumn();
+      ImGui::PushID(i);
+      if (ImGui::Selectable(collection_.ids[size_t(i)].c_str(), view_.selection().contains(i),
+                            ImGuiSelectableFlags_SpanAllColumns)) {
+        view_.selection().set({i});
+        view_.selection_changed();
+        view_.focus_selection();
+      }
+      ImGui::PopID();
+      ImGui::TableNextColumn();
+      ImGui::TextUnformatted(tag_of(i).c_str());
+      ImGui::TableNextColumn();
+      ImGui::Text("%.3g", moved_->distance[size_t(i)]);
+    }
+    ImGui::EndTable();
+  }
+  const auto& sel = view_.selection().items();
+  if (sel.empty()) return ImGui::TextDisabled("select an item to see which judgments moved it");
+  const int item = sel.front();
+  if (item != pulls_item_) {
+    pulls_ = judgments_moving(item, moved_map_, *moved_, view_.judgments(), 5);
+    pulls_item_ = item;
+  }
+  ImGui::Text("Judgments pulling %s the way it moved:", collection_.ids[size_t(item)].c_str());
+  if (pulls_.empty() || pulls_.front().pull <= 0.0) ImGui::TextDisabled("none");
+  for (const JudgmentPull& p : pulls_) {
+    if (p.pull <= 0.0) break;
+    const Judgment& j = view_.judgments()[p.index];
+    ImGui::BulletText("%s nearer %s than %s%s%s  (pull %.3g)", collection_.ids[size_t(j.anchor)].c_str(),
+                      collection_.ids[size_t(j.nearer)].c_str(), collection_.ids[size_t(j.farther)].c_str(),
+                      j.person.empty() ? "" : ", ", j.person.c_str(), p.pull);
   }
 }
 

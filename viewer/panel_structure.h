@@ -7,15 +7,21 @@
 //     members; colour by group.
 //   Neighbours: for the selected item, its nearest in the features and in the map side by side
 //     with ranks, gained and lost; the items whose neighbourhoods the map keeps worst.
+//   Moved: fits the judgment-free reference map from the features alone (solver/fit.h, default
+//     options, on a helper thread), aligns it with the map now (solver/displacement.h) and lists
+//     the most moved items, colours by displacement, and names the judgments that pulled the
+//     selected item most.
 // The work runs on a helper thread over copies of the features, the snapshot's positions and the
 // tags (nothing shared); the panel polls its result each frame. Window thread only.
 #pragma once
 #include <future>
+#include <optional>
 #include <memory>
 #include <string>
 #include <vector>
 
 #include "solver/collection.h"
+#include "solver/displacement.h"
 #include "solver/map_findings.h"
 #include "viewer/map_view.h"
 
@@ -33,12 +39,18 @@ class StructurePanel {
   void finish_look();  // waits for a running look and takes its result (tests, scripts)
   const MapFindings* findings() const { return found_.get(); }
   void choose_suspect(int item);  // fly to it and select it with its map neighbours
+  void fit_reference();           // starts the judgment-free fit (no-op while one runs)
+  void finish_reference();        // waits for it (tests, scripts)
+  void compare_with_reference();  // displacement of the map now from the reference
+  const Displacement* displacement() const { return moved_ ? &*moved_ : nullptr; }
 
  private:
   void poll();
   void tab_suspects();
   void tab_groups();
   void tab_neighbours();
+  void tab_moved();
+  void poll_reference();
   const std::string& tag_of(int item) const;
 
   const Collection& collection_;
@@ -52,6 +64,12 @@ class StructurePanel {
   int chosen_suspect_ = -1;
   int chosen_group_ = -1;
   bool looked_once_ = false;
+  std::future<std::shared_ptr<Points>> reference_job_;
+  std::shared_ptr<Points> reference_;
+  std::optional<Displacement> moved_;
+  Points moved_map_;                 // the map the displacement was measured on
+  int pulls_item_ = -1;              // item whose judgment pulls are cached
+  std::vector<JudgmentPull> pulls_;
 };
 
 }  // namespace kith
