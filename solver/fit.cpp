@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "solver/blended_objective.h"
 #include "solver/feature_prep.h"
 #include "solver/neighbour_term.h"
 #include "solver/neighbours.h"
@@ -33,6 +34,7 @@ bool FitOptions::IsValid(std::string* error, size_t n) const {
   if (!std::isfinite(learning_rate)) return fail("learning rate must be a number, or <= 0 for auto");
   if (threads < 0) return fail("threads must be 0 (all) or more");
   if (pca_dims < 0) return fail("pca dims must be 0 (never) or more");
+  if (!(blend >= 0) || !std::isfinite(blend)) return fail("blend must be a number >= 0");
   return true;
 }
 
@@ -134,12 +136,25 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
   topt.theta = options.theta;
   topt.force_exact = options.exact;
   topt.threads = options.threads;
-  NeighbourTerm term(r.p, topt);
+  auto term = std::make_shared<NeighbourTerm>(r.p, topt);
   LoopOptions loop;
   loop.schedule.learning_rate = options.learning_rate;
   loop.iterations = options.iterations;
-  r.summary = run_schedule(
-      term, [&term](double e) { term.set_exaggeration(e); }, r.map, loop, progress);
+  if (options.judgments.empty()) {
+    r.summary = run_schedule(
+        *term, [&term](double e) { term->set_exaggeration(e); }, r.map, loop, progress);
+  } else {
+    // KL + blend x judgments (solver/blended_objective.h); throws JudgmentError (an
+    // invalid_argument) for a judgment naming an unknown item or the same item twice.
+    BlendedObjective blended(n, options.dims);
+    blended.set_neighbour_term(term);
+    blended.set_alpha(options.dof);
+    blended.set_blend(options.blend);
+    blended.set_judgments(options.judgments);
+    r.summary = run_schedule(
+        blended, [&term](double e) { term->set_exaggeration(e); }, r.map, loop, progress);
+    r.summary.kl = blended.last_costs().neighbour;
+  }
   r.summary.setup_seconds = setup;
   r.summary.seconds = since(t0);
   return r;

@@ -14,7 +14,10 @@
 #include <stdexcept>
 #include <string>
 
+#include <vector>
+
 #include "solver/affinities.h"
+#include "solver/judgment.h"
 #include "solver/objective_term.h"
 #include "solver/points.h"
 #include "solver/schedule.h"
@@ -33,6 +36,8 @@ struct FitOptions {
   int threads = 0;              // 0 = all hardware threads (default: 0)
   bool standardize = false;     // scale feature columns to unit variance (default: false)
   int pca_dims = 50;            // PCA features down to this many dims when wider, 0 = never (default: 50)
+  std::vector<Judgment> judgments;  // blended in as t-STE (blended_objective.h) when given (default: none)
+  double blend = 1.0;           // weight of the judgments, >= 0, see README (default: 1)
   // A readable message for the first impossible value; n (if > 0) also checks perplexity < n.
   bool IsValid(std::string* error, size_t n = 0) const;
 };

@@ -137,6 +137,7 @@ TEST_CASE("kith check: usage errors exit 2, --help exits 0") {
   CHECK(run_kith(kGood, "check quoting.csv --bogus").exit_code == 2);
   CHECK(run_kith(kGood, "check quoting.csv --id").exit_code == 2);
   CHECK(run_kith(kGood, "check a.csv b.csv").exit_code == 2);
+  CHECK(run_kith(kGood, "check quoting.csv --tags small_tags.csv").exit_code == 2);
   const Run help = run_kith(kGood, "check --help");
   CHECK(help.exit_code == 0);
   CHECK(help.out.find("usage: kith check ITEMS") != std::string::npos);

@@ -100,6 +100,8 @@ int cmd_check(const Args& args) {
     }
   }
   if (items.empty()) return usage_error("which collection? give ITEMS");
+  const bool npy = items.size() >= 4 && items.compare(items.size() - 4, 4, ".npy") == 0;
+  if (!options.tags_csv.empty() && !npy) return usage_error("--tags goes with a .npy file; a table holds its own tags");
 
   Collection c;
   try {

@@ -13,6 +13,8 @@
 #include "solver/collection.h"
 #include "solver/fit.h"
 #include "solver/health.h"
+#include "solver/judgment_health.h"
+#include "solver/judgment_io.h"
 #include "solver/map_findings.h"
 #include "viewer/commands.h"
 
@@ -43,6 +45,11 @@ const char* kUsage =
     "  --standardize           scale every feature column to unit variance first\n"
     "  --threads N             threads, 0 = all (default: 0)\n"
     "  --quiet                 no progress line\n"
+    "  --judgments FILE        blend people's judgments in (CSV anchor,nearer,farther[,person][,time]\n"
+    "                          [,kind][,weight] by id); reports how many the map agrees with\n"
+    "  --blend B               weight of the judgments against the features, >= 0; 1 = as strong\n"
+    "                          as the features on the items they name (default: 1)\n"
+    "  --skip-bad-judgments    use the good rows of a judgments file with bad ones (default: refuse)\n"
     "  --suspects              add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
     "                          neighbours, in the features and the map, tagged otherwise; see README)\n"
     "  --groups                add each item's group in the map (DBSCAN, automatic radius; 0 = none)\n"
@@ -116,6 +123,11 @@ bool write_layout(const std::string& path, const Collection& c, const FitResult&
                       {"learning_rate", r.summary.learning_rate}, {"standardize", o.standardize}};
       j["health"] = {{"kl", h.kl}, {"trustworthiness", h.trustworthiness},
                      {"neighbour_recall", h.neighbour_recall}, {"measured_on", h.sample}};
+      if (!o.judgments.empty()) {
+        j["options"]["blend"] = o.blend;
+        j["options"]["judgments"] = o.judgments.size();
+        j["health"]["judgment_agreement"] = judgment_agreement(r.map, o.judgments);
+      }
       nlohmann::json items = nlohmann::json::array();
       for (size_t i = 0; i < c.size(); ++i) {
         nlohmann::json it;
@@ -153,8 +165,8 @@ bool write_layout(const std::string& path, const Collection& c, const FitResult&
 
 int cmd_fit(const Args& args) {
   std::string input, output;
-  bool force = false, quiet = false, want_suspects = false, want_groups = false;
-  std::string suspect_tag;
+  bool force = false, quiet = false, skip_bad_judgments = false, want_suspects = false, want_groups = false;
+  std::string judgments_path, suspect_tag;
   FitOptions o;
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string& a = args[i];
@@ -205,6 +217,14 @@ int cmd_fit(const Args& args) {
       suspect_tag = *v;
     } else if (a == "--quiet") {
       quiet = true;
+    } else if (a == "--judgments") {
+      const std::string* v = value();
+      if (!v) return kExitUsage;
+      judgments_path = *v;
+    } else if (a == "--blend") {
+      if (!number(&o.blend)) return kExitUsage;
+    } else if (a == "--skip-bad-judgments") {
+      skip_bad_judgments = true;
     } else if (a == "--exact") {
       o.exact = true;
     } else if (a == "--standardize") {
@@ -276,6 +296,22 @@ int cmd_fit(const Args& args) {
   if (!o.IsValid(&error, c.size())) {
     std::fprintf(stderr, "kith fit: %s\n", error.c_str());
     return kExitUsage;
+  }
+
+  if (!judgments_path.empty()) {
+    JudgmentReadOptions jo;
+    jo.skip_bad_rows = skip_bad_judgments;
+    const JudgmentReadResult jr = read_judgments_csv(judgments_path, c.ids, jo);
+    for (const auto& p : jr.problems) std::fprintf(stderr, "kith fit: %s\n", describe(p).c_str());
+    if (!jr.ok() && !skip_bad_judgments) {
+      std::fprintf(stderr, "kith fit: %zu of %zu judgment rows are bad; nothing imported (--skip-bad-judgments uses the rest)\n",
+                   jr.bad_rows, jr.rows);
+      return kExitBadInput;
+    }
+    o.judgments = jr.judgments;
+    if (!quiet)
+      std::fprintf(stderr, "kith fit: %zu judgments from %s, blend %g\n", o.judgments.size(), judgments_path.c_str(),
+                   o.blend);
   }
 
   const bool tty = ::isatty(2);
@@ -350,6 +386,13 @@ int cmd_fit(const Args& args) {
   std::printf("wrote %s (%zu items)\n", output.c_str(), c.size());
   std::printf("fit: %s; %s\n", r.summary.BriefReport().c_str(), r.features_note.c_str());
   std::printf("health: %s\n", h.BriefReport().c_str());
+  if (!o.judgments.empty()) {
+    std::printf("judgments: %zu, the map agrees with %.1f%%\n", o.judgments.size(),
+                100.0 * judgment_agreement(r.map, o.judgments));
+    for (const auto& pa : per_person_agreement(r.map, o.judgments))
+      if (!pa.person.empty())
+        std::printf("  %s: %zu judgments, %.1f%% agreed\n", pa.person.c_str(), pa.judgments, 100.0 * pa.agreement);
+  }
   std::fputs(findings_note.c_str(), stdout);
   return kExitOk;
 }

@@ -1,0 +1,85 @@
+// Picker: chooses the next question (solver/question_flow.h's Question) from the current map.
+//   random:            anchor and candidates uniformly at random;
+//   most informative:  (adaptive triplets in the spirit of Tamuz et al. 2011) the anchor is the
+//                      least-judged of a few random items. Where the anchor belongs is uncertain:
+//                      its posterior is taken over S candidate places x_s (its own map position
+//                      and those of `samples` random items, the map's own points as the prior),
+//                      weighted by the t-STE likelihood of every judgment naming the anchor were
+//                      it at x_s, the other items fixed. Candidates are the anchor's nearest items
+//                      in the map (and in feature space when features are given) plus random
+//                      ones; the pair asked maximizes the expected information gain
+//                        I(b,c) = H(sum_s w_s p_s) - sum_s w_s H(p_s),
+//                        p_s = K(x_s,b) / (K(x_s,b) + K(x_s,c)),  H(p) = -p log p - (1-p) log(1-p).
+//                      A question whose answer the model can already predict, or whose answer is
+//                      a coin toss wherever the anchor stands, gains little; one that splits the
+//                      anchor's plausible places in two gains most.
+//   grid:              anchor + N candidates grown greedily, each new candidate adding the most
+//                      information over pairs with those already chosen;
+//   selection:         either rule, with the anchor restricted to a set of items.
+// A Picker owns its random generator; use it from one thread. Cost per choice: O(N d) to find
+// map neighbours, O(samples * judgments naming the anchor) for the posterior (plus one pass over
+// the judgments to find them), and O(samples * candidates^2) for the pairs.
+#pragma once
+#include <cstdint>
+#include <random>
+#include <string>
+#include <vector>
+
+#include "solver/judgment.h"
+#include "solver/points.h"
+#include "solver/question_flow.h"
+
+namespace kith {
+
+enum class PickerRule : int { kRandom = 0, kInformative = 1 };
+
+struct PickerOptions {
+  PickerRule rule = PickerRule::kInformative;  // (default: most informative)
+  int near_candidates = 24;    // nearest items in the map considered (default: 24)
+  int feature_candidates = 8;  // nearest items in feature space, when features are given (default: 8)
+  int random_candidates = 8;   // random items added for the long range (default: 8)
+  int anchor_draws = 8;        // anchor = least-judged of this many random items (default: 8)
+  int anchors_scored = 1;      // anchors tried; the one whose best question gains most wins (default: 1)
+  double random_share = 0.0;   // share of questions asked at random, to keep the map honest globally (default: 0)
+  int samples = 256;           // candidate places for the anchor's posterior (default: 256)
+  double alpha = 1.0;          // t-STE kernel dof (default: 1)
+  uint64_t seed = 1;           // (default: 1)
+  bool IsValid(std::string* error) const;
+};
+
+// What the picker reads: the current map, optional features (same rows, or empty), the judgments.
+struct PickerInput {
+  const Points* map = nullptr;
+  const Points* features = nullptr;               // may be null or empty
+  const std::vector<Judgment>* judgments = nullptr;  // may be null
+};
+
+class Picker {
+ public:
+  explicit Picker(PickerOptions options = {});
+  // Anchors are drawn from these items only ("about the selection"); empty = all items.
+  void set_selection(std::vector<int32_t> items);
+  const std::vector<int32_t>& selection() const { return selection_; }
+  void set_rule(PickerRule rule) { options_.rule = rule; }
+  const PickerOptions& options() const { return options_; }
+
+  // A pair question: anchor + 2 candidates. Anchor -1 if the map has fewer than 3 items.
+  Question pair(const PickerInput& input);
+  // A grid question: anchor + grid_size candidates, choose grid_choose.
+  Question grid(const PickerInput& input, int grid_size, int grid_choose);
+  // Either, as QuestionFlow's QuestionSource wants it.
+  Question next(const PickerInput& input, QuestionKind kind, int grid_size, int grid_choose);
+
+  // Expected information gain of asking (anchor; b vs c) on this map (same model as above), for
+  // tests and for showing why a question was asked.
+  double information(const PickerInput& input, int32_t anchor, int32_t b, int32_t c);
+
+ private:
+  int32_t choose_anchor(const PickerInput& input, const std::vector<int>& counts);
+  std::vector<int32_t> candidates(const PickerInput& input, int32_t anchor, int want);
+  PickerOptions options_;
+  std::vector<int32_t> selection_;
+  std::mt19937_64 rng_;
+};
+
+}  // namespace kith
