@@ -7,6 +7,8 @@
 #include "solver/affinities.h"
 
 #include <algorithm>
+#include <climits>
+#include <cstdint>
 #include <cmath>
 #include <limits>
 #include <stdexcept>
@@ -71,50 +73,76 @@ std::vector<double> conditional_affinities(const NeighbourGraph& graph, const Af
 SparseAffinities joint_affinities(const NeighbourGraph& graph, const AffinityOptions& options) {
   const size_t n = graph.n, k = graph.k;
   const std::vector<double> cond = conditional_affinities(graph, options);
-  // P_cond + P_cond^T as a CSR matrix: each edge (i, j, p) goes to row i and row j, then rows are
-  // sorted by column and duplicates merged. Summation order within a row is fixed (by column,
-  // then by source), so the result does not depend on threads.
-  std::vector<int64_t> count(n + 1, 0);
-  for (size_t i = 0; i < n; ++i)
-    for (size_t c = 0; c < k; ++c) {
-      ++count[i + 1];
-      ++count[size_t(graph.index[i * k + c]) + 1];
+  // P_cond + P_cond^T as CSR without an intermediate list of all 2Nk edges (memory matters at
+  // N = 100,000): the transpose is built by counting, with each of its rows in source order, then
+  // row i of the result merges i's own neighbours (sorted by column) with row i of the transpose.
+  // Each entry is the sum of at most two numbers, so the result does not depend on any order.
+  std::vector<int64_t> tptr(n + 1, 0);
+  for (size_t e = 0; e < n * k; ++e) ++tptr[size_t(graph.index[e]) + 1];
+  for (size_t i = 0; i < n; ++i) tptr[i + 1] += tptr[i];
+  std::vector<int32_t> tcol(n * k);
+  std::vector<double> tval(n * k);
+  {
+    std::vector<int64_t> fill(tptr.begin(), tptr.end() - 1);
+    for (size_t i = 0; i < n; ++i)
+      for (size_t c = 0; c < k; ++c) {
+        const size_t j = size_t(graph.index[i * k + c]);
+        tcol[size_t(fill[j])] = int32_t(i);
+        tval[size_t(fill[j]++)] = cond[i * k + c];
+      }
+  }
+  // Own neighbours of every row sorted by column (positions into the row).
+  std::vector<int32_t> own_order(n * k);
+  for (size_t i = 0; i < n; ++i) {
+    int32_t* o = &own_order[i * k];
+    for (size_t c = 0; c < k; ++c) o[c] = int32_t(c);
+    const int32_t* idx = &graph.index[i * k];
+    std::sort(o, o + k, [idx](int32_t a, int32_t b) { return idx[a] < idx[b]; });
+  }
+  auto merge_row = [&](size_t i, auto&& emit) {
+    const int32_t* idx = &graph.index[i * k];
+    const int32_t* o = &own_order[i * k];
+    size_t a = 0;
+    int64_t b = tptr[i];
+    const int64_t be = tptr[i + 1];
+    while (a < k || b < be) {
+      const int32_t ja = a < k ? idx[o[a]] : INT32_MAX;
+      const int32_t jb = b < be ? tcol[size_t(b)] : INT32_MAX;
+      if (ja == jb) {
+        emit(ja, cond[i * k + size_t(o[a])] + tval[size_t(b)]);
+        ++a;
+        ++b;
+      } else if (ja < jb) {
+        emit(ja, cond[i * k + size_t(o[a])]);
+        ++a;
+      } else {
+        emit(jb, tval[size_t(b)]);
+        ++b;
+      }
     }
-  for (size_t i = 0; i < n; ++i) count[i + 1] += count[i];
-  std::vector<std::pair<int32_t, double>> entries(size_t(count[n]));
-  std::vector<int64_t> fill(count.begin(), count.end() - 1);
-  for (size_t i = 0; i < n; ++i)
-    for (size_t c = 0; c < k; ++c) {
-      const int32_t j = graph.index[i * k + c];
-      const double v = cond[i * k + c];
-      entries[size_t(fill[i]++)] = {j, v};
-      entries[size_t(fill[size_t(j)]++)] = {int32_t(i), v};
-    }
+  };
   SparseAffinities p;
   p.n = n;
   p.row_ptr.assign(n + 1, 0);
-  p.col.reserve(entries.size());
-  p.val.reserve(entries.size());
-  double total = 0.0;
   for (size_t i = 0; i < n; ++i) {
-    auto b = entries.begin() + count[i], e = entries.begin() + count[i + 1];
-    std::stable_sort(b, e, [](const auto& a, const auto& c) { return a.first < c.first; });
-    for (auto it = b; it != e; ++it) {
-      if (!p.col.empty() && int64_t(p.col.size()) > p.row_ptr[i] && p.col.back() == it->first) {
-        p.val.back() += it->second;
-      } else {
-        p.col.push_back(it->first);
-        p.val.push_back(it->second);
-      }
-    }
-    p.row_ptr[i + 1] = int64_t(p.col.size());
+    int64_t count = 0;
+    merge_row(i, [&count](int32_t, double) { ++count; });
+    p.row_ptr[i + 1] = p.row_ptr[i] + count;
   }
+  p.col.resize(size_t(p.row_ptr[n]));
+  p.val.resize(size_t(p.row_ptr[n]));
+  for (size_t i = 0; i < n; ++i) {
+    size_t at = size_t(p.row_ptr[i]);
+    merge_row(i, [&](int32_t j, double v) {
+      p.col[at] = j;
+      p.val[at++] = v;
+    });
+  }
+  double total = 0.0;
   for (double v : p.val) total += v;
   // total is 2N up to rounding; dividing by the actual sum makes P sum to 1 exactly as
   // scikit-learn's _joint_probabilities_nn does.
   for (double& v : p.val) v /= total;
-  p.col.shrink_to_fit();
-  p.val.shrink_to_fit();
   return p;
 }
 

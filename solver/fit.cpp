@@ -120,10 +120,13 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
   nopt.seed = options.seed;
   nopt.threads = options.threads;
   if (options.exact) nopt.exact_below = size_t(-1);
-  const NeighbourGraph graph = find_neighbours(r.features, std::max<size_t>(k, 1), nopt);
-  AffinityOptions aopt;
-  aopt.perplexity = options.perplexity;
-  r.p = std::make_shared<SparseAffinities>(joint_affinities(graph, aopt));
+  {
+    // Scoped: the graph (12 bytes per neighbour) is not needed once P exists.
+    const NeighbourGraph graph = find_neighbours(r.features, std::max<size_t>(k, 1), nopt);
+    AffinityOptions aopt;
+    aopt.perplexity = options.perplexity;
+    r.p = std::make_shared<SparseAffinities>(joint_affinities(graph, aopt));
+  }
 
   r.map = pca_start(r.features, options.dims, 1e-4, options.seed);
   const double setup = since(t0);
