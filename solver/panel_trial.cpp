@@ -21,11 +21,7 @@ bool PanelTrialOptions::IsValid(std::string* error) const {
   if (fit_iterations < 1 || iterations_between < 0 || settle_iterations < 0) return fail("iterations must be >= 0");
   if (!(blend >= 0.0)) return fail("blend must be >= 0");
   if (heldout_triplets < 10) return fail("at least 10 held-out triplets are needed");
-#if KITH_HAVE_PICKER
   return picker.IsValid(error);
-#else
-  return true;
-#endif
 }
 
 double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets) {
@@ -87,26 +83,13 @@ PanelTrialResult run_panel_trial(const Points& features, SimulatedPanel& panel, 
   objective.set_blend(options.blend);
   Points y = fit.map;
   int64_t at = options.fit_iterations;
-#if KITH_HAVE_PICKER
   Picker picker(options.picker);
-#else
-  std::mt19937_64 rng(options.seed);
-  std::uniform_int_distribution<int32_t> any(0, int32_t(n) - 1);
-#endif
   for (int q = 0; q < options.answers; ++q) {
-#if KITH_HAVE_PICKER
     PickerInput in;
     in.map = &y;
     in.features = &fit.features;
     in.judgments = &r.answers;
     const Question question = picker.pair(in);
-#else
-    Question question;
-    question.anchor = any(rng);
-    do question.candidates = {any(rng), any(rng)};
-    while (question.candidates[0] == question.candidates[1] || question.candidates[0] == question.anchor ||
-           question.candidates[1] == question.anchor);
-#endif
     if (question.anchor < 0 || question.candidates.size() < 2) break;
     if (q == 0) r.first_question = question;
     Judgment j = panel.answer(question.anchor, question.candidates[0], question.candidates[1]);

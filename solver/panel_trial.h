@@ -18,14 +18,7 @@
 #include "solver/judgment.h"
 #include "solver/points.h"
 #include "solver/question_flow.h"
-// The most-informative picker comes with the judgments work; until it is in the build, questions
-// are drawn at random (and kHavePicker says so).
-#if __has_include("solver/picker.h")
 #include "solver/picker.h"
-#define KITH_HAVE_PICKER 1
-#else
-#define KITH_HAVE_PICKER 0
-#endif
 #include "solver/simulated_panel.h"
 
 namespace kith {
@@ -37,9 +30,7 @@ struct PanelTrialOptions {
   int settle_iterations = 300;     // steps after the last answer (default: 300)
   double blend = 5.0;              // weight of the judgments (default: 5; see the README's demo section)
   double perplexity = 30.0;        // (default: 30)
-#if KITH_HAVE_PICKER
   PickerOptions picker;            // (default: most informative)
-#endif
   size_t heldout_triplets = 3000;  // held-out truth triplets (default: 3000)
   double heldout_gap = 3.0;        // least |d(a,b) - d(a,c)| of a held-out triplet, CIEDE2000 units (default: 3)
   uint64_t heldout_seed = 1234;    // (default: 1234)
@@ -63,7 +54,6 @@ struct PanelTrialResult {
   std::string BriefReport() const;   // one line
 };
 
-constexpr bool kHavePicker = KITH_HAVE_PICKER;
 
 // Fraction of the triplets the map satisfies (a tie counts one half).
 double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets);

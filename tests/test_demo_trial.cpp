@@ -30,10 +30,6 @@ kith::Points library_features(const std::vector<kith::Swatch>& swatches) {
 }  // namespace
 
 TEST_CASE("demo trial: 100 most-informative answers are honoured and held-out agreement is measured") {
-  if (!kith::kHavePicker) {
-    MESSAGE("skipped: this build has no most-informative picker (solver/picker.h)");
-    return;
-  }
   const auto swatches = kith::make_swatches();
   const kith::Points features = library_features(swatches);
   kith::SimulatedPanel panel(kith::perceptual_items(swatches));

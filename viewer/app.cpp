@@ -34,10 +34,7 @@
 #include "viewer/panel_structure.h"
 #include "viewer/picking.h"
 #include "viewer/ui_style.h"
-#if __has_include("solver/teach.h")
 #include "solver/teach.h"
-#define KITH_HAVE_TEACH 1
-#endif
 
 namespace kith {
 
@@ -1048,12 +1045,10 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
 
 WindowHooks default_window_hooks() {
   WindowHooks h;
-#ifdef KITH_HAVE_TEACH
   h.teach = [](const Snapshot& s, int item, const glm::vec3& from, const glm::vec3& to) {
     const double f[3] = {from.x, from.y, from.z}, t[3] = {to.x, to.y, to.z};
     return teach_from_drag(s.positions, int32_t(item), f, t, "", double(std::time(nullptr)));
   };
-#endif
   return h;
 }
 

@@ -101,8 +101,8 @@ bool load_demo(const std::string& folder, DemoData* out) {
 int run_headless(const DemoData& d, const PanelTrialOptions& trial, const std::string& out_dir, int width,
                  int height) {
   SimulatedPanel panel(d.perceptual);
-  std::printf("features-only map, then %d answers from the simulated panel (%s questions)...\n", trial.answers,
-              kHavePicker ? "most informative" : "random: this build has no most-informative picker yet");
+  std::printf("features-only map, then %d answers from the simulated panel (most informative questions)...\n",
+              trial.answers);
   const PanelTrialResult r = run_panel_trial(d.collection.features, panel, trial, [](int done, int total) {
     if (done % 20 == 0 || done == total) std::printf("  %d of %d answers\n", done, total), std::fflush(stdout);
   });
@@ -147,11 +147,7 @@ struct LiveDemo {
   const DemoData& data;
   MapFeed& feed;
   SimulatedPanel panel;
-#if KITH_HAVE_PICKER
   Picker picker;
-#else
-  std::mt19937_64 rng{7};
-#endif
   std::vector<Judgment> truth;       // held-out triplets of the hidden distance
   std::vector<Judgment> answers;
   double first_agreement = -1.0;     // of the features-only map, when the first answer came
@@ -166,20 +162,11 @@ struct LiveDemo {
     if (!snapshot || snapshot->positions.rows() != Eigen::Index(data.collection.size())) return "the map is not ready";
     if (first_agreement < 0) first_agreement = triplet_agreement(snapshot->positions, truth);
     for (int q = 0; q < count; ++q) {
-#if KITH_HAVE_PICKER
       PickerInput in;
       in.map = &snapshot->positions;
       in.features = &data.collection.features;
       in.judgments = &answers;
       const Question question = picker.pair(in);
-#else
-      std::uniform_int_distribution<int32_t> any(0, int32_t(data.collection.size()) - 1);
-      Question question;
-      question.anchor = any(rng);
-      do question.candidates = {any(rng), any(rng)};
-      while (question.candidates[0] == question.candidates[1] || question.candidates[0] == question.anchor ||
-             question.candidates[1] == question.anchor);
-#endif
       if (question.anchor < 0) break;
       Judgment j = panel.answer(question.anchor, question.candidates[0], question.candidates[1]);
       j.time = double(std::chrono::duration_cast<std::chrono::seconds>(

@@ -16,10 +16,7 @@
 #include "viewer/commands.h"
 #include "viewer/offscreen_render.h"
 #include "viewer/session_cli.h"
-#if __has_include("solver/judgment_io.h")
 #include "solver/judgment_io.h"
-#define KITH_HAVE_JUDGMENT_IO 1
-#endif
 
 namespace kith {
 namespace {
@@ -197,9 +194,6 @@ int cmd_export(const Args& args) {
       return kExitBadInput;
     }
   }
-#ifndef KITH_HAVE_JUDGMENT_IO
-  if (p.has("--judgments")) return usage_error("--judgments: not available in this build yet");
-#endif
   if (p.has("--flat")) return usage_error("--flat: not available in this build yet");
 
   try {
@@ -261,7 +255,6 @@ int cmd_export(const Args& args) {
       std::printf("%s: %dx%d picture of the map\n", out.c_str(), r.width, r.height);
     }
 
-#ifdef KITH_HAVE_JUDGMENT_IO
     if (p.has("--judgments")) {
       std::vector<Judgment> judgments = store->judgments();
       session_cli::apply_people_rule(&judgments, people);
@@ -276,7 +269,6 @@ int cmd_export(const Args& args) {
       }
       std::printf("%s: %zu judgments\n", out.c_str(), judgments.size());
     }
-#endif
   } catch (const SessionError& e) {
     return session_cli::report("export", e);
   }

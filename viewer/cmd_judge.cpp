@@ -7,10 +7,7 @@
 #include "solver/session_store.h"
 #include "viewer/commands.h"
 #include "viewer/session_cli.h"
-#if __has_include("solver/judgment_io.h")
 #include "solver/judgment_io.h"
-#define KITH_HAVE_JUDGMENT_IO 1
-#endif
 
 namespace kith {
 namespace {
@@ -125,7 +122,6 @@ int cmd_judge(const Args& args) {
       return kExitOk;
     }
 
-#ifdef KITH_HAVE_JUDGMENT_IO
     const std::string file = p.value("--import");
     JudgmentReadOptions read;
     read.skip_bad_rows = p.flags.count("--skip-bad-rows") > 0;
@@ -146,9 +142,6 @@ int cmd_judge(const Args& args) {
     if (r.bad_rows) std::printf("; skipped %zu bad row%s", r.bad_rows, r.bad_rows == 1 ? "" : "s");
     std::printf("\n");
     return kExitOk;
-#else
-    return usage_error("--import: judgment files are not readable in this build yet");
-#endif
   } catch (const SessionError& e) {
     return session_cli::report("judge", e);
   }

@@ -9,10 +9,7 @@
 #include "solver/session_store.h"
 #include "viewer/commands.h"
 #include "viewer/session_cli.h"
-#if __has_include("solver/judgment_io.h")
 #include "solver/judgment_io.h"
-#define KITH_HAVE_JUDGMENT_IO 1
-#endif
 
 namespace kith {
 namespace {
@@ -116,7 +113,6 @@ int cmd_new(const Args& args) {
 
   std::vector<Judgment> judgments;
   if (p.values.count("--judgments")) {
-#ifdef KITH_HAVE_JUDGMENT_IO
     JudgmentReadOptions read;
     read.skip_bad_rows = p.flags.count("--skip-bad-rows") > 0;
     const JudgmentReadResult r = read_judgments_csv(p.value("--judgments"), collection.ids, read);
@@ -128,9 +124,6 @@ int cmd_new(const Args& args) {
     }
     judgments = r.judgments;
     if (r.bad_rows) std::fprintf(stderr, "kith new: skipped %zu bad rows\n", r.bad_rows);
-#else
-    return usage_error("--judgments: judgment files are not readable in this build yet");
-#endif
   }
 
   try {

@@ -116,12 +116,10 @@ int cmd_open(const Args& args) {
     std::fprintf(stderr, "kith open: one collection at a time, got %zu\n", positional.size());
     return kExitUsage;
   }
-#ifdef KITH_HAVE_ENGINE
   if (std::string e; !eo.IsValid(&e)) {
     std::fprintf(stderr, "kith open: %s\n", e.c_str());
     return kExitUsage;
   }
-#endif
   if (!positional.empty() && std::filesystem::path(positional[0]).extension() == ".kith")
     return open_session(positional[0], wo, colour);
   int code = kExitOk;

@@ -61,7 +61,6 @@ Points rough_positions(const Collection& collection) {
   return y;
 }
 
-#ifdef KITH_HAVE_ENGINE
 namespace {
 class EngineFeed : public MapFeed {
  public:
@@ -84,10 +83,5 @@ std::unique_ptr<MapFeed> make_engine_feed(const Collection& c, const EngineOptio
                                           Points start) {
   return std::make_unique<EngineFeed>(c, o, std::move(j), std::move(start));
 }
-#else
-std::unique_ptr<MapFeed> make_engine_feed(const Collection&, const EngineOptions&, std::vector<Judgment>, Points) {
-  return nullptr;
-}
-#endif
 
 }  // namespace kith

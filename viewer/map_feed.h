@@ -36,7 +36,7 @@ class StillFeed : public MapFeed {
   uint64_t next_seq_ = 1;
 };
 
-// The live engine over `collection`, started; nullptr when this build has no engine yet.
+// The live engine over `collection`, started.
 std::unique_ptr<MapFeed> make_engine_feed(const Collection& collection, const EngineOptions& options,
                                           std::vector<Judgment> judgments = {}, Points start = {});
 

@@ -93,7 +93,6 @@ std::optional<Collection> load_items_or_report(const std::string& command, const
     *exit_code = kExitBadInput;
     return std::nullopt;
   }
-#ifdef KITH_HAVE_LOADER
   try {
     return load_collection(path);
   } catch (const LoadError& e) {
@@ -101,11 +100,6 @@ std::optional<Collection> load_items_or_report(const std::string& command, const
     *exit_code = kExitBadInput;
     return std::nullopt;
   }
-#else
-  std::fprintf(stderr, "kith %s: reading collections is not available in this build yet\n", command.c_str());
-  *exit_code = kExitInternal;
-  return std::nullopt;
-#endif
 }
 
 bool read_engine_flags(FlagReader& flags, const std::string& command, EngineOptions* o) {
