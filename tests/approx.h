@@ -4,6 +4,8 @@
 #include <doctest/doctest.h>
 
 #include <Eigen/Core>
+
+#include "solver/objective_term.h"
 #include <cmath>
 #include <cstdio>
 #include <sstream>
@@ -32,6 +34,10 @@ void assert_near(const Eigen::MatrixBase<A>& a, const Eigen::MatrixBase<B>& b, d
       }
     }
 }
+
+// Central finite differences of term.evaluate(y, nullptr) with step h, element by element:
+// g(i, c) = (E(y + h e_ic) - E(y - h e_ic)) / 2h. The slow, obvious reference for every gradient.
+kith::Points central_differences(kith::ObjectiveTerm& term, const kith::Points& y, double h);
 
 // Is Debian's python with numpy/scikit-learn/scikit-image there? (The python3 first on PATH may
 // lack numpy, so outside checks always use /usr/bin/python3.)

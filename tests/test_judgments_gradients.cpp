@@ -46,21 +46,6 @@ std::vector<Judgment> random_judgments(int n, int m, uint64_t seed) {
   return js;
 }
 
-Points finite_difference(kith::ObjectiveTerm& term, const Points& y) {
-  Points g(y.rows(), y.cols());
-  Points z = y;
-  for (Eigen::Index i = 0; i < y.rows(); ++i)
-    for (Eigen::Index c = 0; c < y.cols(); ++c) {
-      z(i, c) = y(i, c) + kStep;
-      const double up = term.evaluate(z, nullptr);
-      z(i, c) = y(i, c) - kStep;
-      const double down = term.evaluate(z, nullptr);
-      z(i, c) = y(i, c);
-      g(i, c) = (up - down) / (2 * kStep);
-    }
-  return g;
-}
-
 }  // namespace
 
 TEST_CASE("judgment term: t-STE gradient matches finite differences for alpha 1, 2 and 0.5") {
@@ -75,7 +60,8 @@ TEST_CASE("judgment term: t-STE gradient matches finite differences for alpha 1,
       Points g;
       const double cost = term.evaluate(y, &g);
       CHECK(cost == doctest::Approx(term.evaluate(y, nullptr)).epsilon(1e-14));
-      kith::test::assert_near(g, finite_difference(term, y), kGradAbsTol, kGradRelTol, "t-STE gradient");
+      kith::test::assert_near(g, kith::test::central_differences(term, y, kStep), kGradAbsTol, kGradRelTol,
+                              "t-STE gradient");
     }
   }
 }
@@ -186,7 +172,8 @@ TEST_CASE("spring term: gradient matches finite differences") {
   const double cost = springs.evaluate(y, &g);
   CHECK(cost == doctest::Approx(0.5 * ((y.row(1) - Eigen::RowVector3d(1, 2, 3)).squaredNorm() +
                                        (y.row(4) - Eigen::RowVector3d(1, 2, 3)).squaredNorm())));
-  kith::test::assert_near(g, finite_difference(springs, y), kGradAbsTol, kGradRelTol, "spring gradient");
+  kith::test::assert_near(g, kith::test::central_differences(springs, y, kStep), kGradAbsTol, kGradRelTol,
+                          "spring gradient");
   springs.remove_items({0});
   CHECK(springs.has_target(0));
   CHECK(springs.has_target(3));
@@ -205,16 +192,17 @@ TEST_CASE("blended objective: gradient matches finite differences; pins zero the
     obj.set_blend(blend);
     Points g;
     obj.evaluate(y, &g);
-    kith::test::assert_near(g, finite_difference(obj, y), kGradAbsTol, kGradRelTol, "blended gradient");
+    kith::test::assert_near(g, kith::test::central_differences(obj, y, kStep), kGradAbsTol, kGradRelTol,
+                            "blended gradient");
   }
   // Scaling: E = blend * T/(3 W N) * sum w (-log p) + stiffness/N * springs.
   kith::JudgmentTerm alone(n);
   alone.set_judgments(obj.judgments());
   kith::SpringTerm springs(3);
   springs.set_target(4, target);
-  const double expected = 6.0 * double(alone.touched_items()) / (3.0 * alone.active_weight() * n) *
-                              alone.evaluate(y, nullptr) +
-                          3.0 / n * springs.evaluate(y, nullptr);
+  const double expected =
+      6.0 * double(alone.touched_items()) / (3.0 * alone.active_weight() * n) * alone.evaluate(y, nullptr) +
+      3.0 / n * springs.evaluate(y, nullptr);
   CHECK(obj.evaluate(y, nullptr) == doctest::Approx(expected).epsilon(1e-12));
   CHECK(obj.last_costs().judgment == doctest::Approx(alone.evaluate(y, nullptr) / alone.active_weight()));
 

@@ -28,22 +28,6 @@ std::shared_ptr<const kith::SparseAffinities> affinities_for(const kith::Points&
   return std::make_shared<kith::SparseAffinities>(kith::joint_affinities(graph, o));
 }
 
-// Central differences of term.evaluate at y, step h.
-kith::Points numeric_gradient(kith::ObjectiveTerm& term, const kith::Points& y, double h) {
-  kith::Points g(y.rows(), y.cols());
-  kith::Points yy = y;
-  for (Eigen::Index i = 0; i < y.rows(); ++i)
-    for (Eigen::Index c = 0; c < y.cols(); ++c) {
-      yy(i, c) = y(i, c) + h;
-      const double up = term.evaluate(yy, nullptr);
-      yy(i, c) = y(i, c) - h;
-      const double down = term.evaluate(yy, nullptr);
-      yy(i, c) = y(i, c);
-      g(i, c) = (up - down) / (2 * h);
-    }
-  return g;
-}
-
 }  // namespace
 
 TEST_CASE("solver: neighbour term gradient equals central finite differences (exact path)") {
@@ -66,7 +50,7 @@ TEST_CASE("solver: neighbour term gradient equals central finite differences (ex
         const kith::Points y = random_points(60, dims, 11, 0.7);
         kith::Points g;
         term.evaluate(y, &g);
-        kith::test::assert_near(g, numeric_gradient(term, y, kStep), kAbsTol, kRelTol, "gradient");
+        kith::test::assert_near(g, kith::test::central_differences(term, y, kStep), kAbsTol, kRelTol, "gradient");
       }
 }
 

@@ -8,6 +8,21 @@
 
 namespace kith::test {
 
+kith::Points central_differences(kith::ObjectiveTerm& term, const kith::Points& y, double h) {
+  kith::Points g(y.rows(), y.cols());
+  kith::Points z = y;
+  for (Eigen::Index i = 0; i < y.rows(); ++i)
+    for (Eigen::Index c = 0; c < y.cols(); ++c) {
+      z(i, c) = y(i, c) + h;
+      const double up = term.evaluate(z, nullptr);
+      z(i, c) = y(i, c) - h;
+      const double down = term.evaluate(z, nullptr);
+      z(i, c) = y(i, c);
+      g(i, c) = (up - down) / (2 * h);
+    }
+  return g;
+}
+
 bool reference_python_available() {
   static const bool ok =
       std::system("/usr/bin/python3 -c 'import numpy, sklearn, skimage' >/dev/null 2>&1") == 0;

@@ -7,6 +7,7 @@
 #include <string>
 
 #include "solver/collection.h"
+#include "viewer/cli_text.h"
 #include "viewer/commands.h"
 
 namespace kith {
@@ -34,19 +35,6 @@ const char* const kUsage =
 int usage_error(const std::string& message) {
   std::fprintf(stderr, "kith check: %s\n%s", message.c_str(), kUsage);
   return kExitUsage;
-}
-
-std::vector<std::string> split_commas(const std::string& s) {
-  std::vector<std::string> out;
-  size_t start = 0;
-  for (;;) {
-    const size_t comma = s.find(',', start);
-    const std::string part = s.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
-    if (!part.empty()) out.push_back(part);
-    if (comma == std::string::npos) break;
-    start = comma + 1;
-  }
-  return out;
 }
 
 std::string list(const std::vector<std::string>& names, size_t max_shown) {
