@@ -142,6 +142,10 @@ struct App {
     toast_until = Clock::now() + std::chrono::milliseconds(2500);
   }
   uint64_t post(CommandBody body) {
+    if (const std::string refused = feed.prepare(body); !refused.empty()) {
+      say(refused);
+      return 0;
+    }
     const CommandBody copy = body;
     const uint64_t seq = feed.post(std::move(body));
     if (hooks.on_post) hooks.on_post(copy, seq);

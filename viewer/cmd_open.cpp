@@ -68,7 +68,8 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
   wo.blend = eo.blend;
   wo.perplexity = eo.perplexity;
   wo.theta = eo.theta;
-  const int code = run_window(link->collection(), *feed, wo, link->judgments(), link->hooks(default_window_hooks()));
+  std::unique_ptr<MapFeed> recorded = link->recording(*feed);
+  const int code = run_window(link->collection(), *recorded, wo, link->judgments(), link->hooks(default_window_hooks()));
   if (auto s = feed->latest()) link->final_checkpoint(*s);
   return code;
 }

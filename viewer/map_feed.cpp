@@ -85,3 +85,12 @@ std::unique_ptr<MapFeed> make_engine_feed(const Collection& c, const EngineOptio
 }
 
 }  // namespace kith
+
+namespace kith {
+
+std::string RecordingFeed::prepare(CommandBody& body) {
+  if (const std::string refused = inner_.prepare(body); !refused.empty()) return refused;
+  return recorder_ ? recorder_(body) : std::string();
+}
+
+}  // namespace kith

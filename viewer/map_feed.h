@@ -3,6 +3,7 @@
 // StillFeed holds a fixed map and applies pins and drags itself; it serves `kith render` of a
 // finished layout and builds without the engine. post()/latest()/command_log() are thread-safe.
 #pragma once
+#include <functional>
 #include <memory>
 #include <mutex>
 #include <string>
@@ -16,6 +17,10 @@ class MapFeed {
  public:
   virtual ~MapFeed() = default;
   virtual uint64_t post(CommandBody body) = 0;
+  // Called by the window before post(): a feed may complete the command (a session gives a new
+  // judgment the id it was stored under, so the engine and the window know it by that id) or
+  // refuse it, returning a message; the window then does not post it. Default: accept as is.
+  virtual std::string prepare(CommandBody& body) { (void)body; return ""; }
   virtual std::shared_ptr<const Snapshot> latest() const = 0;
   virtual std::vector<Command> command_log() const = 0;
   virtual bool live() const = 0;  // true when an optimizer moves the map
@@ -34,6 +39,23 @@ class StillFeed : public MapFeed {
   std::shared_ptr<Snapshot> current_;
   std::vector<Command> log_;
   uint64_t next_seq_ = 1;
+};
+
+// A feed that runs `recorder` on every command the window prepares (e.g. writing it to a
+// session file, committed before the window moves on) and otherwise forwards to `inner`.
+class RecordingFeed : public MapFeed {
+ public:
+  using Recorder = std::function<std::string(CommandBody& body)>;
+  RecordingFeed(MapFeed& inner, Recorder recorder) : inner_(inner), recorder_(std::move(recorder)) {}
+  uint64_t post(CommandBody body) override { return inner_.post(std::move(body)); }
+  std::string prepare(CommandBody& body) override;
+  std::shared_ptr<const Snapshot> latest() const override { return inner_.latest(); }
+  std::vector<Command> command_log() const override { return inner_.command_log(); }
+  bool live() const override { return inner_.live(); }
+
+ private:
+  MapFeed& inner_;
+  Recorder recorder_;
 };
 
 // The live engine over `collection`, started.

@@ -16,6 +16,10 @@ std::vector<double> to_vector(const glm::vec3& p, Eigen::Index dims) {
 }  // namespace
 
 uint64_t MapInteraction::post(CommandBody body) {
+  if (const std::string refused = feed_.prepare(body); !refused.empty()) {
+    std::fprintf(stderr, "kith: %s\n", refused.c_str());
+    return 0;
+  }
   const CommandBody copy = body;
   const uint64_t seq = feed_.post(std::move(body));
   if (on_post) on_post(copy, seq);

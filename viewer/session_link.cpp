@@ -49,10 +49,11 @@ void SessionLink::post_pins(MapFeed& feed) const {
   for (const SessionPin& p : store_->pins()) feed.post(cmd::Pin{p.item, p.position});
 }
 
-void SessionLink::record(const CommandBody& body) {
+std::string SessionLink::record(CommandBody& body) {
   try {
     if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
-      store_->add_judgment(a->judgment);
+      a->judgment.id = store_->add_judgment(a->judgment);
+      judgments_.push_back(a->judgment);
     } else if (auto* r = std::get_if<cmd::RetractJudgment>(&body)) {
       store_->set_retracted(r->judgment_id, r->retracted);
     } else if (auto* p = std::get_if<cmd::Pin>(&body)) {
@@ -76,17 +77,20 @@ void SessionLink::record(const CommandBody& body) {
       store_->set_settings(s);
     }
   } catch (const std::exception& e) {
-    std::fprintf(stderr, "kith: could not write to the session %s: %s\n", path_.c_str(), e.what());
+    // Not written, so not done: the window does not post it and shows this message.
+    const std::string message = "could not write to the session " + path_ + ": " + e.what();
+    std::fprintf(stderr, "kith: %s\n", message.c_str());
+    return message;
   }
+  return "";
+}
+
+std::unique_ptr<MapFeed> SessionLink::recording(MapFeed& inner) {
+  return std::make_unique<RecordingFeed>(inner, [this](CommandBody& body) { return record(body); });
 }
 
 WindowHooks SessionLink::hooks(WindowHooks base) {
   WindowHooks h = base;
-  auto previous_post = base.on_post;
-  h.on_post = [this, previous_post](const CommandBody& body, uint64_t seq) {
-    record(body);
-    if (previous_post) previous_post(body, seq);
-  };
   auto previous_snapshot = base.on_snapshot;
   h.on_snapshot = [this, previous_snapshot](const std::shared_ptr<const Snapshot>& s) {
     last_ = s;

@@ -13,6 +13,7 @@
 #include "solver/judgment.h"
 #include "solver/session_store.h"
 #include "viewer/app.h"
+#include "viewer/map_feed.h"
 
 namespace kith {
 
@@ -27,13 +28,17 @@ class SessionLink {
   const std::vector<Judgment>& judgments() const { return judgments_; }
   Points start() const;                  // the last checkpoint, or empty
   void post_pins(MapFeed& feed) const;   // the stored pins, as commands
-  // Hooks that record what the window does; keep this object alive while the window runs.
+  // The feed the window should use: every judgment, retraction, pin and settings change is
+  // committed to the session before it reaches the engine (a new judgment gets its stored id);
+  // a failed write refuses the command. Keep this object alive while the window runs.
+  std::unique_ptr<MapFeed> recording(MapFeed& inner);
+  // Hooks that checkpoint the map every few seconds.
   WindowHooks hooks(WindowHooks base = {});
   std::string title_state() const;
   void final_checkpoint(const Snapshot& snapshot);
 
  private:
-  void record(const CommandBody& body);
+  std::string record(CommandBody& body);
   std::unique_ptr<SessionStore> store_;
   Collection collection_;
   std::vector<Judgment> judgments_;
