@@ -47,6 +47,12 @@ struct WindowHooks {
   std::string panel_title;                                         // an extra panel, shown when
   std::function<std::vector<std::string>()> panel_lines;           // panel_lines is set: its text lines
   std::function<void(const std::shared_ptr<const Snapshot>&)> on_snapshot;  // each new snapshot shown
+  // Records something that is not a command to the engine (a "can't tell" answer, a person
+  // added, renamed or given a colour, a re-asked question) in the session, committed before it
+  // returns. `kind` is a short word ("cant_tell", "person", ...), `detail` a JSON object as text.
+  // Returns "" when written (or when there is no session to write to), else why it was not.
+  // Judgments, retractions and pins are not events: they go through MapFeed::prepare/post.
+  std::function<std::string(const std::string& kind, const std::string& detail)> record_event;
 };
 
 // The hooks every window gets unless told otherwise: teach through solver/teach.h when built in.
