@@ -118,8 +118,13 @@ void JudgmentsPanel::compute_figures() {
   const bool have_map = s && s->positions.rows() == Eigen::Index(collection_.size());
   std::vector<PersonJudgmentAgreement> with_map;
   if (have_map) with_map = per_person_agreement(s->positions, all);
-  const auto questions = same_question_agreement(all);
-  for (const PersonQuestionAgreement& q : questions) {
+  if (questions_dirty_ || questions_for_count_ != all.size()) {
+    questions_ = same_question_agreement(all);
+    repeated_ = repeated_questions(all);
+    questions_for_count_ = all.size();
+    questions_dirty_ = false;
+  }
+  for (const PersonQuestionAgreement& q : questions_) {
     PersonRow r;
     r.person = q.person;
     r.questions = q;
@@ -130,7 +135,6 @@ void JudgmentsPanel::compute_figures() {
                                          [&](const Judgment& j) { return !j.retracted && j.person == q.person; }));
     people_.push_back(r);
   }
-  repeated_ = repeated_questions(all);
   if (have_map) {
     try {
       violated_ = strongly_violated(s->positions, all, violation);
@@ -143,6 +147,13 @@ void JudgmentsPanel::compute_figures() {
 
 void JudgmentsPanel::tick(double now_seconds) {
   now_ = now_seconds;
+  // Judgments retracted or restored elsewhere (an undo in the question screens): a cheap count.
+  const auto& all = view_.judgments();
+  const size_t retracted = size_t(std::count_if(all.begin(), all.end(), [](const Judgment& j) { return j.retracted; }));
+  if (retracted != seen_retracted_ || all.size() != seen_count_) {
+    seen_retracted_ = retracted, seen_count_ = all.size();
+    mark_judgments_changed();
+  }
   if (now_seconds < next_sample_) return;
   const auto s = view_.snapshot();
   if (!s || s->positions.rows() != Eigen::Index(collection_.size())) return;
@@ -232,32 +243,41 @@ bool JudgmentsPanel::export_csv(const std::string& path, bool include_retracted,
 
 void JudgmentsPanel::draw(bool* open) {
   const ImGuiIO& io = ImGui::GetIO();
-  ImGui::SetNextWindowPos(ImVec2(io.DisplaySize.x * 0.5f - 330.f, ImGui::GetFrameHeight() + 8), ImGuiCond_FirstUseEver);
-  ImGui::SetNextWindowSize(ImVec2(640, std::min(560.f, io.DisplaySize.y * 0.7f)), ImGuiCond_FirstUseEver);
-  if (!ImGui::Begin("Judgments", open)) return ImGui::End();
+  const float top = ImGui::GetFrameHeight() + 8;
+  const float width = std::min(640.f, io.DisplaySize.x - 40.f);
+  const float x = std::max(10.f, std::min(330.f, io.DisplaySize.x - width - 10.f));
+  const float list_h = std::max(200.f, (io.DisplaySize.y - top) * 0.52f);
   // Figures: when the map or the judgments changed, at most every two seconds.
   const auto s = view_.snapshot();
   if (now_ >= figures_due_ && (!s || s->generation != figures_generation_ || figures_due_ == 0.0)) {
     compute_figures();
     figures_due_ = now_ + 2.0;
   }
-  if (ImGui::BeginTabBar("judgment tabs")) {
-    auto flags = [&](Tab t) { return tab_pending_ && wanted_tab_ == t ? ImGuiTabItemFlags_SetSelected : 0; };
-    if (ImGui::BeginTabItem("List", nullptr, flags(Tab::kList))) {
-      tab_list();
-      ImGui::EndTabItem();
+  ImGui::SetNextWindowPos(ImVec2(x, top), ImGuiCond_FirstUseEver);
+  ImGui::SetNextWindowSize(ImVec2(width, list_h), ImGuiCond_FirstUseEver);
+  if (ImGui::Begin("Judgments", open)) {
+    if (ImGui::BeginTabBar("judgment tabs")) {
+      auto flags = [&](Tab t) { return tab_pending_ && wanted_tab_ == t ? ImGuiTabItemFlags_SetSelected : 0; };
+      if (ImGui::BeginTabItem("List", nullptr, flags(Tab::kList))) {
+        tab_list();
+        ImGui::EndTabItem();
+      }
+      if (ImGui::BeginTabItem("Files", nullptr, flags(Tab::kFiles))) {
+        tab_files();
+        ImGui::EndTabItem();
+      }
+      if (ImGui::TabItemButton(show_agreement_ ? "Agreement: hide" : "Agreement: show", ImGuiTabItemFlags_Trailing))
+        show_agreement_ = !show_agreement_;
+      ImGui::EndTabBar();
     }
-    if (ImGui::BeginTabItem("Agreement", nullptr, flags(Tab::kAgreement))) {
-      tab_agreement();
-      ImGui::EndTabItem();
-    }
-    if (ImGui::BeginTabItem("Files", nullptr, flags(Tab::kFiles))) {
-      tab_files();
-      ImGui::EndTabItem();
-    }
-    tab_pending_ = false;
-    ImGui::EndTabBar();
   }
+  ImGui::End();
+  if (tab_pending_ && wanted_tab_ == Tab::kAgreement) show_agreement_ = true;
+  tab_pending_ = false;
+  if (!show_agreement_) return;
+  ImGui::SetNextWindowPos(ImVec2(x, top + list_h + 8), ImGuiCond_FirstUseEver);
+  ImGui::SetNextWindowSize(ImVec2(width, std::max(200.f, io.DisplaySize.y - top - list_h - 18)), ImGuiCond_FirstUseEver);
+  if (ImGui::Begin("Agreement", &show_agreement_)) tab_agreement();
   ImGui::End();
 }
 
@@ -289,7 +309,7 @@ void JudgmentsPanel::tab_list() {
 
   const ImGuiTableFlags flags = ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV |
                                 ImGuiTableFlags_Resizable | ImGuiTableFlags_SizingFixedFit;
-  if (!ImGui::BeginTable("judgments", 8, flags, ImVec2(0, ImGui::GetContentRegionAvail().y))) return;
+  if (!ImGui::BeginTable("judgments", 9, flags, ImVec2(0, ImGui::GetContentRegionAvail().y))) return;
   ImGui::TableSetupScrollFreeze(0, 1);
   ImGui::TableSetupColumn("id");
   ImGui::TableSetupColumn("anchor", ImGuiTableColumnFlags_WidthStretch);
@@ -298,6 +318,7 @@ void JudgmentsPanel::tab_list() {
   ImGui::TableSetupColumn("person");
   ImGui::TableSetupColumn("time (UTC)");
   ImGui::TableSetupColumn("kind");
+  ImGui::TableSetupColumn("state");
   ImGui::TableSetupColumn("");
   ImGui::TableHeadersRow();
   ImGuiListClipper clipper;
@@ -342,7 +363,9 @@ void JudgmentsPanel::tab_list() {
       ImGui::TableNextColumn();
       ImGui::TextUnformatted(short_time(j.time).c_str());
       ImGui::TableNextColumn();
-      ImGui::TextUnformatted(j.retracted ? "retracted" : to_string(j.kind));
+      ImGui::TextUnformatted(to_string(j.kind));
+      ImGui::TableNextColumn();
+      ImGui::TextUnformatted(j.retracted ? "retracted" : "");
       ImGui::TableNextColumn();
       if (j.retracted) ImGui::PopStyleColor();
       if (ImGui::SmallButton(j.retracted ? "restore" : "retract")) flip = k;
@@ -365,14 +388,15 @@ void JudgmentsPanel::draw_chart(float height) {
   const float left = 34.f;
   const ImVec2 lo(at.x + left, at.y + 4), hi(at.x + width - 6, at.y + height - 16);
   dl->AddRectFilled(lo, hi, ImGui::GetColorU32(ImGuiCol_FrameBg), 3.f);
-  // Agreement from 0.5 (chance) to 1 (every judgment satisfied), grid every 10 points.
-  auto y_of = [&](float v) { return hi.y - (std::clamp(v, 0.5f, 1.f) - 0.5f) * 2.f * (hi.y - lo.y); };
-  for (int g = 5; g <= 10; ++g) {
-    const float y = y_of(g / 10.f);
-    dl->AddLine(ImVec2(lo.x, y), ImVec2(hi.x, y), ImGui::GetColorU32(ImGuiCol_Border), 1.f);
-    if (g % 5 == 0 || g == 8) {
+  // Agreement from 0 to 1 (every judgment satisfied); 0.5 is what a map unrelated to the
+  // judgments would score, drawn stronger.
+  auto y_of = [&](float v) { return hi.y - std::clamp(v, 0.f, 1.f) * (hi.y - lo.y); };
+  for (int g = 0; g <= 4; ++g) {
+    const float y = y_of(g / 4.f);
+    dl->AddLine(ImVec2(lo.x, y), ImVec2(hi.x, y), ImGui::GetColorU32(ImGuiCol_Border), g == 2 ? 2.f : 1.f);
+    if (g % 2 == 0) {
       char label[8];
-      std::snprintf(label, sizeof label, "%d%%", g * 10);
+      std::snprintf(label, sizeof label, "%d%%", g * 25);
       dl->AddText(ImVec2(at.x, y - 7), ImGui::GetColorU32(ImGuiCol_TextDisabled), label);
     }
   }
@@ -402,7 +426,18 @@ void JudgmentsPanel::tab_agreement() {
     ImGui::TableSetupColumn("with the map");
     ImGui::TableSetupColumn("same again");
     ImGui::TableSetupColumn("with others");
-    ImGui::TableHeadersRow();
+    ImGui::TableNextRow(ImGuiTableRowFlags_Headers);
+    static const char* kHints[] = {
+        "colour: the person's line in the chart below",
+        "their judgments that are not retracted",
+        "share of their judgments the map satisfies now (anchor nearer to the nearer item)",
+        "share of agreeing pairs among their own answers to a question asked again (pairs in brackets)",
+        "share of agreeing pairs between their answers and other people's to the same question (pairs)"};
+    for (int c = 0; c < 5; ++c) {
+      ImGui::TableSetColumnIndex(c);
+      ImGui::TableHeader(ImGui::TableGetColumnName(c));
+      if (ImGui::IsItemHovered()) ImGui::SetTooltip("%s", kHints[c]);
+    }
     for (const PersonRow& p : people_) {
       ImGui::TableNextRow();
       ImGui::TableNextColumn();
@@ -421,14 +456,11 @@ void JudgmentsPanel::tab_agreement() {
       ImGui::Text("%s (%zu)", percent(p.questions.cross_agreement()).c_str(), p.questions.shared_pairs);
     }
     ImGui::EndTable();
-    ImGui::TextDisabled("with the map: share of their judgments the map satisfies. Same again / with others:\n"
-                        "share of agreeing answer pairs on a question asked twice (pairs in brackets); %zu questions\n"
-                        "were answered more than once.",
-                        repeated_);
+    ImGui::TextDisabled("%zu questions answered more than once (hover a heading for its meaning)", repeated_);
   }
   ImGui::Spacing();
   ImGui::TextUnformatted("Agreement with the map over time");
-  draw_chart(130.f);
+  draw_chart(110.f);
 
   ImGui::Spacing();
   float threshold = float(violation.threshold);
@@ -439,8 +471,8 @@ void JudgmentsPanel::tab_agreement() {
     compute_figures();
   }
   ImGui::SameLine();
-  ImGui::Text("Strongly violated: %zu judgment%s the map gives a t-STE probability below %.2f", violated_.size(),
-              violated_.size() == 1 ? "" : "s", violation.threshold);
+  ImGui::Text("Strongly violated: %zu (the map gives them a t-STE probability below %.2f)", violated_.size(),
+              violation.threshold);
   const auto& all = view_.judgments();
   const ImGuiTableFlags list_flags = flags | ImGuiTableFlags_ScrollY;
   const float h = std::max(ImGui::GetContentRegionAvail().y, 4 * ImGui::GetFrameHeight());

@@ -1,4 +1,5 @@
-// JudgmentsPanel: the window's "Judgments" panel (key L) with three tabs.
+// JudgmentsPanel: the window's "Judgments" panel (key L): a window with the List and Files tabs and
+// an "Agreement" window below it.
 //   List       every judgment (id, anchor / nearer / farther, person, time, kind, retracted), filtered
 //              by person and by part of an item id; retract and restore (a RetractJudgment command
 //              through the window's post path, so with a session it is written to the file before
@@ -86,7 +87,7 @@ class JudgmentsPanel {
   void tab_agreement();
   void tab_files();
   void draw_chart(float height);
-  void mark_judgments_changed() { filter_dirty_ = true, figures_due_ = 0.0; }
+  void mark_judgments_changed() { filter_dirty_ = true, questions_dirty_ = true, figures_due_ = 0.0; }
   int person_colour_index(const std::string& person) const;
 
   const Collection& collection_;
@@ -97,6 +98,7 @@ class JudgmentsPanel {
   bool filter_dirty_ = true;
   size_t rows_for_count_ = 0;        // judgments when rows_ was made
   size_t retracted_count_ = 0;
+  size_t seen_retracted_ = 0, seen_count_ = 0;  // what tick() saw last
   size_t chosen_ = kNone;
   bool scroll_to_chosen_ = false;
   std::string problem_;
@@ -105,11 +107,16 @@ class JudgmentsPanel {
   std::vector<PersonRow> people_;
   std::vector<ViolatedJudgment> violated_;
   size_t repeated_ = 0;
+  // Same-question figures depend on the judgments only: made again when they change.
+  std::vector<PersonQuestionAgreement> questions_;
+  bool questions_dirty_ = true;
+  size_t questions_for_count_ = 0;
   uint64_t figures_generation_ = 0;
   double figures_due_ = 0.0, next_sample_ = 0.0, now_ = 0.0;
   AgreementHistory history_;
   Tab wanted_tab_ = Tab::kList;
   bool tab_pending_ = false;
+  bool show_agreement_ = true;  // the Agreement window beside the list
   char import_path_[512] = "";
   char export_path_[512] = "";
   bool skip_bad_rows_ = false, export_retracted_ = false, export_people_ = true, export_replace_ = false;
