@@ -15,6 +15,9 @@
 #include "solver/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
+#include "viewer/map_feed.h"
+#include "viewer/session_link.h"
+#include "viewer/session_menu.h"
 
 namespace {
 
@@ -204,4 +207,49 @@ TEST_CASE("sessions: judgments go in with kith new and kith judge --import and c
   size_t rows = 0;
   while (std::getline(flat, line)) ++rows;
   CHECK(rows == 40);
+}
+
+TEST_CASE("sessions: the window's Session menu saves as and exports, and never writes over a file") {
+  const std::string dir = kith::test::temp_dir("sessions-menu");
+  kith::Collection c = kith::test::swatch_collection(50, 4, 3);
+  c.source = dir + "/swatches.csv";
+  kith::EngineOptions eo;
+  eo.perplexity = 10;
+  kith::SessionLink link(c, eo, c.source);
+  CHECK(link.path().empty());
+  kith::StillFeed still(c.ids, kith::Points::Random(50, 3));
+  auto feed = link.recording(still);
+  kith::SessionMenu menu(link, *feed);
+
+  // A judgment on a plain collection starts the session beside it and comes back with its id.
+  kith::CommandBody body = kith::cmd::AddJudgment{kith::Judgment{-1, 1, 2, 3, "Ines"}};
+  REQUIRE(feed->prepare(body) == "");
+  feed->post(body);
+  CHECK(std::get<kith::cmd::AddJudgment>(body).judgment.id > 0);
+  CHECK(link.path() == dir + "/swatches.kith");
+  CHECK(link.record_event("cant_tell", R"({"anchor":"sw-1"})") == "");
+
+  using D = kith::SessionMenu::Dialog;
+  const std::string copy = dir + "/copy.kith";
+  REQUIRE(menu.run(D::kSaveAs, copy) == "");
+  CHECK(link.path() == copy);  // kith goes on saving in the copy
+  body = kith::cmd::AddJudgment{kith::Judgment{-1, 4, 5, 6, "Tomasz"}};
+  REQUIRE(feed->prepare(body) == "");
+  {
+    auto original = kith::SessionStore::open(dir + "/swatches.kith");  // closed by save as, complete
+    CHECK(original->judgment_count() == 1);
+    CHECK(original->events().size() == 1);
+  }
+  CHECK(link.store()->judgment_count() == 2);
+  CHECK(link.store()->events().size() == 1);
+  CHECK(menu.run(D::kSaveAs, copy) != "");  // exists: refused
+
+  const std::string before = kith::test::file_bytes(dir + "/swatches.kith");
+  CHECK(menu.run(D::kLayout, dir + "/swatches.kith").find("will not overwrite") != std::string::npos);
+  CHECK(kith::test::file_bytes(dir + "/swatches.kith") == before);
+  CHECK(menu.run(D::kLayout, dir + "/layout.json") == "");
+  CHECK(menu.run(D::kJudgments, dir + "/judgments.csv") == "");
+  CHECK(kith::test::file_bytes(dir + "/judgments.csv").find(",Tomasz,") != std::string::npos);
+  CHECK(menu.run(D::kFlat, dir + "/flat.csv") == "");
+  CHECK(kith::test::file_bytes(dir + "/flat.csv").rfind("id,x,y,", 0) == 0);
 }

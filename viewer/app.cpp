@@ -461,6 +461,7 @@ void App::panels() {
       if (ImGui::MenuItem("Quit", "ctrl+Q")) quit = true;
       ImGui::EndMenu();
     }
+    if (hooks.menus) hooks.menus();
     if (ImGui::BeginMenu("Map")) {
       if (ImGui::MenuItem(paused() ? "Resume" : "Pause", "Space")) toggle_pause();
       if (ImGui::MenuItem("Restart", "shift+R")) handle_key(GLFW_KEY_R, GLFW_MOD_SHIFT);
@@ -497,6 +498,7 @@ void App::panels() {
     ImGui::TextDisabled("%s  %.0f fps", state.c_str(), double(fps));
     ImGui::EndMainMenuBar();
   }
+  if (hooks.windows) hooks.windows();
   const float top = ImGui::GetFrameHeight();
   const ImGuiIO& io = ImGui::GetIO();
   // The legend, top-left under the menu.
@@ -780,7 +782,8 @@ void App::update_title() {
   std::string state = !feed.live() ? "still map" : paused() ? "paused" : (s && s->settled) ? "settled" : "running";
   std::string title = "kith \xe2\x80\x94 " + name + " \xe2\x80\x94 " + std::to_string(collection.size()) + " items, " + state;
   if (s && feed.live()) title += ", iteration " + std::to_string(s->iteration);
-  if (!options.session_state.empty()) title += " \xe2\x80\x94 " + options.session_state;
+  const std::string saving = hooks.title_state ? hooks.title_state() : options.session_state;
+  if (!saving.empty()) title += " \xe2\x80\x94 " + saving;
   glfwSetWindowTitle(window, title.c_str());
 }
 
