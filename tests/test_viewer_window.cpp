@@ -73,7 +73,9 @@ TEST_CASE("viewer window: the screenshot shows items where the camera projection
   size_t not_ground = 0;
   for (int y = 0; y < im.h; y += 2)
     for (int x = 0; x < im.w; x += 2) not_ground += colour_distance(im.at(x, y), ground) > 30;
-  CHECK(not_ground > size_t(im.w / 2) * (im.h / 2) / 100);  // not blank: > 1 % of the picture
+  // Not blank: > 0.3 % of the picture (400 items early in the run sit in tight clumps, so the
+  // whole map framed covers only about 1 %).
+  CHECK(not_ground > size_t(im.w / 2) * (im.h / 2) * 3 / 1000);
   // Every item's projected centre is covered by a disc (its own or one in front of it).
   size_t inside = 0, covered = 0;
   std::vector<std::pair<float, float>> centres;

@@ -115,6 +115,7 @@ struct App {
   bool scripted_down[3] = {false, false, false};
   int script_frame = 0;
   uint64_t wait_until_iteration = 0;
+  Clock::time_point glide_hold_started{};
   Clock::time_point wait_started;
   bool quit = false;
   float fb_scale = 1.f;  // framebuffer pixels per window pixel
@@ -1012,7 +1013,14 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
         last_title = now;
       }
       ++app.frame;
-      if (app.wait_until_iteration == 0) ++app.script_frame;
+      // A script's frame counter also holds while the camera glides (at most 2 s per glide), so
+      // "dump" and "shot" see the same settled view however loaded the machine is.
+      const bool gliding = app.scripted && app.view->camera().moving() &&
+                           (app.glide_hold_started == Clock::time_point{} ||
+                            now - app.glide_hold_started < std::chrono::seconds(2));
+      if (gliding && app.glide_hold_started == Clock::time_point{}) app.glide_hold_started = now;
+      if (!app.view->camera().moving()) app.glide_hold_started = Clock::time_point{};
+      if (app.wait_until_iteration == 0 && !gliding) ++app.script_frame;
       if (options.frames > 0 && app.script_frame >= options.frames) break;
     }
     if (!options.fps_report.empty()) {
