@@ -748,7 +748,9 @@ void App::overlays() {
     if (item < 0 || size_t(item) >= view->positions().size()) return;
     const Projected p = view->camera().project(view->positions()[item]);
     if (!p.visible) return;
-    fg->AddText(ImVec2(p.screen.x * inv + 9, p.screen.y * inv - 8), ink32, collection.ids[item].c_str());
+    // Behind the panels (the background list is drawn over the map, under every window).
+    ImGui::GetBackgroundDrawList()->AddText(ImVec2(p.screen.x * inv + 9, p.screen.y * inv - 8), ink32,
+                                            collection.ids[item].c_str());
   };
   const auto& sel = view->selection().items();
   for (size_t k = 0; k < sel.size() && k < 24; ++k) label(sel[k]);
