@@ -43,6 +43,12 @@ const char* kHelp =
     "options:\n"
     "  --answers N       answers in the headless run (default: 100)\n"
     "  --blend B         weight of the answers against the features (default: 5)\n"
+    "  --weights on|off  the answers also teach how much each block of picture features\n"
+    "                    (colour, texture, layout) matters, and the map is rebuilt from the\n"
+    "                    reweighted features, so it follows the panel also where nobody was\n"
+    "                    asked (default: on)\n"
+    "  --seed N          seed of the headless run: map, panel, questions and held-out triplets\n"
+    "                    (default: 42)\n"
     "  --out DIR         where the headless run writes its PNGs (default: the library folder)\n"
     "  --library DIR     the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
     "                    ~/.cache/kith/demo)\n"
@@ -98,9 +104,11 @@ bool load_demo(const std::string& folder, DemoData* out) {
 }
 
 // ---- headless -------------------------------------------------------------------------------
-int run_headless(const DemoData& d, const PanelTrialOptions& trial, const std::string& out_dir, int width,
+int run_headless(const DemoData& d, PanelTrialOptions trial, uint64_t seed, const std::string& out_dir, int width,
                  int height) {
-  SimulatedPanel panel(d.perceptual);
+  SimulatedPanelOptions po;
+  set_trial_seed(seed, &trial, &po);
+  SimulatedPanel panel(d.perceptual, po);
   std::printf("features-only map, then %d answers from the simulated panel (most informative questions)...\n",
               trial.answers);
   const PanelTrialResult r = run_panel_trial(d.collection.features, panel, trial, [](int done, int total) {
@@ -248,6 +256,7 @@ int cmd_demo(const Args& args) {
   std::string library = default_sample_folder(), out_dir;
   int width = 1280, height = 800;
   double number = 0;
+  uint64_t seed = 42;
   if (auto v = flags.value("--answers")) {
     if (!parse_number(*v, &number) || number < 0 || number > 100000 || number != double(int(number))) {
       std::fprintf(stderr, "kith demo: --answers expects a whole number from 0 to 100000, got '%s'\n", v->c_str());
@@ -261,6 +270,20 @@ int cmd_demo(const Args& args) {
       return kExitUsage;
     }
     trial.blend = number;
+  }
+  if (auto v = flags.value("--weights")) {
+    if (*v != "on" && *v != "off") {
+      std::fprintf(stderr, "kith demo: --weights expects on or off, got '%s'\n", v->c_str());
+      return kExitUsage;
+    }
+    trial.learn_weights = *v == "on";
+  }
+  if (auto v = flags.value("--seed")) {
+    if (!parse_number(*v, &number) || number < 0 || number > 1e9 || number != double(int64_t(number))) {
+      std::fprintf(stderr, "kith demo: --seed expects a whole number from 0 to 1000000000, got '%s'\n", v->c_str());
+      return kExitUsage;
+    }
+    seed = uint64_t(number);
   }
   if (auto v = flags.value("--library")) library = *v;
   if (auto v = flags.value("--out")) out_dir = *v;
@@ -292,7 +315,7 @@ int cmd_demo(const Args& args) {
     if (opened || rc == kExitOk) return rc;
     std::fprintf(stderr, "kith demo: no window could be opened; running headless instead\n");
   }
-  return run_headless(d, trial, out_dir, width, height);
+  return run_headless(d, trial, seed, out_dir, width, height);
 }
 
 }  // namespace kith
