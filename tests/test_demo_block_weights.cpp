@@ -2,11 +2,14 @@
 // differences, planted features where only some blocks matter, the reweighting itself, bad input.
 #include <doctest/doctest.h>
 
+#include <chrono>
 #include <cmath>
 #include <random>
 #include <stdexcept>
+#include <thread>
 
 #include "solver/block_weights.h"
+#include "solver/engine.h"
 
 namespace {
 
@@ -144,4 +147,61 @@ TEST_CASE("block weights: reweighted features give the weighted squared distance
   std::string error;
   CHECK_FALSE(bad.IsValid(&error));
   CHECK(error == "block weights: alpha must be > 0");
+}
+
+TEST_CASE("block weights: the live engine takes reweighted features (SetFeatures) and refuses a wrong shape") {
+  // Two blocks: block 0 separates the items into two groups, block 1 into two other groups.
+  std::mt19937_64 rng(41);
+  std::normal_distribution<double> g(0.0, 1.0);
+  kith::Collection c;
+  const int n = 120;
+  c.features.resize(n, 4);
+  for (int i = 0; i < n; ++i) {
+    c.features(i, 0) = g(rng) * 0.3 + ((i % 2) ? 5.0 : 0.0);
+    c.features(i, 1) = g(rng) * 0.3;
+    c.features(i, 2) = g(rng) * 0.3 + ((i / 60) ? 5.0 : 0.0);
+    c.features(i, 3) = g(rng) * 0.3;
+    c.ids.push_back("i" + std::to_string(i));
+  }
+  kith::EngineOptions o;
+  o.perplexity = 15;
+  o.threads = 2;
+  kith::Engine e(c, o);
+  e.start();
+  auto wait = [&](auto pred) {
+    const auto end = std::chrono::steady_clock::now() + std::chrono::seconds(20);
+    auto s = e.latest();
+    while (!pred(*s) && std::chrono::steady_clock::now() < end) {
+      std::this_thread::sleep_for(std::chrono::milliseconds(1));
+      s = e.latest();
+    }
+    return s;
+  };
+  wait([](const kith::Snapshot& s) { return s.iteration > 400; });
+  const uint64_t bad = e.post(kith::cmd::SetFeatures{kith::Points::Zero(n, 3), 50, 12.0});
+  auto s = wait([&](const kith::Snapshot& s) { return s.last_command >= bad; });
+  CHECK(s->last_rejected == "features: the map has 120 x 4 features, got 120 x 3");
+  // Only block 1 (the i / 60 groups) matters now.
+  const std::vector<kith::ColumnBlock> blocks = {{"a", 0, 2}, {"b", 2, 2}};
+  const uint64_t good =
+      e.post(kith::cmd::SetFeatures{kith::apply_block_weights(c.features, blocks, {0.0, 2.0}), 100, 12.0});
+  s = wait([&](const kith::Snapshot& s) { return s.last_command >= good && !s.rebuilding && s.iteration > 1200; });
+  e.stop();
+  for (const auto& cmd : e.command_log())
+    if (cmd.seq == good) CHECK_MESSAGE(cmd.rejected.empty(), cmd.rejected);
+  // The map now separates the i / 60 groups and mixes the i % 2 ones.
+  const auto& y = s->positions;
+  double same = 0, other = 0, parity_same = 0, parity_other = 0;
+  int a = 0, b = 0, pa = 0, pb = 0;
+  for (int i = 0; i < n; ++i)
+    for (int j = i + 1; j < n; ++j) {
+      const double d = (y.row(i) - y.row(j)).norm();
+      if (i / 60 == j / 60) same += d, ++a; else other += d, ++b;
+      if (i % 2 == j % 2) parity_same += d, ++pa; else parity_other += d, ++pb;
+    }
+  MESSAGE("mean distance within / across the taught groups: " << same / a << " / " << other / b
+          << "; within / across the old ones: " << parity_same / pa << " / " << parity_other / pb);
+  constexpr double kSeparated = 2.0, kMixed = 1.2;  // ratios of mean distances across / within
+  CHECK(other / b > kSeparated * same / a);
+  CHECK(parity_other / pb < kMixed * parity_same / pa);
 }

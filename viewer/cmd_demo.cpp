@@ -13,6 +13,7 @@
 #include <random>
 #include <string>
 
+#include "solver/block_weights.h"
 #include "solver/collection.h"
 #include "solver/panel_trial.h"
 #include "solver/picture_descriptors.h"
@@ -161,9 +162,25 @@ struct LiveDemo {
   double first_agreement = -1.0;     // of the features-only map, when the first answer came
   std::vector<int> show;             // the last question, to select
   bool show_pending = false;
+  bool learn_weights = true;         // the answers also reweight the feature blocks (--weights)
+  PanelTrialOptions trial;           // regroup settings and weight options, as in the headless run
+  std::vector<ColumnBlock> blocks;
+  BlockWeightsResult weights;
 
   LiveDemo(const DemoData& d, MapFeed& f)
-      : data(d), feed(f), panel(d.perceptual), truth(panel.truth_triplets(3000, 0, 3.0, 1234)) {}
+      : data(d), feed(f), panel(d.perceptual), truth(panel.truth_triplets(3000, 0, 3.0, 1234)) {
+    if (d.collection.features.cols() == descriptor_size())
+      for (const auto& b : descriptor_blocks()) blocks.push_back({b.name, b.begin, b.size});
+  }
+
+  // What the answers so far say about the feature blocks; the engine rebuilds the map's affinities
+  // from the reweighted features off its hot loop and regroups (solver/block_weights.h).
+  void reweight() {
+    if (!learn_weights || blocks.empty() || answers.empty()) return;
+    weights = learn_block_weights(data.collection.features, blocks, answers, trial.weights);
+    feed.post(cmd::SetFeatures{apply_block_weights(data.collection.features, blocks, weights.weights),
+                               trial.regroup_iterations, trial.regroup_exaggeration});
+  }
 
   std::string ask(int count) {
     auto snapshot = feed.latest();
@@ -185,6 +202,8 @@ struct LiveDemo {
       show = {question.anchor, question.candidates[0], question.candidates[1]};
       show_pending = true;
     }
+    if (answers.empty()) return "no question could be asked";
+    reweight();
     const Judgment& last = answers.back();
     return last.person + ": " + data.collection.ids[size_t(last.anchor)] + " is more like " +
            data.collection.ids[size_t(last.nearer)] + " than " + data.collection.ids[size_t(last.farther)];
@@ -206,6 +225,15 @@ struct LiveDemo {
       out.push_back(buf);
     }
     out.push_back("(held-out: 3000 triplets of the hidden perceptual distance that are never asked)");
+    if (!weights.weights.empty()) {
+      out.push_back("what the answers say matters (feature block weights, 1 = as computed):");
+      for (size_t b = 0; b < blocks.size(); ++b) {
+        std::snprintf(buf, sizeof buf, "  %-20s %.2f", blocks[b].name.c_str(), weights.weights[b]);
+        out.push_back(buf);
+      }
+    } else if (!learn_weights) {
+      out.push_back("feature block weights: off (--weights off)");
+    }
     for (const auto& m : panel.members())
       out.push_back("  " + m.name + (m.contrarian ? ": sees lightness and pattern, not hue" : ": noise " +
                                                                                                 std::to_string(int(m.noise))));
@@ -213,13 +241,16 @@ struct LiveDemo {
   }
 };
 
-int run_live(const DemoData& d, const EngineOptions& eo, const WindowOptions& hidden, bool* opened) {
+int run_live(const DemoData& d, const EngineOptions& eo, const PanelTrialOptions& trial, const WindowOptions& hidden,
+             bool* opened) {
   std::unique_ptr<MapFeed> feed = make_engine_feed(d.collection, eo);
   if (!feed) {
     std::fprintf(stderr, "kith demo: this build has no live engine; showing the headless run instead\n");
     return kExitInternal;
   }
   LiveDemo live(d, *feed);
+  live.trial = trial;
+  live.learn_weights = trial.learn_weights;
   WindowOptions wo = hidden;  // frames, script, screenshot: test hooks
   wo.title = "Studio sample library";
   for (size_t t = 0; t < d.collection.tags.size(); ++t)  // colour by collection line
@@ -311,7 +342,7 @@ int cmd_demo(const Args& args) {
     EngineOptions eo;
     eo.blend = trial.blend;
     bool opened = false;
-    const int rc = run_live(d, eo, hidden, &opened);
+    const int rc = run_live(d, eo, trial, hidden, &opened);
     if (opened || rc == kExitOk) return rc;
     std::fprintf(stderr, "kith demo: no window could be opened; running headless instead\n");
   }
