@@ -3,7 +3,7 @@
 // with and without learned block weights. Prints a table and the medians.
 //   build/tests/bench_demo [--answers N] [--seeds S] [--lambda L] [--random-share R] [--rule informative|random]
 //                          [--blend B] [--settle N] [--weights on|off|both] [--regroup N]
-//                          [--regroup-exaggeration E]
+//                          [--regroup-exaggeration E] [--count SWATCHES]
 // Not built by default: cmake --build build --target bench_demo
 #include <algorithm>
 #include <cstdio>
@@ -26,7 +26,7 @@ double median(std::vector<double> v) {
 }  // namespace
 
 int main(int argc, char** argv) {
-  int answers = 100, seeds = 5, settle = 300, regroup = kith::PanelTrialOptions{}.regroup_iterations;
+  int answers = 100, seeds = 5, settle = 300, count = kith::SampleLibraryOptions{}.count, regroup = kith::PanelTrialOptions{}.regroup_iterations;
   double regroup_exaggeration = kith::PanelTrialOptions{}.regroup_exaggeration;
   double lambda = kith::BlockWeightOptions{}.lambda, share = 0.0, blend = 5.0;
   std::string rule = "informative", weights = "both";
@@ -40,11 +40,14 @@ int main(int argc, char** argv) {
     else if (k == "--blend") blend = std::atof(v.c_str());
     else if (k == "--settle") settle = std::atoi(v.c_str());
     else if (k == "--weights") weights = v;  // on, off, both
+    else if (k == "--count") count = std::atoi(v.c_str());
     else if (k == "--regroup") regroup = std::atoi(v.c_str());
     else if (k == "--regroup-exaggeration") regroup_exaggeration = std::atof(v.c_str());
     else { std::fprintf(stderr, "bench_demo: unknown option %s\n", k.c_str()); return 2; }
   }
-  const auto swatches = kith::make_swatches();
+  kith::SampleLibraryOptions lo;
+  lo.count = count;
+  const auto swatches = kith::make_swatches(lo);
   kith::Points f(Eigen::Index(swatches.size()), kith::descriptor_size());
   for (size_t i = 0; i < swatches.size(); ++i) {
     const auto px = kith::draw_swatch(swatches[i], 80, kith::SampleLibraryOptions{}.seed);
@@ -52,6 +55,7 @@ int main(int argc, char** argv) {
     for (int c = 0; c < kith::descriptor_size(); ++c) f(Eigen::Index(i), c) = v[size_t(c)];
   }
   kith::weight_descriptor_blocks(f);
+  std::printf("swatches %d, ", count);
   std::printf("answers %d, rule %s, random share %.2f, blend %.1f, lambda %.3g, settle %d, regroup %d x %.1f\n",
               answers, rule.c_str(), share, blend, lambda, settle, regroup, regroup_exaggeration);
   std::printf("| seed | weights | features only | after | control | after - control | honoured | block weights |\n");
