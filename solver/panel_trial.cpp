@@ -28,6 +28,7 @@ bool PanelTrialOptions::IsValid(std::string* error) const {
   if (!(blend >= 0.0)) return fail("blend must be >= 0");
   if (heldout_triplets < 10) return fail("at least 10 held-out triplets are needed");
   if (reweight_every < 1) return fail("reweight_every must be >= 1");
+  if (reweight_from < 1) return fail("reweight_from must be >= 1");
   if (regroup_iterations < 0) return fail("regroup_iterations must be >= 0");
   if (!(regroup_exaggeration >= 1.0) || !std::isfinite(regroup_exaggeration))
     return fail("regroup_exaggeration must be >= 1");
@@ -63,7 +64,10 @@ std::string PanelTrialResult::BriefReport() const {
                 "(control without answers %.3f; %zu held-out triplets)",
                 agreement_before, agreement_after, answers.size(), agreement_control, heldout);
   std::string out = buf;
-  if (!blocks.empty()) out += "; block weights learned from the answers: " + weights.report(blocks);
+  if (!blocks.empty() && !weights.weights.empty())
+    out += "; block weights learned from the answers: " + weights.report(blocks);
+  else if (!blocks.empty())
+    out += "; too few answers to learn block weights from yet";
   return out;
 }
 
@@ -150,14 +154,15 @@ PanelTrialResult run_panel_trial(const Points& features, SimulatedPanel& panel, 
     j.id = int64_t(r.answers.size());
     r.answers.push_back(j);
     objective.add_judgment(j);
-    if (!r.blocks.empty() && (q + 1) % options.reweight_every == 0) {
+    if (!r.blocks.empty() && q + 1 >= options.reweight_from && (q + 1) % options.reweight_every == 0) {
       reweight(*term);
       continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, true);
     }
     continue_map(objective, *term, y, &at, options.iterations_between, 1.0, true);
     if (progress) progress(q + 1, options.answers);
   }
-  if (!r.blocks.empty() && !r.answers.empty() && r.answers.size() % size_t(options.reweight_every) != 0) {
+  if (!r.blocks.empty() && r.answers.size() >= size_t(options.reweight_from) &&
+      r.answers.size() % size_t(options.reweight_every) != 0) {
     reweight(*term);
     continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, true);
   }

@@ -5,7 +5,7 @@
 //   3. `answers` times: the picker (solver/picker.h, most informative by default) chooses a pair
 //      question on the current map, the simulated panel answers it, the answer joins the blended
 //      objective (KL + blend * t-STE) and the map takes `iterations_between` more steps;
-//      Every `reweight_every` answers (and after the last) the answers also teach the features'
+//      Every `reweight_every` answers from `reweight_from` on (and after the last) the answers also teach the features'
 //      metric: block weights are learned from all answers so far (solver/block_weights.h) and the
 //      t-SNE affinities are rebuilt from the reweighted features, so the whole map follows the
 //      panel, not only the items it was asked about (learn_weights; on by default), and the map
@@ -44,6 +44,8 @@ struct PanelTrialOptions {
   bool control = true;             // also run the control without answers (default: true)
   bool learn_weights = true;       // answers also teach the feature blocks' weights (default: true)
   int reweight_every = 10;         // answers between two relearnings of the weights (default: 10)
+  int reweight_from = 30;          // no relearning before this many answers: 10 answers say too little
+                                   // about five blocks (they gave 0.680 -> 0.611, 30 gave 0.704) (default: 30)
   std::vector<ColumnBlock> blocks; // the feature blocks; empty = the picture descriptors' blocks when the
                                    // features have descriptor_size() columns, else no reweighting (default: empty)
   BlockWeightOptions weights;      // (default: see block_weights.h)

@@ -24,6 +24,8 @@
 #include "viewer/map_feed.h"
 #include "viewer/map_source.h"
 #include "viewer/offscreen_render.h"
+#include "viewer/session_link.h"
+#include "viewer/session_menu.h"
 
 namespace kith {
 namespace {
@@ -176,7 +178,7 @@ struct LiveDemo {
   // What the answers so far say about the feature blocks; the engine rebuilds the map's affinities
   // from the reweighted features off its hot loop and regroups (solver/block_weights.h).
   void reweight() {
-    if (!learn_weights || blocks.empty() || answers.empty()) return;
+    if (!learn_weights || blocks.empty() || answers.size() < size_t(trial.reweight_from)) return;
     weights = learn_block_weights(data.collection.features, blocks, answers, trial.weights);
     feed.post(cmd::SetFeatures{apply_block_weights(data.collection.features, blocks, weights.weights),
                                trial.regroup_iterations, trial.regroup_exaggeration});
@@ -196,9 +198,11 @@ struct LiveDemo {
       Judgment j = panel.answer(question.anchor, question.candidates[0], question.candidates[1]);
       j.time = double(std::chrono::duration_cast<std::chrono::seconds>(
                           std::chrono::system_clock::now().time_since_epoch()).count());
-      j.id = int64_t(answers.size());
-      answers.push_back(j);
-      feed.post(cmd::AddJudgment{j});
+      // Through prepare(): the session (when there is one) stores it and gives it its id first.
+      CommandBody body = cmd::AddJudgment{j};
+      if (const std::string refused = feed.prepare(body); !refused.empty()) return refused;
+      answers.push_back(std::get<cmd::AddJudgment>(body).judgment);
+      feed.post(std::move(body));
       show = {question.anchor, question.candidates[0], question.candidates[1]};
       show_pending = true;
     }
@@ -248,7 +252,11 @@ int run_live(const DemoData& d, const EngineOptions& eo, const PanelTrialOptions
     std::fprintf(stderr, "kith demo: this build has no live engine; showing the headless run instead\n");
     return kExitInternal;
   }
-  LiveDemo live(d, *feed);
+  // The answers (the panel's or a person's) are kept like any collection's: the first one starts
+  // a session file in the library folder (sample-library.kith, then -2, ...), shown in the title.
+  SessionLink link(d.collection, eo, (fs::path(d.library.folder) / "sample-library.csv").string());
+  std::unique_ptr<MapFeed> recorded = link.recording(*feed);
+  LiveDemo live(d, *recorded);
   live.trial = trial;
   live.learn_weights = trial.learn_weights;
   WindowOptions wo = hidden;  // frames, script, screenshot: test hooks
@@ -272,7 +280,10 @@ int run_live(const DemoData& d, const EngineOptions& eo, const PanelTrialOptions
   };
   hooks.panel_title = "Simulated panel";
   hooks.panel_lines = [&] { return live.lines(); };
-  return run_window(d.collection, *feed, wo, {}, hooks);
+  SessionMenu menu(link, *recorded);
+  const int code = run_window(d.collection, *recorded, wo, {}, menu.hooks(link.hooks(hooks)));
+  if (auto s = feed->latest()) link.final_checkpoint(*s);
+  return code;
 }
 
 }  // namespace

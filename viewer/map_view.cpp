@@ -156,10 +156,10 @@ void MapView::update_bounds() {
 void MapView::fit_all(bool smooth, bool by_person) {
   if (by_person || framing_at_fit_ == camera_.framing_changes()) following_ = true;
   framing_at_fit_ = camera_.framing_changes();
-  // A growing map is refitted when it leaves a box 4 % larger than the one framed now.
-  const glm::vec3 centre = (lo_ + hi_) * 0.5f, half = (hi_ - lo_) * 0.5f * 1.04f;
-  fitted_lo_ = centre - half;
-  fitted_hi_ = centre + half;
+  // A growing map is refitted (smoothly) as soon as it leaves the box framed now; the frame's own
+  // margin (6 %) keeps it on screen meanwhile.
+  fitted_lo_ = lo_;
+  fitted_hi_ = hi_;
   if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
   camera_.fit_points(positions_, smooth);
 }
