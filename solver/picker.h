@@ -32,6 +32,9 @@
 namespace kith {
 
 enum class PickerRule : int { kRandom = 0, kInformative = 1 };
+// How the most-informative picker predicts an answer (see the header comment).
+enum class PickerResponse : int { kTSTE = 0, kCalibrated = 1 };
+struct Response;
 
 struct PickerOptions {
   PickerRule rule = PickerRule::kInformative;  // (default: most informative)
@@ -42,7 +45,11 @@ struct PickerOptions {
   int anchors_scored = 1;      // anchors tried; the one whose best question gains most wins (default: 1)
   double random_share = 0.0;   // share of questions asked at random, to keep the map honest globally (default: 0)
   int samples = 256;           // candidate places for the anchor's posterior (default: 256)
-  double alpha = 1.0;          // t-STE kernel dof (default: 1)
+  int scored_places = 48;      // places drawn from the posterior to score pairs; 0 = all (default: 48)
+  double local_share = 0.5;    // share of the places drawn around the anchor's own position (default: 0.5)
+  double local_spread = 0.5;   // their spread, times the distance to its 3rd nearest map item (default: 0.5)
+  PickerResponse response = PickerResponse::kCalibrated;  // (default: calibrated to the answers)
+  double alpha = 1.0;          // t-STE kernel dof, for the t-STE response (default: 1)
   uint64_t seed = 1;           // (default: 1)
   bool IsValid(std::string* error) const;
 };
@@ -75,8 +82,9 @@ class Picker {
   double information(const PickerInput& input, int32_t anchor, int32_t b, int32_t c);
 
  private:
+  Response make_response(const PickerInput& input);
   int32_t choose_anchor(const PickerInput& input, const std::vector<int>& counts);
-  std::vector<int32_t> candidates(const PickerInput& input, int32_t anchor, int want);
+  std::vector<int32_t> candidates(const PickerInput& input, int32_t anchor, int want, double* local_scale);
   PickerOptions options_;
   std::vector<int32_t> selection_;
   std::mt19937_64 rng_;
