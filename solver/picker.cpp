@@ -437,3 +437,10 @@ double Picker::information(const PickerInput& in, int32_t anchor, int32_t b, int
 }
 
 }  // namespace kith
+
+namespace kith {
+double Picker::calibrated_beta(const PickerInput& in) {
+  check_input(in);
+  return calibrate_beta(*in.map, in.judgments, rng_);
+}
+}  // namespace kith

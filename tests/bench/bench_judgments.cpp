@@ -36,10 +36,27 @@ bool gTrace = false;
 int gOnly = -1;                      // run only this picker: 0 random, 1 most informative (key only)                 // print the agreement every 1,000 judgments (key trace)
 PickerOptions gOptions;              // the most-informative picker's options (keys above)
 
+constexpr int kInitialIterations = 600;  // a fit from scratch
+double gRestart = 2.0;               // refit from scratch when the judgments grow this many times; 0 = never (key restart)
+
+// The judgments-only fit (as test::fit_judgments_only) that also reports the final objective.
+Points fit(const std::vector<Judgment>& judgments, uint64_t seed, int iterations, const Points* start, double* cost) {
+  BlendedObjective objective(size_t(kItems), 3);
+  objective.set_alpha(kAlpha);
+  objective.set_judgments(judgments);
+  Points y = start ? *start : random_start(size_t(kItems), 3, seed, 1e-2);
+  BlendedFitOptions options;
+  options.iterations = iterations;
+  const BlendedFitSummary summary = fit_blended(objective, y, options);
+  if (cost) *cost = summary.finite ? summary.cost : 1e300;
+  return y;
+}
+
 struct Run {
   size_t reach85 = 0, reach90 = 0;  // 0 = not reached
   double final_agreement = 0;
   double seconds = 0, pick_seconds = 0, fit_seconds = 0;
+  int restarts_kept = 0;
 };
 
 Run run(PickerRule rule, uint64_t seed, size_t max_judgments) {
@@ -48,7 +65,8 @@ Run run(PickerRule rule, uint64_t seed, size_t max_judgments) {
   std::mt19937_64 pick(3000 + seed);
   const auto held_out = oracle.random_answers(kItems, 5000, pick);
   std::vector<Judgment> judgments = oracle.random_answers(kItems, kStart, pick);
-  Points y = test::fit_judgments_only(kItems, judgments, seed, 600, kAlpha);
+  Points y = fit(judgments, seed, kInitialIterations, nullptr, nullptr);
+  size_t last_restart = judgments.size();
   PickerOptions po = gOptions;
   po.rule = rule;
   po.alpha = kAlpha;
@@ -63,7 +81,16 @@ Run run(PickerRule rule, uint64_t seed, size_t max_judgments) {
       judgments.push_back(oracle.answer(question.anchor, question.candidates[0], question.candidates[1]));
     }
     const auto p1 = std::chrono::steady_clock::now();
-    y = test::fit_judgments_only(kItems, judgments, seed, kRefitIterations, kAlpha, &y);
+    double cost = 0.0;
+    y = fit(judgments, seed, kRefitIterations, &y, &cost);
+    if (gRestart > 1.0 && double(judgments.size()) >= gRestart * double(last_restart)) {
+      // A warm-started refit cannot undo a fold; each time the judgments double (key restart), also fit from
+      // scratch and keep whichever map the judgments fit better (same rule for both pickers).
+      double fresh_cost = 0.0;
+      Points fresh = fit(judgments, seed + 100 * judgments.size(), kInitialIterations, nullptr, &fresh_cost);
+      if (fresh_cost < cost) y = fresh, ++r.restarts_kept;
+      last_restart = judgments.size();
+    }
     r.pick_seconds += std::chrono::duration<double>(p1 - p0).count();
     r.fit_seconds += std::chrono::duration<double>(std::chrono::steady_clock::now() - p1).count();
     const double agreement = judgment_agreement(y, held_out);
@@ -115,6 +142,7 @@ int main(int argc, char** argv) {
     else if (key == "local") gOptions.local_share = v;
     else if (key == "spread") gOptions.local_spread = v;
     else if (key == "tste") gOptions.response = v != 0 ? PickerResponse::kTSTE : PickerResponse::kCalibrated;
+    else if (key == "restart") gRestart = v;
     else if (key == "timing") timing = v != 0;
     else if (key == "trace") gTrace = v != 0;
     else if (key == "only") gOnly = int(v);
@@ -135,16 +163,16 @@ int main(int argc, char** argv) {
               gOptions.near_candidates, gOptions.random_candidates, gOptions.anchor_draws, gOptions.anchors_scored,
               gOptions.random_share, gOptions.samples, gOptions.local_share, gOptions.local_spread,
               gOptions.scored_places);
-  std::printf("%-18s %6s %10s %10s %10s %10s %10s %10s\n", "picker", "seed", "to 0.85", "to 0.90", "final",
-              "seconds", "picking", "fitting");
+  std::printf("%-18s %6s %10s %10s %10s %10s %10s %10s %9s\n", "picker", "seed", "to 0.85", "to 0.90", "final",
+              "seconds", "picking", "fitting", "restarts");
   std::vector<double> med[2][2];
   for (int rule = 0; rule < 2; ++rule)
     for (int s = 0; s < seeds; ++s) {
       if (gOnly >= 0 && rule != gOnly) continue;
       const Run r = run(PickerRule(rule), uint64_t(s), max_judgments);
       const char* name = rule == 0 ? "random" : "most informative";
-      std::printf("%-18s %6d %10zu %10zu %10.3f %10.1f %10.1f %10.1f\n", name, s, r.reach85, r.reach90,
-                  r.final_agreement, r.seconds, r.pick_seconds, r.fit_seconds);
+      std::printf("%-18s %6d %10zu %10zu %10.3f %10.1f %10.1f %10.1f %9d\n", name, s, r.reach85, r.reach90,
+                  r.final_agreement, r.seconds, r.pick_seconds, r.fit_seconds, r.restarts_kept);
       std::fflush(stdout);
       med[rule][0].push_back(r.reach85 ? double(r.reach85) : double(max_judgments) * 2);
       med[rule][1].push_back(r.reach90 ? double(r.reach90) : double(max_judgments) * 2);
