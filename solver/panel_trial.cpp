@@ -18,6 +18,19 @@
 
 namespace kith {
 
+PickerOptions neighbourhood_picker() {
+  PickerOptions o;
+  o.near_candidates = 24;
+  o.feature_candidates = 8;
+  o.random_candidates = 8;
+  o.anchors_scored = 1;
+  o.scored_places = 0;
+  o.local_share = 0.0;
+  o.response = PickerResponse::kTSTE;
+  return o;
+}
+
+
 bool PanelTrialOptions::IsValid(std::string* error) const {
   auto fail = [&](const std::string& m) {
     if (error) *error = m;

@@ -158,7 +158,7 @@ struct LiveDemo {
   const DemoData& data;
   MapFeed& feed;
   SimulatedPanel panel;
-  Picker picker;
+  Picker picker{neighbourhood_picker()};  // as the headless run (solver/panel_trial.h)
   std::vector<Judgment> truth;       // held-out triplets of the hidden distance
   std::vector<Judgment> answers;
   double first_agreement = -1.0;     // of the features-only map, when the first answer came
