@@ -46,8 +46,7 @@ bool choose_colour(const Collection& c, const std::string& colour, WindowOptions
 
 // A session (or a plain collection through a SessionLink that starts a file when needed): every
 // judgment, pin and event is recorded before the engine sees it; the Session menu is added.
-int run_linked(SessionLink& link, WindowOptions wo) {
-  const EngineOptions eo = link.engine_options();
+int run_linked(SessionLink& link, WindowOptions wo, const EngineOptions& eo) {
   std::unique_ptr<MapFeed> feed = make_engine_feed(link.collection(), eo, link.judgments(), link.start());
   if (!feed) {
     Points start = link.start();
@@ -66,7 +65,8 @@ int run_linked(SessionLink& link, WindowOptions wo) {
   return code;
 }
 
-int open_session(const std::string& path, WindowOptions wo, const std::string& colour, bool read_only) {
+int open_session(const std::string& path, WindowOptions wo, const std::string& colour, bool read_only,
+                 bool start_paused) {
   if (!display_available()) {
     std::fprintf(stderr, "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
                  "or run the window under xvfb-run.\n", path.c_str());
@@ -84,7 +84,9 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
     std::fprintf(stderr, "kith open: %s: the picture of item %s was not found (%s)\n", path.c_str(),
                  link->collection().ids[item].c_str(), link->collection().pictures[item].c_str());
   wo.title = std::filesystem::path(path).filename().string();
-  return run_linked(*link, wo);
+  EngineOptions eo = link->engine_options();  // the session's own settings
+  eo.start_paused = start_paused;
+  return run_linked(*link, wo, eo);
 }
 
 int cmd_open(const Args& args) {
@@ -136,7 +138,7 @@ int cmd_open(const Args& args) {
     return kExitUsage;
   }
   if (!positional.empty() && std::filesystem::path(positional[0]).extension() == ".kith")
-    return open_session(positional[0], wo, colour, read_only);
+    return open_session(positional[0], wo, colour, read_only, eo.start_paused);
   if (read_only) {
     std::fprintf(stderr, "kith open: --read-only is for session files (.kith)\n");
     return kExitUsage;
@@ -163,7 +165,7 @@ int cmd_open(const Args& args) {
   // Judgments and pins made on a plain collection start a session file next to it (never over
   // an existing file); a generated collection stays in memory.
   SessionLink link(std::move(*collection), eo, positional.empty() ? "" : positional[0]);
-  return run_linked(link, wo);
+  return run_linked(link, wo, eo);
 }
 
 }  // namespace kith
