@@ -145,14 +145,6 @@ AnchorPosterior anchor_posterior(const Points& y, int32_t anchor, const std::vec
   return post;
 }
 
-// Entropy of the posterior over places (nats): how open the anchor's place still is.
-double posterior_entropy(const AnchorPosterior& post) {
-  double h = 0.0;
-  for (double w : post.w)
-    if (w > 1e-300) h -= w * std::log(w);
-  return h;
-}
-
 // At most `keep` places standing for the posterior: the places themselves when few carry weight,
 // else `keep` places drawn by systematic resampling (each then weighs 1/keep). An unbiased
 // stand-in for the posterior that makes scoring pairs cost O(keep) instead of O(samples).
