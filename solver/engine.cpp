@@ -20,6 +20,7 @@
 #include "solver/engine.h"
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <map>
 #include <random>
@@ -31,6 +32,7 @@
 #include "solver/affinities.h"
 #include "solver/blended_objective.h"
 #include "solver/feature_prep.h"
+#include "solver/health.h"
 #include "solver/judgment_term.h"
 #include "solver/live_loop.h"
 #include "solver/neighbour_term.h"
@@ -510,6 +512,26 @@ class EngineModel : public LiveModel {
         ++agree;
     }
     s.health.judgment_agreement = active ? double(agree) / double(active) : -1.0;
+    // Trustworthiness and neighbour recall now and then (every kHealthSeconds), on a fixed-seed
+    // sample of at most kHealthSample items: about 40 ms of this thread at any N.
+    const auto now = std::chrono::steady_clock::now();
+    if (prepared_ && has_features_ && n() >= 12 && now >= next_health_) {
+      next_health_ = now + std::chrono::seconds(kHealthSeconds);
+      HealthOptions ho;
+      ho.sample_above = kHealthSample;
+      ho.threads = 1;
+      ho.trust_k = std::min<int>(ho.trust_k, int(std::min(n(), kHealthSample) / 2) - 1);
+      ho.recall_k = std::min<int>(ho.recall_k, int(std::min(n(), kHealthSample)) - 1);
+      try {
+        const MapHealth h = measure_health(*prepared_, y_, ho);
+        trust_ = h.trustworthiness;
+        recall_ = h.neighbour_recall;
+      } catch (const std::exception&) {
+        trust_ = recall_ = -1.0;
+      }
+    }
+    s.health.trustworthiness = trust_;
+    s.health.neighbour_recall = recall_;
   }
 
   size_t n() const { return ids_.size(); }
@@ -534,6 +556,10 @@ class EngineModel : public LiveModel {
   Schedule schedule_;
   std::vector<std::string> ids_;
   std::shared_ptr<const Points> raw_, prepared_;
+  static constexpr int kHealthSeconds = 4;
+  static constexpr size_t kHealthSample = 1000;
+  std::chrono::steady_clock::time_point next_health_ = std::chrono::steady_clock::now() + std::chrono::seconds(1);
+  double trust_ = -1.0, recall_ = -1.0;
   bool has_features_ = false;
   bool ready_ = false;
   double perplexity_ = 30.0;

@@ -266,12 +266,26 @@ CREATE TABLE checkpoints(
   positions BLOB NOT NULL);
 )sql";
 
-const char* const kRequiredTables[] = {"meta",   "settings",  "feature_columns", "tag_columns", "items",
-                                       "item_tags", "people", "judgments",       "pins",        "checkpoints"};
+// Version 2 adds the events table: what happened that is not a judgment (a "can't tell" answer,
+// a person added or renamed, a re-asked question), as JSON, kept like judgments (never deleted).
+constexpr const char* kEventsTable = R"sql(
+CREATE TABLE events(
+  event INTEGER PRIMARY KEY AUTOINCREMENT,
+  time REAL NOT NULL,
+  kind TEXT NOT NULL,
+  detail TEXT NOT NULL DEFAULT '{}');
+CREATE TRIGGER events_are_never_deleted BEFORE DELETE ON events
+  BEGIN SELECT RAISE(ABORT, 'events are never deleted'); END;
+)sql";
 
-// Migration steps: kMigrations[v - 1] takes a file from version v to v + 1. Empty while the first
-// version is the only one; a step is SQL run inside the migration's transaction.
-const std::vector<const char*> kMigrations = {};
+const char* const kRequiredTables[] = {"meta",   "settings",  "feature_columns", "tag_columns", "items",
+                                       "item_tags", "people", "judgments",       "pins",        "checkpoints",
+                                       "events"};
+
+// Migration steps: kMigrations[v - 1] takes a file from version v to v + 1; a step is SQL run
+// inside the migration's transaction (after the backup copy is written).
+const std::vector<const char*> kMigrations = {kEventsTable};
+static_assert(kSessionSchemaVersion == 2, "a new schema version needs its migration step here");
 static_assert(kSessionSchemaVersion >= 1, "schema versions start at 1");
 
 // ==== [SECTION] checking a file without changing it =============================================
@@ -638,6 +652,7 @@ std::string iso_time(double t) {
 // Inside the caller's transaction.
 void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings) {
   exec(d, kSchemaV1);
+  exec(d, kEventsTable);
   {
     Stmt m(d, "INSERT INTO meta(key, value) VALUES (?, ?)");
     m.bind(1, std::string("application")).bind(2, std::string(kApplicationMarker)).run();
@@ -1029,6 +1044,65 @@ void SessionStore::set_person_colour(int64_t person, const std::string& colour) 
   up.bind(1, colour).bind(2, person).run();
   if (sqlite3_changes(impl_->db.db) == 0)
     throw SessionError(Kind::kInvalid, impl_->path + ": no person with id " + std::to_string(person));
+}
+
+void SessionStore::rename_person(int64_t person, const std::string& name) {
+  impl_->require_writable();
+  if (name.empty()) throw SessionError(Kind::kInvalid, impl_->path + ": a person needs a name (a pseudonym is fine)");
+  std::lock_guard<std::mutex> lock(impl_->mutex);
+  {
+    Stmt taken(impl_->db, "SELECT person FROM people WHERE name = ?");
+    taken.bind(1, name);
+    if (taken.step() && taken.i64(0) != person)
+      throw SessionError(Kind::kInvalid, impl_->path + ": someone is already called '" + name + "'");
+  }
+  Stmt up(impl_->db, "UPDATE people SET name = ? WHERE person = ?");
+  up.bind(1, name).bind(2, person).run();
+  if (sqlite3_changes(impl_->db.db) == 0)
+    throw SessionError(Kind::kInvalid, impl_->path + ": no person with id " + std::to_string(person));
+}
+
+int64_t SessionStore::add_event(const std::string& kind, const std::string& detail) {
+  impl_->require_writable();
+  if (kind.empty()) throw SessionError(Kind::kInvalid, impl_->path + ": an event needs a kind");
+  std::lock_guard<std::mutex> lock(impl_->mutex);
+  Stmt ins(impl_->db, "INSERT INTO events(time, kind, detail) VALUES (?, ?, ?)");
+  ins.bind(1, now_seconds()).bind(2, kind).bind(3, detail.empty() ? std::string("{}") : detail).run();
+  return sqlite3_last_insert_rowid(impl_->db.db);
+}
+
+std::vector<SessionEvent> SessionStore::events() const {
+  std::lock_guard<std::mutex> lock(impl_->mutex);
+  std::vector<SessionEvent> out;
+  Stmt q(impl_->db, "SELECT event, time, kind, detail FROM events ORDER BY event");
+  while (q.step()) out.push_back(SessionEvent{q.i64(0), q.f64(1), q.text(2), q.text(3)});
+  return out;
+}
+
+void SessionStore::save_copy(const std::string& path) const {
+  std::error_code ec;
+  if (fs::exists(path, ec))
+    throw SessionError(Kind::kExists, path + ": a file is already there; kith does not write over it");
+  const std::string tmp = path + ".copying-" + std::to_string(::getpid());
+  fs::remove(tmp, ec);
+  {
+    std::lock_guard<std::mutex> lock(impl_->mutex);
+    try {
+      Stmt vac(impl_->db, "VACUUM INTO ?");  // a consistent copy, read through the WAL
+      vac.bind(1, tmp).run();
+    } catch (...) {
+      fs::remove(tmp, ec);
+      throw;
+    }
+  }
+  // link() refuses if the name appeared meanwhile: never clobber.
+  if (::link(tmp.c_str(), path.c_str()) != 0) {
+    const int err = errno;
+    fs::remove(tmp, ec);
+    throw SessionError(err == EEXIST ? Kind::kExists : Kind::kIo, path + ": cannot write the copy: " + std::strerror(err));
+  }
+  fs::remove(tmp, ec);
+  fsync_dir(fs::absolute(path).parent_path());
 }
 
 std::vector<SessionPerson> SessionStore::people() const {

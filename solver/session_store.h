@@ -38,7 +38,7 @@
 namespace kith {
 
 // The schema version this build writes (PRAGMA user_version). Older files are migrated.
-constexpr int kSessionSchemaVersion = 1;
+constexpr int kSessionSchemaVersion = 2;
 // PRAGMA application_id of every session: the bytes 'k','i','t','h'.
 constexpr int32_t kSessionApplicationId = 0x6B697468;
 
@@ -86,6 +86,15 @@ struct SessionPin {
   int32_t item = -1;
   std::vector<double> position;  // dims numbers
   double time = 0.0;             // seconds since the Unix epoch
+};
+
+// Something recorded that is not a judgment: a "can't tell" answer, a person added or renamed,
+// a re-asked question. `detail` is a JSON object as text.
+struct SessionEvent {
+  int64_t id = -1;
+  double time = 0.0;  // seconds since the Unix epoch
+  std::string kind;
+  std::string detail;
 };
 
 struct MapCheckpoint {
@@ -153,7 +162,16 @@ class SessionStore {
   // ---- people ----
   int64_t add_person(const std::string& name, const std::string& colour = "");  // existing: its id
   void set_person_colour(int64_t person, const std::string& colour);
+  void rename_person(int64_t person, const std::string& name);  // judgments keep the person, now renamed
   std::vector<SessionPerson> people() const;
+
+  // ---- events: committed before these return; never deleted ----
+  int64_t add_event(const std::string& kind, const std::string& detail_json);
+  std::vector<SessionEvent> events() const;  // in the order written
+
+  // A complete, consistent copy of the session at PATH (SQLite VACUUM INTO), for "save as".
+  // Refuses (Kind::kExists) when PATH exists; this store stays the one being written.
+  void save_copy(const std::string& path) const;
 
   // ---- judgments: committed before these return; never deleted ----
   // Returns the new id. A person named for the first time is added. time 0 means now.

@@ -155,6 +155,22 @@ TEST_CASE("engine: a judgment bends the map; retracted, it stops acting") {
   CHECK(s->judgment_cost == 0.0);
 }
 
+TEST_CASE("engine: snapshots carry trustworthiness and neighbour recall, measured now and then") {
+  Collection c = clusters(40);
+  Engine e(c, test_options());
+  e.start();
+  auto s = wait_until(e, [](const Snapshot& s) { return s.health.trustworthiness >= 0.0; }, 30s);
+  REQUIRE(s->health.trustworthiness >= 0.0);
+  // Four well-separated clusters: a map that has run a few seconds keeps most neighbours.
+  // (0.9 and 0.3 are common-practice floors for such data, not figures from a source.)
+  s = wait_until(e, [](const Snapshot& s) { return s.settled || s.iteration > 1500; }, 60s);
+  s = wait_until(e, [&](const Snapshot& x) { return x.generation > s->generation + 1 || x.settled; }, 10s);
+  CHECK(s->health.trustworthiness > 0.9);
+  CHECK(s->health.trustworthiness <= 1.0);
+  CHECK(s->health.neighbour_recall > 0.3);
+  CHECK(s->health.neighbour_recall <= 1.0);
+}
+
 TEST_CASE("engine: a converged engine settles and idles under 5% of a core; a command wakes it") {
   Collection c = clusters(40);
   EngineOptions o = test_options();

@@ -93,14 +93,21 @@ TEST_CASE("sessions: killed at random moments, a session keeps every acknowledge
       child_adds_judgments(path, fds[1], round, n_items);
     }
     ::close(fds[1]);
+    // Odd rounds: killed at a random moment after the fork (start-up, opening, writing).
+    // Even rounds: killed at a random moment after the first acknowledgement, so half the kills
+    // land while judgments are being written however slow a loaded machine makes the start-up.
+    Ack ack{};
+    size_t this_round = 0;
+    if (round % 2 == 0 && ::read(fds[0], &ack, sizeof ack) == ssize_t(sizeof ack)) {
+      all_acks[ack.id] = ack;
+      ++this_round;
+    }
     ::usleep(useconds_t(wait));
     ::kill(pid, SIGKILL);
     int status = 0;
     ::waitpid(pid, &status, 0);
     if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
     else ++child_errors;
-    Ack ack{};
-    size_t this_round = 0;
     while (::read(fds[0], &ack, sizeof ack) == ssize_t(sizeof ack)) {
       all_acks[ack.id] = ack;
       ++this_round;
@@ -133,7 +140,7 @@ TEST_CASE("sessions: killed at random moments, a session keeps every acknowledge
               kills, kills_with_acks, acknowledged, losses, unacknowledged_but_kept, failed_checks);
   CHECK(child_errors == 0);
   CHECK(kills >= 50);
-  CHECK(kills_with_acks >= 25);  // the kills must land while judgments are being written, not only at start-up
+  CHECK(kills_with_acks >= rounds / 2);  // the kills must land while judgments are being written, not only at start-up
   CHECK(losses == 0);
   CHECK(failed_checks == 0);
   CHECK(integrity_check(path) == "ok");

@@ -335,3 +335,73 @@ TEST_CASE("sessions: corrupt, truncated, foreign and newer files are refused, ea
   CHECK(SessionStore::inspect(dir + "/good.kith").judgments == 300);
   CHECK(SessionStore::open(dir + "/good.kith")->judgment_count() == 300);
 }
+
+TEST_CASE("sessions: a version 1 file is migrated after a backup, and keeps every judgment") {
+  const std::string dir = kith::test::temp_dir("kith-migrate");
+  const std::string path = make_session(dir);
+  size_t judgments_before = 0;
+  {
+    auto store = SessionStore::open(path);
+    judgments_before = store->judgment_count();
+  }
+  // Make it a version 1 file, as kith 0.1 wrote them: no events table.
+  sqlite3* db = nullptr;
+  REQUIRE(sqlite3_open(path.c_str(), &db) == SQLITE_OK);
+  REQUIRE(sqlite3_exec(db, "DROP TABLE events; PRAGMA user_version = 1;", nullptr, nullptr, nullptr) == SQLITE_OK);
+  sqlite3_close(db);
+
+  auto store = SessionStore::open(path);
+  const std::string backup = store->migration_backup();
+  REQUIRE_FALSE(backup.empty());
+  CHECK(backup.find(".schema-v1") != std::string::npos);
+  CHECK(store->judgment_count() == judgments_before);
+  const int64_t e = store->add_event("cant_tell", R"({"anchor":"swatch-1"})");
+  CHECK(e > 0);
+  REQUIRE(store->events().size() == 1);
+  CHECK(store->events()[0].kind == "cant_tell");
+  store.reset();
+
+  // The backup is still a version 1 session with the same judgments.
+  REQUIRE(sqlite3_open_v2(backup.c_str(), &db, SQLITE_OPEN_READONLY, nullptr) == SQLITE_OK);
+  sqlite3_stmt* q = nullptr;
+  REQUIRE(sqlite3_prepare_v2(db, "SELECT (SELECT count(*) FROM judgments), (SELECT user_version FROM pragma_user_version)",
+                             -1, &q, nullptr) == SQLITE_OK);
+  REQUIRE(sqlite3_step(q) == SQLITE_ROW);
+  CHECK(size_t(sqlite3_column_int64(q, 0)) == judgments_before);
+  CHECK(sqlite3_column_int(q, 1) == 1);
+  sqlite3_finalize(q);
+  sqlite3_close(db);
+}
+
+TEST_CASE("sessions: events and renamed people are kept; a copy saved as is complete and never overwrites") {
+  const std::string dir = kith::test::temp_dir("kith-events");
+  const std::string path = make_session(dir);
+  auto store = SessionStore::open(path);
+  const int64_t ines = store->add_person("Ines", "#0072b2");
+  store->add_person("Tomasz");
+  CHECK_THROWS_AS(store->rename_person(ines, "Tomasz"), SessionError);  // names stay unique
+  store->rename_person(ines, "Ines R.");
+  for (const auto& j : store->judgments()) CHECK(j.person != "Ines");
+  store->add_event("person", R"({"name":"Ines R.","renamed_from":"Ines"})");
+  store->add_event("cant_tell", R"({"anchor":"a","candidates":["b","c"],"person":"Tomasz"})");
+  CHECK_THROWS_AS(store->add_event("", "{}"), SessionError);
+
+  const std::string copy = dir + "/copy.kith";
+  store->save_copy(copy);
+  const std::string copy_bytes = kith::test::file_bytes(copy);
+  CHECK_THROWS_AS(store->save_copy(copy), SessionError);  // exists: refused
+  CHECK(kith::test::file_bytes(copy) == copy_bytes);       // and untouched
+  CHECK_THROWS_AS(store->save_copy(path), SessionError);  // never over the session itself
+  const size_t judgments = store->judgment_count();
+  store->add_event("after", "{}");  // the original goes on being written
+  store.reset();
+
+  auto reopened = SessionStore::open(copy);
+  CHECK(reopened->judgment_count() == judgments);
+  REQUIRE(reopened->events().size() == 2);
+  CHECK(reopened->events()[1].kind == "cant_tell");
+  bool renamed = false;
+  for (const auto& p : reopened->people()) renamed = renamed || p.name == "Ines R.";
+  CHECK(renamed);
+  CHECK(reopened->last_checkpoint().has_value());
+}

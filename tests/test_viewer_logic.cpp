@@ -402,6 +402,50 @@ TEST_CASE("viewer input script: parses events and reports the line of a mistake"
 
 namespace kith {
 namespace {
+TEST_CASE("viewer camera: a growing map stays framed until someone pans or zooms; F resumes following") {
+  Rig r;
+  auto grown = [&](float scale) {
+    auto s = std::make_shared<Snapshot>(*r.feed.latest());
+    s->positions *= double(scale);
+    s->generation += 1;
+    return s;
+  };
+  auto all_on_screen = [&] {
+    for (const auto& p : r.view.positions()) {
+      const Projected q = r.view.camera().project(p);
+      if (!q.visible || q.screen.x < 0.f || q.screen.y < 0.f || q.screen.x > 1000.f || q.screen.y > 700.f) return false;
+    }
+    return true;
+  };
+  auto settle = [&] {
+    for (int k = 0; k < 200; ++k) r.view.frame(0.05f, 1000, 700);
+  };
+  REQUIRE(all_on_screen());
+  // t-SNE maps grow many times over from their start: five snapshots, each 1.6 times wider.
+  float scale = 1.f;
+  for (int k = 0; k < 5; ++k) {
+    scale *= 1.6f;
+    r.view.set_snapshot(grown(scale));
+    settle();
+    CHECK(all_on_screen());
+  }
+  // A person zooms in: from then on the camera stays where they put it.
+  r.view.camera().zoom(4.f);
+  settle();
+  const CameraPose chosen = r.view.camera().goal();
+  r.view.set_snapshot(grown(scale * 3.f));
+  settle();
+  CHECK(r.view.camera().goal().distance == doctest::Approx(chosen.distance));
+  CHECK_FALSE(all_on_screen());
+  // F (fit_all) frames it again and follows again.
+  r.view.fit_all(true);
+  settle();
+  CHECK(all_on_screen());
+  r.view.set_snapshot(grown(scale * 6.f));
+  settle();
+  CHECK(all_on_screen());
+}
+
 TEST_CASE("viewer camera: fit_points frames every point, and tightly (some point near the edge)") {
   std::mt19937_64 rng(21);
   std::normal_distribution<float> g(0.f, 3.f);

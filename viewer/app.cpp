@@ -117,6 +117,7 @@ struct App {
   bool scripted_down[3] = {false, false, false};
   int script_frame = 0;
   uint64_t wait_until_iteration = 0;
+  Clock::time_point glide_hold_started{};
   Clock::time_point wait_started;
   bool quit = false;
   float fb_scale = 1.f;  // framebuffer pixels per window pixel
@@ -517,6 +518,7 @@ void App::panels() {
       if (ImGui::MenuItem("Quit", "ctrl+Q")) quit = true;
       ImGui::EndMenu();
     }
+    if (hooks.menus) hooks.menus();
     if (ImGui::BeginMenu("Map")) {
       if (ImGui::MenuItem(paused() ? "Resume" : "Pause", "Space")) toggle_pause();
       if (ImGui::MenuItem("Restart", "shift+R")) handle_key(GLFW_KEY_R, GLFW_MOD_SHIFT);
@@ -553,6 +555,7 @@ void App::panels() {
     ImGui::TextDisabled("%s  %.0f fps", state.c_str(), double(fps));
     ImGui::EndMainMenuBar();
   }
+  if (hooks.windows) hooks.windows();
   const float top = ImGui::GetFrameHeight();
   const ImGuiIO& io = ImGui::GetIO();
   // The legend, top-left under the menu.
@@ -838,7 +841,8 @@ void App::update_title() {
   std::string state = !feed.live() ? "still map" : paused() ? "paused" : (s && s->settled) ? "settled" : "running";
   std::string title = "kith \xe2\x80\x94 " + name + " \xe2\x80\x94 " + std::to_string(collection.size()) + " items, " + state;
   if (s && feed.live()) title += ", iteration " + std::to_string(s->iteration);
-  if (!options.session_state.empty()) title += " \xe2\x80\x94 " + options.session_state;
+  const std::string saving = hooks.title_state ? hooks.title_state() : options.session_state;
+  if (!saving.empty()) title += " \xe2\x80\x94 " + saving;
   glfwSetWindowTitle(window, title.c_str());
 }
 
@@ -1084,7 +1088,14 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
         last_title = now;
       }
       ++app.frame;
-      if (app.wait_until_iteration == 0) ++app.script_frame;
+      // A script's frame counter also holds while the camera glides (at most 2 s per glide), so
+      // "dump" and "shot" see the same settled view however loaded the machine is.
+      const bool gliding = app.scripted && app.view->camera().moving() &&
+                           (app.glide_hold_started == Clock::time_point{} ||
+                            now - app.glide_hold_started < std::chrono::seconds(2));
+      if (gliding && app.glide_hold_started == Clock::time_point{}) app.glide_hold_started = now;
+      if (!app.view->camera().moving()) app.glide_hold_started = Clock::time_point{};
+      if (app.wait_until_iteration == 0 && !gliding) ++app.script_frame;
       if (options.frames > 0 && app.script_frame >= options.frames) break;
     }
     if (!options.fps_report.empty()) {

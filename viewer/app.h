@@ -54,6 +54,10 @@ struct WindowHooks {
   // Returns "" when written (or when there is no session to write to), else why it was not.
   // Judgments, retractions and pins are not events: they go through MapFeed::prepare/post.
   std::function<std::string(const std::string& kind, const std::string& detail)> record_event;
+  // Sessions (viewer/session_link.h, viewer/session_menu.h):
+  std::function<std::string()> title_state;  // the saving state for the title bar (polled each second)
+  std::function<void()> menus;               // more menus, drawn inside the main menu bar
+  std::function<void()> windows;             // more windows, drawn once per frame
 };
 
 // The hooks every window gets unless told otherwise: teach through solver/teach.h when built in.

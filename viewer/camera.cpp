@@ -44,6 +44,7 @@ void Camera::orbit(float dx, float dy) {
 }
 
 void Camera::pan(float dx, float dy) {
+  ++framing_changes_;
   // Move the target so the point under the mouse stays under it (at the target's depth).
   const float world_per_pixel = 2.f * goal_.distance * std::tan(glm::radians(kFovYDegrees) / 2.f) / float(height_);
   const glm::vec3 f = forward();
@@ -54,7 +55,10 @@ void Camera::pan(float dx, float dy) {
   pose_.target += shift;
 }
 
-void Camera::zoom(float steps) { goal_.distance = std::max(goal_.distance * std::pow(0.88f, steps), 1e-4f); }
+void Camera::zoom(float steps) {
+  ++framing_changes_;
+  goal_.distance = std::max(goal_.distance * std::pow(0.88f, steps), 1e-4f);
+}
 
 void Camera::fit(const glm::vec3& lo, const glm::vec3& hi, bool smooth) {
   CameraPose g = goal_;

@@ -7,6 +7,7 @@
 // Screen coordinates are pixels with (0,0) at the top-left, as GLFW reports the mouse.
 // Plain value type, no GL; used by the window's thread only.
 #pragma once
+#include <cstdint>
 #include <glm/glm.hpp>
 #include <optional>
 #include <string>
@@ -47,6 +48,9 @@ class Camera {
   void orbit(float dx, float dy);
   void pan(float dx, float dy);
   void zoom(float steps);  // > 0 moves closer; one step = 12 % of the distance
+  // How many times a person panned or zoomed: the map view stops following a growing map once
+  // someone has chosen a framing of their own.
+  uint64_t framing_changes() const { return framing_changes_; }
   void spin(float radians) { goal_.yaw += radians; pose_.yaw += radians; }  // auto-rotation
 
   // Goals framing a box or a set of points (a sphere around them fits the view).
@@ -56,6 +60,7 @@ class Camera {
   void fit_points(const std::vector<glm::vec3>& points, bool smooth = true, float margin = 0.06f);
 
   void update(float dt_seconds);
+
 
   glm::vec3 eye() const;
   glm::vec3 forward() const;  // unit, eye -> target
@@ -76,6 +81,7 @@ class Camera {
   static glm::vec3 eye_of(const CameraPose& p);
   CameraPose pose_, goal_;
   int width_ = 1280, height_ = 800;
+  uint64_t framing_changes_ = 0;
 };
 
 }  // namespace kith

@@ -7,16 +7,14 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <fstream>
-#include <nlohmann/json.hpp>
+#include <algorithm>
 
-#include "solver/groups.h"
 #include "solver/session_store.h"
-#include "solver/suspects.h"
 #include "viewer/commands.h"
 #include "viewer/offscreen_render.h"
 #include "viewer/session_cli.h"
-#include "solver/judgment_io.h"
+#include "solver/judgment_health.h"
+#include "viewer/session_export.h"
 
 namespace kith {
 namespace {
@@ -38,7 +36,8 @@ const char* const kUsage =
     "  --picture FILE        a PNG of the map from the last checkpoint, pins marked\n"
     "  --size WxH            size of --picture in pixels (default: 1280x800)\n"
     "  --flat FILE           a 2-D arrangement (for print or a slide): the same blended objective\n"
-    "                        run in 2-D, started from the 3-D map; CSV like --layout without z\n"
+    "                        (features, judgments, pins) run in 2-D, started from the 3-D map seen\n"
+    "                        along its flattest direction; CSV (or JSON) like --layout without z\n"
     "\n"
     "options:\n"
     "  --people RULE         in --judgments: names (default), codes (P1, P2, ... in order of first\n"
@@ -51,120 +50,6 @@ const char* const kUsage =
 int usage_error(const std::string& message) {
   std::fprintf(stderr, "kith export: %s\n%s", message.c_str(), kUsage);
   return kExitUsage;
-}
-
-bool ends_with(const std::string& s, const std::string& suffix) {
-  return s.size() >= suffix.size() && s.compare(s.size() - suffix.size(), suffix.size(), suffix) == 0;
-}
-
-// Refuses to write over a session (or any SQLite file): exports never destroy user data.
-std::string check_output(const std::string& out, const std::string& session) {
-  namespace fs = std::filesystem;
-  std::error_code ec;
-  if (fs::exists(out, ec)) {
-    if (fs::equivalent(out, session, ec)) return out + ": that is the session itself";
-    std::ifstream in(out, std::ios::binary);
-    char head[16] = {};
-    in.read(head, 16);
-    if (std::string(head, 15) == "SQLite format 3")
-      return out + ": a SQLite database (a session?) is there; kith will not overwrite it with an export";
-  }
-  return "";
-}
-
-// Writes `text` to PATH through a temporary file and a rename. Returns "" or what went wrong.
-std::string write_atomically(const std::string& path, const std::string& text) {
-  const std::string tmp = path + ".writing-" + std::to_string(::getpid());
-  {
-    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-    if (!out) return path + ": cannot write (" + std::strerror(errno) + ")";
-    out.write(text.data(), std::streamsize(text.size()));
-    out.flush();
-    if (!out) {
-      std::remove(tmp.c_str());
-      return path + ": writing failed (disk full?)";
-    }
-  }
-  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
-    const std::string why = std::strerror(errno);
-    std::remove(tmp.c_str());
-    return path + ": cannot write (" + why + ")";
-  }
-  return "";
-}
-
-std::string number(double v) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.9g", v);
-  return buf;
-}
-
-struct LayoutExtras {
-  std::vector<int32_t> group;   // N, -1 = no group; empty if not computed
-  std::vector<double> suspect;  // N, NaN = no score; empty if not computed
-};
-
-LayoutExtras analyse(const Collection& c, const Points& map, const std::string& tag_column) {
-  LayoutExtras x;
-  try {
-    x.group = find_groups(map).label;
-  } catch (const std::exception& e) {
-    std::fprintf(stderr, "kith export: no groups (%s)\n", e.what());
-  }
-  const TagColumn* tags = nullptr;
-  for (const auto& t : c.tags)
-    if (tag_column.empty() ? !tags : t.name == tag_column) tags = &t;
-  if (tags) {
-    try {
-      SuspectOptions o;
-      o.space = c.features.cols() > 0 ? SuspectSpace::kBoth : SuspectSpace::kMap;
-      x.suspect = find_suspects(tags->values, c.features, map, o).score;
-    } catch (const std::exception& e) {
-      std::fprintf(stderr, "kith export: no suspect scores (%s)\n", e.what());
-    }
-  }
-  return x;
-}
-
-std::string layout_csv(const Collection& c, const Points& map, const LayoutExtras& x) {
-  std::string s = "id,x,y";
-  if (map.cols() == 3) s += ",z";
-  for (const auto& t : c.tags) s += "," + session_cli::csv_field(t.name);
-  s += ",group,suspect_score\n";
-  for (size_t i = 0; i < c.size(); ++i) {
-    s += session_cli::csv_field(c.ids[i]);
-    for (Eigen::Index d = 0; d < map.cols(); ++d) s += "," + number(map(Eigen::Index(i), d));
-    for (const auto& t : c.tags) s += "," + session_cli::csv_field(t.values[i]);
-    s += ",";
-    if (!x.group.empty() && x.group[i] >= 0) s += std::to_string(x.group[i]);
-    s += ",";
-    if (!x.suspect.empty() && std::isfinite(x.suspect[i])) s += number(x.suspect[i]);
-    s += "\n";
-  }
-  return s;
-}
-
-std::string layout_json(const Collection& c, const Points& map, const LayoutExtras& x, uint64_t iteration) {
-  nlohmann::ordered_json items = nlohmann::ordered_json::array();
-  for (size_t i = 0; i < c.size(); ++i) {
-    nlohmann::ordered_json it;
-    it["id"] = c.ids[i];
-    it["x"] = map(Eigen::Index(i), 0);
-    it["y"] = map(Eigen::Index(i), 1);
-    if (map.cols() == 3) it["z"] = map(Eigen::Index(i), 2);
-    nlohmann::ordered_json tags = nlohmann::ordered_json::object();
-    for (const auto& t : c.tags) tags[t.name] = t.values[i];
-    it["tags"] = tags;
-    it["group"] = (!x.group.empty() && x.group[i] >= 0) ? nlohmann::ordered_json(x.group[i]) : nlohmann::ordered_json();
-    it["suspect_score"] = (!x.suspect.empty() && std::isfinite(x.suspect[i])) ? nlohmann::ordered_json(x.suspect[i])
-                                                                                : nlohmann::ordered_json();
-    items.push_back(std::move(it));
-  }
-  nlohmann::ordered_json doc;
-  doc["dims"] = map.cols();
-  doc["iteration"] = iteration;
-  doc["items"] = std::move(items);
-  return doc.dump(1) + "\n";
 }
 
 }  // namespace
@@ -188,13 +73,12 @@ int cmd_export(const Args& args) {
     return usage_error("--people is names, codes or leave-out, got '" + p.value("--people") + "'");
   for (const char* option : {"--layout", "--judgments", "--picture", "--flat"}) {
     if (!p.has(option)) continue;
-    const std::string problem = check_output(p.value(option), path);
+    const std::string problem = check_export_target(p.value(option), path);
     if (!problem.empty()) {
       std::fprintf(stderr, "kith export: %s\n", problem.c_str());
       return kExitBadInput;
     }
   }
-  if (p.has("--flat")) return usage_error("--flat: not available in this build yet");
 
   try {
     SessionOpenOptions ro;
@@ -215,11 +99,8 @@ int cmd_export(const Args& args) {
         return kExitBadInput;
       }
       const std::string out = p.value("--layout");
-      const LayoutExtras extras = analyse(c, checkpoint->positions, p.value("--tag"));
-      const std::string text = ends_with(out, ".json") ? layout_json(c, checkpoint->positions, extras,
-                                                                     checkpoint->iteration)
-                                                       : layout_csv(c, checkpoint->positions, extras);
-      const std::string problem = write_atomically(out, text);
+      const std::string problem =
+          export_layout(c, checkpoint->positions, checkpoint->iteration, out, p.value("--tag"), path);
       if (!problem.empty()) {
         std::fprintf(stderr, "kith export: %s\n", problem.c_str());
         return kExitBadInput;
@@ -256,18 +137,52 @@ int cmd_export(const Args& args) {
     }
 
     if (p.has("--judgments")) {
-      std::vector<Judgment> judgments = store->judgments();
-      session_cli::apply_people_rule(&judgments, people);
-      JudgmentWriteOptions w;
-      w.include_retracted = p.flags.count("--include-retracted") > 0;
-      w.include_people = people != session_cli::PeopleInExport::kLeaveOut;
+      const std::vector<Judgment> judgments = store->judgments();
+      const bool retracted_too = p.flags.count("--include-retracted") > 0;
       const std::string out = p.value("--judgments");
-      const std::string problem = write_judgments_csv(out, judgments, c.ids, w);
+      const std::string problem = export_judgments(judgments, c, out, people, retracted_too, path);
       if (!problem.empty()) {
         std::fprintf(stderr, "kith export: %s\n", problem.c_str());
         return kExitBadInput;
       }
-      std::printf("%s: %zu judgments\n", out.c_str(), judgments.size());
+      size_t written = 0;
+      for (const Judgment& j : judgments) written += (retracted_too || !j.retracted) ? 1 : 0;
+      std::printf("%s: %zu judgments\n", out.c_str(), written);
+    }
+
+    if (p.has("--flat")) {
+      const auto checkpoint = store->last_checkpoint();
+      if (!checkpoint) {
+        std::fprintf(stderr, "kith export: %s has no map yet: open it (kith open %s) and let the map settle first\n",
+                     path.c_str(), path.c_str());
+        return kExitBadInput;
+      }
+      const SessionSettings settings = store->settings();
+      FlatMapOptions fo;
+      fo.perplexity = std::min(settings.perplexity, std::max(1.0, double(c.size() - 1) / 3.0));
+      fo.blend = settings.blend;
+      fo.theta = settings.theta;
+      fo.dof = settings.dof;
+      fo.learning_rate = settings.learning_rate;
+      fo.seed = settings.seed;
+      std::vector<int32_t> pinned;
+      for (const auto& pin : store->pins()) pinned.push_back(pin.item);
+      const std::vector<Judgment> judgments = store->judgments();
+      const std::string out = p.value("--flat");
+      double flat_agreement = 0.0;
+      const std::string problem =
+          export_flat(c, checkpoint->positions, judgments, pinned, fo, out, p.value("--tag"), path, &flat_agreement);
+      if (!problem.empty()) {
+        std::fprintf(stderr, "kith export: --flat: %s\n", problem.c_str());
+        return kExitBadInput;
+      }
+      size_t active = 0;
+      for (const Judgment& j : judgments) active += j.retracted ? 0 : 1;
+      std::printf("%s: %zu items in 2-D", out.c_str(), c.size());
+      if (active > 0)
+        std::printf("; judgments honoured: %.1f%% in the 3-D map, %.1f%% flat", 100.0 * judgment_agreement(checkpoint->positions, judgments),
+                    100.0 * flat_agreement);
+      std::printf("\n");
     }
   } catch (const SessionError& e) {
     return session_cli::report("export", e);

@@ -8,6 +8,7 @@
 #include "viewer/map_source.h"
 #include "viewer/offscreen_render.h"
 #include "viewer/session_link.h"
+#include "viewer/session_menu.h"
 
 namespace kith {
 
@@ -27,8 +28,11 @@ const char* kHelp =
     "  --turn              start with the slow turn on (for a shared screen)\n"
     "  --no-panels         start with the panels hidden (Tab shows them)\n"
     "  --people A,B,C      list these people for asking, in turn order (A in the window asks)\n"
+    "  --read-only         with a session: look without writing (e.g. while another kith has it open)\n"
     "A session file (.kith) opens with its own settings, judgments, pins and last map, and\n"
-    "everything done in the window is written to it at once.\n";
+    "everything done in the window is written to it at once. On a plain collection, the first\n"
+    "judgment or pin starts a session file next to it (ITEMS.kith, or ITEMS-2.kith and so on;\n"
+    "an existing file is never touched). The Session menu saves as, exports and opens others.\n";
 }  // namespace
 
 bool choose_colour(const Collection& c, const std::string& colour, WindowOptions* wo) {
@@ -42,8 +46,29 @@ bool choose_colour(const Collection& c, const std::string& colour, WindowOptions
   return false;
 }
 
-// A session: its collection, settings, judgments, pins and last map; everything done is recorded.
-int open_session(const std::string& path, WindowOptions wo, const std::string& colour) {
+// A session (or a plain collection through a SessionLink that starts a file when needed): every
+// judgment, pin and event is recorded before the engine sees it; the Session menu is added.
+int run_linked(SessionLink& link, WindowOptions wo) {
+  const EngineOptions eo = link.engine_options();
+  std::unique_ptr<MapFeed> feed = make_engine_feed(link.collection(), eo, link.judgments(), link.start());
+  if (!feed) {
+    Points start = link.start();
+    if (start.rows() == 0) start = rough_positions(link.collection());
+    feed = std::make_unique<StillFeed>(link.collection().ids, start);
+  }
+  link.post_pins(*feed);
+  wo.blend = eo.blend;
+  wo.perplexity = eo.perplexity;
+  wo.theta = eo.theta;
+  std::unique_ptr<MapFeed> recorded = link.recording(*feed);
+  SessionMenu menu(link, *recorded);
+  const int code = run_window(link.collection(), *recorded, wo, link.judgments(),
+                              menu.hooks(link.hooks(default_window_hooks())));
+  if (auto s = feed->latest()) link.final_checkpoint(*s);
+  return code;
+}
+
+int open_session(const std::string& path, WindowOptions wo, const std::string& colour, bool read_only) {
   if (!display_available()) {
     std::fprintf(stderr, "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
                  "or run the window under xvfb-run.\n", path.c_str());
@@ -51,29 +76,17 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
   }
   std::unique_ptr<SessionLink> link;
   try {
-    link = std::make_unique<SessionLink>(path);
+    link = std::make_unique<SessionLink>(path, read_only);
   } catch (const std::exception& e) {
     std::fprintf(stderr, "kith open: %s\n", e.what());
     return kExitBadInput;
   }
   if (!choose_colour(link->collection(), colour, &wo)) return kExitUsage;
-  const EngineOptions eo = link->engine_options();
-  std::unique_ptr<MapFeed> feed = make_engine_feed(link->collection(), eo, link->judgments(), link->start());
-  if (!feed) {
-    Points start = link->start();
-    if (start.rows() == 0) start = rough_positions(link->collection());
-    feed = std::make_unique<StillFeed>(link->collection().ids, start);
-  }
-  link->post_pins(*feed);
+  for (size_t item : link->store()->missing_pictures())
+    std::fprintf(stderr, "kith open: %s: the picture of item %s was not found (%s)\n", path.c_str(),
+                 link->collection().ids[item].c_str(), link->collection().pictures[item].c_str());
   wo.title = std::filesystem::path(path).filename().string();
-  wo.session_state = link->title_state();
-  wo.blend = eo.blend;
-  wo.perplexity = eo.perplexity;
-  wo.theta = eo.theta;
-  std::unique_ptr<MapFeed> recorded = link->recording(*feed);
-  const int code = run_window(link->collection(), *recorded, wo, link->judgments(), link->hooks(default_window_hooks()));
-  if (auto s = feed->latest()) link->final_checkpoint(*s);
-  return code;
+  return run_linked(*link, wo);
 }
 
 int cmd_open(const Args& args) {
@@ -109,6 +122,7 @@ int cmd_open(const Args& args) {
   if (auto v = flags.value("--screenshot")) wo.screenshot = *v;
   if (auto v = flags.value("--fps-report")) wo.fps_report = *v;
   if (flags.flag("--no-vsync")) wo.vsync = false;
+  const bool read_only = flags.flag("--read-only");
   EngineOptions eo;
   if (!read_engine_flags(flags, "open", &eo)) return kExitUsage;
   std::vector<std::string> positional;
@@ -125,7 +139,11 @@ int cmd_open(const Args& args) {
     return kExitUsage;
   }
   if (!positional.empty() && std::filesystem::path(positional[0]).extension() == ".kith")
-    return open_session(positional[0], wo, colour);
+    return open_session(positional[0], wo, colour, read_only);
+  if (read_only) {
+    std::fprintf(stderr, "kith open: --read-only is for session files (.kith)\n");
+    return kExitUsage;
+  }
   int code = kExitOk;
   auto collection = load_items_or_report("open", positional.empty() ? "" : positional[0], size_t(generate), &code);
   if (!collection) return code;
@@ -145,7 +163,10 @@ int cmd_open(const Args& args) {
                  positional.empty() ? "ITEMS" : positional[0].c_str());
     return kExitUsage;
   }
-  return run_window(*collection, eo, wo);
+  // Judgments and pins made on a plain collection start a session file next to it (never over
+  // an existing file); a generated collection stays in memory.
+  SessionLink link(std::move(*collection), eo, positional.empty() ? "" : positional[0]);
+  return run_linked(link, wo);
 }
 
 }  // namespace kith

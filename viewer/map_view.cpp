@@ -92,7 +92,15 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
   for (size_t i = 0; i < n && i < snapshot_->pinned.size(); ++i) pinned_[i] = snapshot_->pinned[i];
   if (start_positions_.size() != n) start_positions_ = positions_;
   update_bounds();
-  if (first) fit_all(false);
+  if (first) {
+    fit_all(false);
+  } else if (following_ && camera_.framing_changes() == framing_at_fit_ && drag_item_ < 0) {
+    // Until someone pans, zooms or focuses, the camera keeps the whole map in view as it grows
+    // out of its tiny start (or shrinks well inside the frame).
+    const bool outgrown = glm::any(glm::lessThan(lo_, fitted_lo_)) || glm::any(glm::greaterThan(hi_, fitted_hi_));
+    const bool shrunk = glm::length(hi_ - lo_) < 0.6f * glm::length(fitted_hi_ - fitted_lo_);
+    if (outgrown || shrunk) fit_all(true, false);
+  }
   dirty_points_ = dirty_lines_ = true;
   if (options_.colour_by.kind == ColourKind::kDisplacement) dirty_colours_ = true;
   map_still_seconds_ = 0.f;
@@ -145,13 +153,20 @@ void MapView::update_bounds() {
 
 // ============================================================================ [camera]
 
-void MapView::fit_all(bool smooth) {
+void MapView::fit_all(bool smooth, bool by_person) {
+  if (by_person || framing_at_fit_ == camera_.framing_changes()) following_ = true;
+  framing_at_fit_ = camera_.framing_changes();
+  // A growing map is refitted when it leaves a box 4 % larger than the one framed now.
+  const glm::vec3 centre = (lo_ + hi_) * 0.5f, half = (hi_ - lo_) * 0.5f * 1.04f;
+  fitted_lo_ = centre - half;
+  fitted_hi_ = centre + half;
   if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
   camera_.fit_points(positions_, smooth);
 }
 
 void MapView::focus_selection() {
   if (selection_.empty()) return fit_all(true);
+  following_ = false;
   glm::vec3 lo(std::numeric_limits<float>::max()), hi(-std::numeric_limits<float>::max());
   for (int i : selection_.items())
     if (size_t(i) < positions_.size()) {

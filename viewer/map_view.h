@@ -84,7 +84,8 @@ class MapView {
   // ---- camera ----------------------------------------------------------------
   Camera& camera() { return camera_; }
   const Camera& camera() const { return camera_; }
-  void fit_all(bool smooth = true);
+  // Frames the whole map; `by_person` (F, the menu) also resumes following a growing map.
+  void fit_all(bool smooth = true, bool by_person = true);
   void focus_selection();
   bool auto_rotate = false;
   float rotate_speed = 0.12f;  // radians per second
@@ -148,6 +149,9 @@ class MapView {
   std::vector<Judgment> judgments_;
   std::vector<int> judgment_count_;
   glm::vec3 lo_{-1.f}, hi_{1.f};
+  bool following_ = true;          // the camera keeps a growing map framed (until a pan/zoom/focus)
+  uint64_t framing_at_fit_ = 0;    // Camera::framing_changes() at the last fit
+  glm::vec3 fitted_lo_{0.f}, fitted_hi_{0.f};  // the box last framed
   bool have_bounds_ = false;
   glm::vec3 grid_lo_{0.f}, grid_hi_{0.f};
   std::vector<Rgb> colours_;
