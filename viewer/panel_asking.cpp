@@ -137,7 +137,7 @@ float AskingPanel::band_height() const {
   if (!desk_->asking()) return 0.f;
   const float h = ImGui::GetIO().DisplaySize.y;
   const bool grid = desk_->mode() == AskingMode::kGrid;
-  return std::floor(h * (grid ? 0.48f : 0.40f) * (desk_->large_type() ? 1.12f : 1.f));
+  return std::floor(h * (grid ? 0.48f : 0.40f) * (desk_->large_type() ? 1.25f : 1.f));
 }
 
 // The map framed in the part of the window the question screens leave free: between the turn
@@ -358,7 +358,10 @@ void AskingPanel::card(int item, float side, const char* key_label, bool picked,
   }
   // Caption: the key, and the id (when the picture shows instead of it).
   std::string text = key_label ? std::string(key_label) : std::string();
-  if (!collection_.pictures.empty()) text += (text.empty() ? "" : "   ") + collection_.ids[size_t(item)];
+  if (!collection_.pictures.empty()) {
+    const std::string with_id = text + (text.empty() ? "" : "   ") + collection_.ids[size_t(item)];
+    if (text.empty() || ImGui::CalcTextSize(with_id.c_str()).x <= side - 2 * pad) text = with_id;  // the key matters more
+  }
   if (!text.empty()) {
     const ImVec2 ts = ImGui::CalcTextSize(text.c_str());
     dl->AddText(ImVec2(at.x + std::max(pad, (side - ts.x) * 0.5f), at.y + side + 1), ImGui::GetColorU32(ImGuiCol_Text),
