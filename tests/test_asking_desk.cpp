@@ -115,7 +115,8 @@ TEST_CASE("asking keys: each screen has its own keys; ctrl chords stay the windo
   CHECK(asking_key_action(AskingMode::kOff, GLFW_KEY_O, 0, 8).action == A::kStartOwn);
   CHECK(asking_key_action(AskingMode::kPair, GLFW_KEY_W, 0, 8).action == A::kNextPerson);
   CHECK(asking_key_action(AskingMode::kPair, GLFW_KEY_W, GLFW_MOD_SHIFT, 8).action == A::kPrevPerson);
-  CHECK(asking_key_action(AskingMode::kOff, GLFW_KEY_L, 0, 8).action == A::kLargeType);
+  CHECK(asking_key_action(AskingMode::kOff, GLFW_KEY_B, 0, 8).action == A::kLargeType);
+  CHECK(asking_key_action(AskingMode::kPair, GLFW_KEY_L, 0, 8).action == A::kNone);  // the judgments panel's key
 }
 
 TEST_CASE("own judgment: three clicks in order, no item twice, back clears the last") {

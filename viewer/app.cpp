@@ -32,6 +32,7 @@
 #include "viewer/input_script.h"
 #include "viewer/offscreen_render.h"
 #include "viewer/panel_asking.h"
+#include "viewer/panel_judgments.h"
 #include "viewer/panel_structure.h"
 #include "viewer/picking.h"
 #include "viewer/ui_style.h"
@@ -106,7 +107,9 @@ struct App {
   std::unique_ptr<MapInteraction> interaction;
   std::unique_ptr<StructurePanel> structure;  // suspects, groups, neighbours (key S)
   bool show_structure = false;
-  std::unique_ptr<AskingPanel> asking;        // pair, grid and own judgments; people (keys A, O, W, L)
+  std::unique_ptr<AskingPanel> asking;        // pair, grid and own judgments; people (keys A, O, W, B)
+  std::unique_ptr<JudgmentsPanel> judgments_panel;  // list, agreement, CSV files (key L)
+  bool show_judgments = false;
   std::unordered_map<std::string, int> index_of_id;
 
   // Input.
@@ -154,29 +157,15 @@ struct App {
     if (hooks.on_post) hooks.on_post(copy, seq);
     return seq;
   }
-  // The asking screens' post path: prepare (a session stores the command and gives a judgment its
-  // id), then post; "" when done, else why it was refused (then nothing was posted).
+  // For panels: like post(), but says why a command was refused and hands back the body as the
+  // feed completed it (a new judgment's stored id).
   std::string post_checked(CommandBody& body) {
     if (const std::string refused = feed.prepare(body); !refused.empty()) {
       say(refused);
       return refused;
     }
-    if (auto* a = std::get_if<cmd::AddJudgment>(&body); a && a->judgment.id < 0) {
-      int64_t top = 0;  // no session: the id the engine would give it (the next free one)
-      for (const Judgment& j : view->judgments()) top = std::max(top, j.id);
-      a->judgment.id = top + 1;
-    }
-    const uint64_t seq = feed.post(CommandBody(body));
+    const uint64_t seq = feed.post(body);
     if (hooks.on_post) hooks.on_post(body, seq);
-    std::vector<Judgment> all = view->judgments();
-    if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
-      all.push_back(a->judgment);
-      view->set_judgments(std::move(all));
-    } else if (auto* r = std::get_if<cmd::RetractJudgment>(&body)) {
-      for (Judgment& j : all)
-        if (j.id == r->judgment_id) j.retracted = r->retracted;
-      view->set_judgments(std::move(all));
-    }
     return "";
   }
   bool paused() const { return view->snapshot() && view->snapshot()->paused; }
@@ -375,6 +364,11 @@ void App::handle_key(int key, int mods) {
     if (key == GLFW_KEY_ESCAPE || key == GLFW_KEY_BACKSPACE) return interaction->choose_release(), say("let go");
     if (key == GLFW_KEY_T && interaction->can_teach()) return interaction->choose_teach(), say("taught");
   }
+  if (show_judgments && show_panels && (key == GLFW_KEY_DELETE || (ctrl && (key == GLFW_KEY_UP || key == GLFW_KEY_DOWN)))) {
+    if (key == GLFW_KEY_DELETE) judgments_panel->toggle_chosen();
+    else judgments_panel->choose_step(key == GLFW_KEY_UP ? -1 : 1);
+    return;
+  }
   if (asking && !(key == GLFW_KEY_ESCAPE && show_help)) {
     const bool was = asking->desk().asking();
     if (asking->handle_key(key, mods)) {
@@ -420,6 +414,7 @@ void App::handle_key(int key, int mods) {
       break;
     case GLFW_KEY_TAB: show_panels = !show_panels; break;
     case GLFW_KEY_S: show_structure = !show_structure, show_panels = true; break;
+    case GLFW_KEY_L: show_judgments = !show_judgments, show_panels = true; break;
     case GLFW_KEY_H:
     case GLFW_KEY_F1: show_help = !show_help; break;
     case GLFW_KEY_SLASH:
@@ -498,6 +493,8 @@ const char* kKeys[][2] = {
     {"N", "night or paper ground"},
     {"Tab", "hide or show the panels"},
     {"S", "structure: suspects, groups, neighbour comparison"},
+    {"L", "judgments: list, agreement per person, CSV import / export"},
+    {"ctrl + up / down, Delete", "(judgments open) choose a judgment and show it; retract / restore it"},
     {"F12", "save the view as PNG"},
     {"A", "ask pair questions (again: grid questions), Esc stops"},
     {"left / right arrow, 1 / 2", "pair: the left / right one is closer"},
@@ -506,7 +503,7 @@ const char* kKeys[][2] = {
     {"Backspace", "undo the last answer"},
     {"W, shift + W", "next / previous person's turn"},
     {"O", "own judgment: click anchor, nearer, farther; Enter stores"},
-    {"L", "large type for a shared screen"},
+    {"B", "big type for a shared screen"},
     {"H, F1, ?", "this help"},
 };
 
@@ -514,6 +511,10 @@ void App::panels() {
   if (ImGui::BeginMainMenuBar()) {
     if (ImGui::BeginMenu("Collection")) {
       if (ImGui::MenuItem("Save picture of the view", "F12")) handle_key(GLFW_KEY_F12, 0);
+      if (ImGui::MenuItem("Import or export judgments...")) {
+        show_judgments = true;
+        judgments_panel->show_tab(JudgmentsPanel::Tab::kFiles);
+      }
       ImGui::Separator();
       if (ImGui::MenuItem("Quit", "ctrl+Q")) quit = true;
       ImGui::EndMenu();
@@ -541,6 +542,7 @@ void App::panels() {
       }
       if (ImGui::MenuItem("Next colouring", "C")) cycle_colour();
       ImGui::MenuItem("Structure", "S", &show_structure);
+      ImGui::MenuItem("Judgments", "L", &show_judgments);
       if (ImGui::MenuItem("Panels", "Tab", &show_panels)) {
       }
       ImGui::EndMenu();
@@ -594,6 +596,7 @@ void App::panels() {
     ImGui::End();
   }
   if (show_structure) structure->draw(&show_structure);
+  if (show_judgments) judgments_panel->draw(&show_judgments);
 }
 
 void App::panel_map() {
@@ -907,6 +910,15 @@ void App::dump_state(const std::string& path) {
     log.push_back({{"seq", c.seq}, {"iteration", c.iteration}, {"kind", command_name(c.body)}, {"item", command_item(c.body)}});
   j["log"] = log;
   if (asking) j["asking"] = asking->state();
+  {
+    const auto& rows = judgments_panel->rows();
+    const size_t chosen = judgments_panel->chosen();
+    j["judgments_panel"] = {{"open", show_judgments},
+                            {"judgments", view->judgments().size()},
+                            {"rows", rows.size()},
+                            {"chosen", chosen < view->judgments().size() ? json(view->judgments()[chosen].id) : json(nullptr)},
+                            {"problem", judgments_panel->last_problem()}};
+  }
   j["bounds"] = {{view->bounds_lo().x, view->bounds_lo().y, view->bounds_lo().z},
                  {view->bounds_hi().x, view->bounds_hi().y, view->bounds_hi().z}};
   std::ofstream out(path);
@@ -984,10 +996,29 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
     app.view->set_judgments(std::move(judgments));
     app.interaction = std::make_unique<MapInteraction>(*app.view, feed);
     app.structure = std::make_unique<StructurePanel>(collection, *app.view);
+    app.judgments_panel = std::make_unique<JudgmentsPanel>(
+        collection, *app.view,
+        JudgmentsPanelLinks{[&app](CommandBody& body) { return app.post_checked(body); },
+                            [&app](const std::string& text) { app.say(text); }});
     app.interaction->teach = app.hooks.teach;
     {
       DeskLinks links;
-      links.post = [&app](CommandBody& body) { return app.post_checked(body); };
+      links.post = [&app](CommandBody& body) {
+        int64_t top = 0;
+        for (const Judgment& j : app.view->judgments()) top = std::max(top, j.id);
+        if (const std::string refused = app.post_checked(body); !refused.empty()) return refused;
+        // Without a session the feed gives no id; the engine numbers it the same way (the next free one).
+        if (auto* a = std::get_if<cmd::AddJudgment>(&body); a && a->judgment.id < 0) a->judgment.id = top + 1;
+        std::vector<Judgment> all = app.view->judgments();  // the map's lines and counts follow at once
+        if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
+          all.push_back(a->judgment);
+        } else if (auto* r = std::get_if<cmd::RetractJudgment>(&body)) {
+          for (Judgment& j : all)
+            if (j.id == r->judgment_id) j.retracted = r->retracted;
+        }
+        app.view->set_judgments(std::move(all));
+        return std::string();
+      };
       links.record_event = app.hooks.record_event;
       links.snapshot = [&app] { return app.view->snapshot(); };
       links.judgments = [&app] { return app.view->judgments(); };
@@ -1049,6 +1080,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
           if (s->health.neighbour_recall >= 0) app.recall.add(float(s->health.neighbour_recall));
         }
       }
+      app.judgments_panel->tick(std::chrono::duration<double>(now - app.started).count());
       if (app.scripted) app.apply_script_events();
 
       ImGui_ImplOpenGL3_NewFrame();
@@ -1122,6 +1154,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
 
   // ---- tear-down, in reverse ------------------------------------------------------
   app.asking.reset();
+  app.judgments_panel.reset();
   app.structure.reset();
   app.interaction.reset();
   app.view.reset();

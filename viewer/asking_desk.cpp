@@ -21,7 +21,7 @@ KeyAction asking_key_action(AskingMode mode, int key, int mods, int grid_size) {
                     : key >= GLFW_KEY_KP_0 && key <= GLFW_KEY_KP_9 ? key - GLFW_KEY_KP_0
                                                                : -1;
   // Keys that mean the same everywhere.
-  if (key == GLFW_KEY_L) return {AskingAction::kLargeType};
+  if (key == GLFW_KEY_B) return {AskingAction::kLargeType};
   if (key == GLFW_KEY_W) return {shift ? AskingAction::kPrevPerson : AskingAction::kNextPerson};
   if (key == GLFW_KEY_O && mode != AskingMode::kOwn) return {AskingAction::kStartOwn};
   if (key == GLFW_KEY_A) return {mode == AskingMode::kPair ? AskingAction::kStartGrid : AskingAction::kStartPair};

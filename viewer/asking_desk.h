@@ -43,7 +43,7 @@ enum class AskingAction {
   kCommit,      // Enter (own): store the judgment
   kNextPerson,  // W / shift+W: the facilitator moves the turn on / back
   kPrevPerson,
-  kLargeType,   // L: large type on/off
+  kLargeType,   // B: big (large) type on/off
 };
 struct KeyAction {
   AskingAction action = AskingAction::kNone;

@@ -4,7 +4,7 @@
 // the bottom so the map above stays visible and moving, with the question's items ringed in it.
 // Whose turn it is is shown large at the top; the people panel (add, rename, colour, turn rule,
 // picker, re-ask rate, grid size) sits at the left. Items show their picture when the collection
-// has pictures, else a swatch of their map colour with id and tags. Large type (L) swaps in a
+// has pictures, else a swatch of their map colour with id and tags. Large type (B, big) swaps in a
 // bigger font and bigger cards and discs for a shared screen.
 // Window thread only, with the ImGui and GL contexts current.
 #pragma once
