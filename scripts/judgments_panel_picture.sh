@@ -31,22 +31,26 @@ for k in range(360):
 PY
 build/kith new assets/tea_blends.csv -o "$dir/tea.kith" --judgments "$dir/judgments.csv" >/dev/null
 build/kith judge "$dir/tea.kith" --retract 7 >/dev/null
-# Open the panel; after a while turn the blend (Map panel slider) down to 0, later up to about 15,
+# Open the panel; after a while turn the blend (Map panel slider) down to 0, later up to about 3.5,
 # so the chart shows the map honouring the judgments less, then more; choose a row of the list.
 cat > "$dir/script.txt" <<SCRIPT
 5 key L
 150 move 1068 94
-151 press left
-152 move 975 94
-153 release left
-480 move 1068 94
-481 press left
-482 move 1122 94
-483 release left
+152 press left
+155 move 1030 94
+158 move 990 94
+161 move 960 94
+165 release left
+480 move 1000 94
+482 press left
+485 move 1050 94
+488 move 1092 94
+492 release left
 800 key ctrl+DOWN
 802 key ctrl+DOWN
 804 key ctrl+DOWN
 806 key ctrl+DOWN
+940 move 640 795
 950 shot $out
 951 quit
 SCRIPT

@@ -52,45 +52,73 @@ QuestionKey question_key(const Judgment& j) {
 }
 
 std::vector<PersonQuestionAgreement> same_question_agreement(const std::vector<Judgment>& judgments) {
-  // Per question, per person: how often each candidate was the nearer one.
-  struct Counts {
-    size_t low = 0, high = 0;
+  // People as small numbers (in name order), then one row per active judgment sorted by question
+  // and person, so each question's answers, and each person's within it, are contiguous.
+  std::map<std::string, int> person_of;
+  for (const Judgment& j : judgments)
+    if (!j.retracted) person_of.emplace(j.person, 0);
+  std::vector<PersonQuestionAgreement> out;
+  for (auto& [name, index] : person_of) {
+    index = int(out.size());
+    out.push_back({});
+    out.back().person = name;
+  }
+  struct Row {
+    QuestionKey key;
+    int person;
+    bool low;  // the nearer item is the pair's smaller index
   };
-  std::map<QuestionKey, std::map<std::string, Counts>> questions;
-  std::map<std::string, PersonQuestionAgreement> people;
+  std::vector<Row> rows;
+  rows.reserve(judgments.size());
   for (const Judgment& j : judgments) {
     if (j.retracted) continue;
     const QuestionKey key = question_key(j);
-    Counts& c = questions[key][j.person];
-    (j.nearer == key.low ? c.low : c.high) += 1;
-    people[j.person].person = j.person;
+    rows.push_back({key, person_of[j.person], j.nearer == key.low});
   }
-  for (const auto& [key, by_person] : questions) {
-    Counts all;
-    for (const auto& [person, c] : by_person) all.low += c.low, all.high += c.high;
-    for (const auto& [person, c] : by_person) {
-      PersonQuestionAgreement& p = people[person];
-      p.repeat_pairs += pairs_of(c.low + c.high);
-      p.repeat_agreeing += pairs_of(c.low) + pairs_of(c.high);
-      const size_t other_low = all.low - c.low, other_high = all.high - c.high;
-      p.shared_pairs += (c.low + c.high) * (other_low + other_high);
-      p.shared_agreeing += c.low * other_low + c.high * other_high;
+  std::sort(rows.begin(), rows.end(), [](const Row& a, const Row& b) {
+    return a.key == b.key ? a.person < b.person : a.key < b.key;
+  });
+  struct Counts {
+    int person;
+    size_t low = 0, high = 0;
+  };
+  std::vector<Counts> group;
+  for (size_t begin = 0; begin < rows.size();) {
+    size_t end = begin;
+    while (end < rows.size() && rows[end].key == rows[begin].key) ++end;
+    if (end - begin > 1) {  // a question asked once makes no pairs
+      group.clear();
+      size_t all_low = 0, all_high = 0;
+      for (size_t k = begin; k < end; ++k) {
+        if (group.empty() || group.back().person != rows[k].person) group.push_back({rows[k].person});
+        (rows[k].low ? group.back().low : group.back().high) += 1;
+        (rows[k].low ? all_low : all_high) += 1;
+      }
+      for (const Counts& c : group) {
+        PersonQuestionAgreement& p = out[size_t(c.person)];
+        p.repeat_pairs += pairs_of(c.low + c.high);
+        p.repeat_agreeing += pairs_of(c.low) + pairs_of(c.high);
+        const size_t other_low = all_low - c.low, other_high = all_high - c.high;
+        p.shared_pairs += (c.low + c.high) * (other_low + other_high);
+        p.shared_agreeing += c.low * other_low + c.high * other_high;
+      }
     }
+    begin = end;
   }
-  std::vector<PersonQuestionAgreement> out;
-  for (auto& [name, p] : people) out.push_back(p);
   return out;
 }
 
 size_t repeated_questions(const std::vector<Judgment>& judgments) {
-  std::map<QuestionKey, size_t> count;
+  std::vector<QuestionKey> keys;
+  keys.reserve(judgments.size());
   for (const Judgment& j : judgments)
-    if (!j.retracted) ++count[question_key(j)];
+    if (!j.retracted) keys.push_back(question_key(j));
+  std::sort(keys.begin(), keys.end());
   size_t repeated = 0;
-  for (const auto& [key, n] : count) repeated += n > 1;
+  for (size_t k = 1; k < keys.size(); ++k)
+    repeated += keys[k] == keys[k - 1] && (k < 2 || !(keys[k - 1] == keys[k - 2]));
   return repeated;
 }
-
 bool ViolationOptions::IsValid(std::string* error) const {
   if (!(threshold > 0.0 && threshold < 1.0)) {
     if (error) *error = "the violation threshold is a probability between 0 and 1, got " + std::to_string(threshold);
