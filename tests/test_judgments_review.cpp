@@ -286,6 +286,8 @@ TEST_CASE("judgments panel: retract and restore go through the post path; a refu
   r.panel->choose_step(1);
   r.panel->choose_step(1);
   CHECK(r.panel->chosen() == 2);
+  REQUIRE_FALSE(r.said.empty());  // said too, for stepping through with the panels hidden
+  CHECK(r.said.back() == "judgment 3: s00002 is more like s00003 than s00022 (Bram, retracted)");
   CHECK(r.view.selection().items().size() == 3);  // shown in the map: its three items selected
   CHECK(r.view.selection().contains(2));
   CHECK(r.view.selection().contains(3));

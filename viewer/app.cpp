@@ -364,7 +364,7 @@ void App::handle_key(int key, int mods) {
     if (key == GLFW_KEY_ESCAPE || key == GLFW_KEY_BACKSPACE) return interaction->choose_release(), say("let go");
     if (key == GLFW_KEY_T && interaction->can_teach()) return interaction->choose_teach(), say("taught");
   }
-  if (show_judgments && show_panels && (key == GLFW_KEY_DELETE || (ctrl && (key == GLFW_KEY_UP || key == GLFW_KEY_DOWN)))) {
+  if (show_judgments && (key == GLFW_KEY_DELETE || (ctrl && (key == GLFW_KEY_UP || key == GLFW_KEY_DOWN)))) {
     if (key == GLFW_KEY_DELETE) judgments_panel->toggle_chosen();
     else judgments_panel->choose_step(key == GLFW_KEY_UP ? -1 : 1);
     return;
@@ -494,7 +494,7 @@ const char* kKeys[][2] = {
     {"Tab", "hide or show the panels"},
     {"S", "structure: suspects, groups, neighbour comparison"},
     {"L", "judgments: list, agreement per person, CSV import / export"},
-    {"ctrl + up / down, Delete", "(judgments open) choose a judgment and show it; retract / restore it"},
+    {"ctrl + up / down, Delete", "(judgments open, panels shown or not) show the previous / next judgment; retract / restore it"},
     {"F12", "save the view as PNG"},
     {"A", "ask pair questions (again: grid questions), Esc stops"},
     {"left / right arrow, 1 / 2", "pair: the left / right one is closer"},
@@ -996,10 +996,12 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
     app.view->set_judgments(std::move(judgments));
     app.interaction = std::make_unique<MapInteraction>(*app.view, feed);
     app.structure = std::make_unique<StructurePanel>(collection, *app.view);
-    app.judgments_panel = std::make_unique<JudgmentsPanel>(
-        collection, *app.view,
-        JudgmentsPanelLinks{[&app](CommandBody& body) { return app.post_checked(body); },
-                            [&app](const std::string& text) { app.say(text); }});
+    {
+      JudgmentsPanelLinks links;
+      links.post = [&app](CommandBody& body) { return app.post_checked(body); };
+      links.say = [&app](const std::string& text) { app.say(text); };
+      app.judgments_panel = std::make_unique<JudgmentsPanel>(collection, *app.view, std::move(links));
+    }
     app.interaction->teach = app.hooks.teach;
     {
       DeskLinks links;

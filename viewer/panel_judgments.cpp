@@ -90,6 +90,12 @@ void JudgmentsPanel::choose_step(int step) {
   if (at == r.end()) pos = step > 0 ? 0 : r.size() - 1;
   else pos = size_t(std::clamp<long long>((long long)(at - r.begin()) + step, 0, (long long)r.size() - 1));
   choose(r[pos]);
+  // Said as well, so stepping through judgments works with the panels hidden (Tab) and the map in full.
+  const Judgment& j = view_.judgments()[r[pos]];
+  if (links_.say)
+    links_.say("judgment " + std::to_string(j.id) + ": " + name_of(collection_.ids, j.anchor) + " is more like " +
+               name_of(collection_.ids, j.nearer) + " than " + name_of(collection_.ids, j.farther) + " (" +
+               person_label(j.person) + (j.retracted ? ", retracted)" : ")"));
 }
 
 void JudgmentsPanel::show_in_map(size_t index) {
@@ -107,6 +113,13 @@ void JudgmentsPanel::show_in_map(size_t index) {
 int JudgmentsPanel::person_colour_index(const std::string& person) const {
   auto it = std::lower_bound(people_names_.begin(), people_names_.end(), person);
   return it != people_names_.end() && *it == person ? int(it - people_names_.begin()) : -1;
+}
+
+Rgb JudgmentsPanel::person_colour(const std::string& person) const {
+  Rgb c;
+  if (links_.person_colour && links_.person_colour(person, &c)) return c;
+  const int k = person_colour_index(person);
+  return k >= 0 ? view_.palette().category(k) : view_.palette().muted;
 }
 
 void JudgmentsPanel::compute_figures() {
@@ -357,8 +370,7 @@ void JudgmentsPanel::tab_list() {
       ImGui::TableNextColumn();
       ImGui::TextUnformatted(name_of(collection_.ids, j.farther).c_str());
       ImGui::TableNextColumn();
-      const int c = person_colour_index(j.person);
-      if (c >= 0 && !j.retracted) ImGui::TextColored(to_imvec(view_.palette().category(c)), "%s", person_label(j.person).c_str());
+      if (!j.retracted) ImGui::TextColored(to_imvec(person_colour(j.person)), "%s", person_label(j.person).c_str());
       else ImGui::TextUnformatted(person_label(j.person).c_str());
       ImGui::TableNextColumn();
       ImGui::TextUnformatted(short_time(j.time).c_str());
@@ -403,8 +415,7 @@ void JudgmentsPanel::draw_chart(float height) {
   const double t0 = history_.first_seconds(), t1 = std::max(history_.last_seconds(), t0 + 30.0);
   auto x_of = [&](double t) { return lo.x + float((t - t0) / (t1 - t0)) * (hi.x - lo.x); };
   for (const auto& [person, points] : series) {
-    const int c = person_colour_index(person);
-    const ImU32 colour = ImGui::GetColorU32(to_imvec(c >= 0 ? view_.palette().category(c) : view_.palette().muted));
+    const ImU32 colour = ImGui::GetColorU32(to_imvec(person_colour(person)));
     std::vector<ImVec2> line;
     line.reserve(points.size());
     for (const auto& p : points) line.emplace_back(x_of(p.seconds), y_of(p.agreement));
@@ -441,8 +452,7 @@ void JudgmentsPanel::tab_agreement() {
     for (const PersonRow& p : people_) {
       ImGui::TableNextRow();
       ImGui::TableNextColumn();
-      const int c = person_colour_index(p.person);
-      ImGui::ColorButton("##c", to_imvec(c >= 0 ? view_.palette().category(c) : view_.palette().muted),
+      ImGui::ColorButton("##c", to_imvec(person_colour(p.person)),
                          ImGuiColorEditFlags_NoTooltip, ImVec2(12, 12));
       ImGui::SameLine();
       ImGui::TextUnformatted(person_label(p.person).c_str());

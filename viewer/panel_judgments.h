@@ -34,6 +34,9 @@ struct JudgmentsPanelLinks {
   // (the body completed as the feed left it, e.g. a new judgment's stored id), else why not.
   std::function<std::string(CommandBody& body)> post;
   std::function<void(const std::string& text)> say;  // a short message in the window (may be empty)
+  // The colour a person was given (the people list of the question screens); false = none given,
+  // then the palette's colours in name order. May be empty.
+  std::function<bool(const std::string& person, Rgb* colour)> person_colour;
 };
 
 class JudgmentsPanel {
@@ -89,6 +92,7 @@ class JudgmentsPanel {
   void draw_chart(float height);
   void mark_judgments_changed() { filter_dirty_ = true, questions_dirty_ = true, figures_due_ = 0.0; }
   int person_colour_index(const std::string& person) const;
+  Rgb person_colour(const std::string& person) const;
 
   const Collection& collection_;
   MapView& view_;
