@@ -15,6 +15,8 @@
 //                                   each new item starts at the affinity-weighted mean of its
 //                                   existing neighbours' positions, and for a while only the new
 //                                   items move (the rest of the map is not disturbed)
+//   SetFeatures (heavy)             same items, new features: re-prepared, neighbours and P rebuilt on
+//                                   the helper, swapped in, then a stretch of exaggeration to regroup
 //   RemoveItems                     rows dropped from the map, P (renormalized), judgments, pins
 //   Restart                         PCA start, schedule from zero, optimizer state forgotten
 #include "solver/engine.h"
@@ -183,7 +185,8 @@ class EngineModel : public LiveModel {
 
   // ---- which commands are heavy ----
   bool heavy(const CommandBody& b) const override {
-    return std::holds_alternative<cmd::SetPerplexity>(b) || std::holds_alternative<cmd::InsertItems>(b);
+    return std::holds_alternative<cmd::SetPerplexity>(b) || std::holds_alternative<cmd::InsertItems>(b) ||
+           std::holds_alternative<cmd::SetFeatures>(b);
   }
   bool reindexes(const CommandBody& b) const override {
     return std::holds_alternative<cmd::InsertItems>(b) || std::holds_alternative<cmd::RemoveItems>(b);
@@ -286,6 +289,7 @@ class EngineModel : public LiveModel {
     optimizer_.reset();
     schedule_it_ = 0;
     new_items_until_ = -1;
+    regroup_until_ = 0;
     lr_scale_ = 1.0;
     return "";
   }
@@ -339,12 +343,14 @@ class EngineModel : public LiveModel {
     remap_map(pins_);
     remap_map(drags_);
     new_items_until_ = -1;
+    regroup_until_ = 0;
     return "";
   }
   std::string apply_one(const cmd::Pause&) { return ""; }  // handled by the loop
   std::string apply_one(const cmd::Resume&) { return ""; }
   std::string apply_one(const cmd::SetPerplexity&) { return "internal: perplexity is a heavy command"; }
   std::string apply_one(const cmd::InsertItems&) { return "internal: insert is a heavy command"; }
+  std::string apply_one(const cmd::SetFeatures&) { return "internal: new features is a heavy command"; }
 
   // Holds (pins and held drags) are hard pins in the objective.
   void hold(int32_t item) { objective_.pin(item); }
@@ -368,6 +374,33 @@ class EngineModel : public LiveModel {
           p_ = p;
           perplexity_ = perplexity;
           neighbour_->set_affinities(p_);
+        };
+      };
+    }
+    if (const auto* c = std::get_if<cmd::SetFeatures>(&body)) {
+      if (!has_features_) return *error = "features: this collection has no features to replace", nullptr;
+      if (c->features.rows() != raw_->rows() || c->features.cols() != raw_->cols())
+        return *error = "features: the map has " + std::to_string(raw_->rows()) + " x " +
+                        std::to_string(raw_->cols()) + " features, got " + std::to_string(c->features.rows()) +
+                        " x " + std::to_string(c->features.cols()),
+               nullptr;
+      if (!c->features.allFinite()) return *error = "features: NaN or infinite values", nullptr;
+      if (c->regroup_iterations < 0 || !(c->regroup_exaggeration >= 1.0) || !std::isfinite(c->regroup_exaggeration))
+        return *error = "features: regroup iterations must be >= 0 and exaggeration >= 1", nullptr;
+      auto raw = std::make_shared<const Points>(c->features);
+      const double perplexity = perplexity_;
+      const int regroup = c->regroup_iterations;
+      const double factor = c->regroup_exaggeration;
+      return [this, raw, perplexity, regroup, factor, o]() -> Finish {
+        auto prepared = std::make_shared<const Points>(prepare_features(*raw, FeaturePrepOptions{}));
+        auto p = build_affinities(*prepared, perplexity, o);
+        return [this, raw, prepared, p, regroup, factor] {
+          raw_ = raw;
+          prepared_ = prepared;
+          p_ = p;
+          neighbour_->set_affinities(p_);
+          regroup_until_ = schedule_it_ + int64_t(regroup);
+          regroup_factor_ = factor;
         };
       };
     }
@@ -461,7 +494,8 @@ class EngineModel : public LiveModel {
   // ---- one iteration ----
   StepReport step() override {
     ensure_ready();
-    const double factor = schedule_it_ < schedule_.exaggeration_iterations ? schedule_.early_exaggeration : exaggeration_;
+    double factor = schedule_it_ < schedule_.exaggeration_iterations ? schedule_.early_exaggeration : exaggeration_;
+    if (schedule_it_ < regroup_until_) factor = std::max(factor, regroup_factor_);
     if (neighbour_ && factor != current_factor_) {
       neighbour_->set_exaggeration(factor);
       current_factor_ = factor;
@@ -564,6 +598,8 @@ class EngineModel : public LiveModel {
   bool ready_ = false;
   double perplexity_ = 30.0;
   double exaggeration_ = 1.0;
+  int64_t regroup_until_ = 0;    // SetFeatures: exaggerate by regroup_factor_ until this iteration
+  double regroup_factor_ = 1.0;
   double current_factor_ = 0.0;
   double lr_scale_ = 1.0;
   std::shared_ptr<const SparseAffinities> p_;

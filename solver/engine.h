@@ -37,12 +37,16 @@ struct Resume {};
 struct Restart {};                                 // from the PCA start, schedule from zero
 struct InsertItems { std::vector<std::string> ids; Points features; };
 struct RemoveItems { std::vector<int32_t> items; };
+// New features for the same items (e.g. reweighted by what judgments taught, solver/block_weights.h):
+// rebuilt off the hot loop like SetPerplexity; when swapped in, the neighbour term is exaggerated
+// by regroup_exaggeration for regroup_iterations iterations so groups can move past each other.
+struct SetFeatures { Points features; int regroup_iterations = 0; double regroup_exaggeration = 12.0; };
 }  // namespace cmd
 
 using CommandBody = std::variant<cmd::AddJudgment, cmd::RetractJudgment, cmd::Pin, cmd::Unpin, cmd::DragTarget,
                                  cmd::ClearDrag, cmd::SetBlend, cmd::SetTheta, cmd::SetLearningRate,
                                  cmd::SetExaggeration, cmd::SetPerplexity, cmd::Pause, cmd::Resume, cmd::Restart,
-                                 cmd::InsertItems, cmd::RemoveItems>;
+                                 cmd::InsertItems, cmd::RemoveItems, cmd::SetFeatures>;
 
 struct Command {
   uint64_t seq = 0;         // assigned by post()

@@ -5,10 +5,16 @@
 #include <memory>
 #include <stdexcept>
 
-#include "solver/blended_objective.h"
-#include "solver/fit.h"
+#include <cmath>
 #include <random>
+
+#include "solver/affinities.h"
+#include "solver/blended_objective.h"
+#include "solver/feature_prep.h"
+#include "solver/fit.h"
 #include "solver/neighbour_term.h"
+#include "solver/neighbours.h"
+#include "solver/picture_descriptors.h"
 
 namespace kith {
 
@@ -21,6 +27,11 @@ bool PanelTrialOptions::IsValid(std::string* error) const {
   if (fit_iterations < 1 || iterations_between < 0 || settle_iterations < 0) return fail("iterations must be >= 0");
   if (!(blend >= 0.0)) return fail("blend must be >= 0");
   if (heldout_triplets < 10) return fail("at least 10 held-out triplets are needed");
+  if (reweight_every < 1) return fail("reweight_every must be >= 1");
+  if (regroup_iterations < 0) return fail("regroup_iterations must be >= 0");
+  if (!(regroup_exaggeration >= 1.0) || !std::isfinite(regroup_exaggeration))
+    return fail("regroup_exaggeration must be >= 1");
+  if (!weights.IsValid(error)) return false;
   return picker.IsValid(error);
 }
 
@@ -35,13 +46,25 @@ double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets)
   return s / double(triplets.size());
 }
 
+void set_trial_seed(uint64_t seed, PanelTrialOptions* trial, SimulatedPanelOptions* panel) {
+  const uint64_t shift = seed - 42;  // wraps for seeds below 42, which is fine for seeds
+  if (trial) {
+    trial->seed = seed;
+    trial->heldout_seed = 1234 + shift;
+    trial->picker.seed = 1 + shift;
+  }
+  if (panel) panel->seed = 7 + shift;
+}
+
 std::string PanelTrialResult::BriefReport() const {
-  char buf[256];
+  char buf[320];
   std::snprintf(buf, sizeof buf,
                 "held-out agreement with the hidden distance: %.3f features only -> %.3f after %zu answers "
                 "(control without answers %.3f; %zu held-out triplets)",
                 agreement_before, agreement_after, answers.size(), agreement_control, heldout);
-  return buf;
+  std::string out = buf;
+  if (!blocks.empty()) out += "; block weights learned from the answers: " + weights.report(blocks);
+  return out;
 }
 
 PanelTrialResult run_panel_trial(const Points& features, SimulatedPanel& panel, const PanelTrialOptions& options,
@@ -67,14 +90,45 @@ PanelTrialResult run_panel_trial(const Points& features, SimulatedPanel& panel, 
   const size_t n = size_t(features.rows());
   NeighbourTermOptions no;
   no.threads = options.threads;
-  LoopOptions loop;
-  loop.first = options.fit_iterations;
-  auto continue_map = [&](BlendedObjective& objective, NeighbourTerm& term, Points& y, int64_t* at, int steps) {
+  // Every stretch of steps the answered map takes is recorded (steps, exaggeration), and the control
+  // replays exactly the same stretches.
+  std::vector<std::pair<int, double>> stretches;
+  auto continue_map = [&](BlendedObjective& objective, NeighbourTerm& term, Points& y, int64_t* at, int steps,
+                          double exaggeration, bool record) {
     if (steps <= 0) return;
+    if (record) stretches.push_back({steps, exaggeration});
+    LoopOptions loop;
     loop.first = *at;
     loop.iterations = steps;
+    if (exaggeration > 1.0) {  // exaggerated from `at` to `at + steps`, then back to the usual schedule
+      loop.schedule.early_exaggeration = exaggeration;
+      loop.schedule.exaggeration_iterations = *at + steps;
+    }
     run_schedule(objective, [&](double e) { term.set_exaggeration(e); }, y, loop);
     *at += steps;
+  };
+
+  // The blocks whose weights the answers teach.
+  if (options.learn_weights) {
+    r.blocks = options.blocks;
+    if (r.blocks.empty() && features.cols() == descriptor_size())
+      for (const auto& b : descriptor_blocks()) r.blocks.push_back({b.name, b.begin, b.size});
+  }
+  Points picker_features = fit.features;
+  auto reweight = [&](NeighbourTerm& term) {
+    r.weights = learn_block_weights(features, r.blocks, r.answers, options.weights);
+    FeaturePrepOptions prep;
+    prep.standardize = fo.standardize;
+    prep.max_dims = fo.pca_dims;
+    picker_features = prepare_features(apply_block_weights(features, r.blocks, r.weights.weights), prep);
+    NeighbourOptions nopt;
+    nopt.seed = fo.seed;
+    nopt.threads = fo.threads;
+    const size_t k = std::min(n - 1, size_t(std::floor(3.0 * fo.perplexity)));
+    AffinityOptions aopt;
+    aopt.perplexity = fo.perplexity;
+    term.set_affinities(std::make_shared<SparseAffinities>(
+        joint_affinities(find_neighbours(picker_features, std::max<size_t>(k, 1), nopt), aopt)));
   };
 
   auto term = std::make_shared<NeighbourTerm>(fit.p, no);
@@ -87,7 +141,7 @@ PanelTrialResult run_panel_trial(const Points& features, SimulatedPanel& panel, 
   for (int q = 0; q < options.answers; ++q) {
     PickerInput in;
     in.map = &y;
-    in.features = &fit.features;
+    in.features = &picker_features;
     in.judgments = &r.answers;
     const Question question = picker.pair(in);
     if (question.anchor < 0 || question.candidates.size() < 2) break;
@@ -96,22 +150,30 @@ PanelTrialResult run_panel_trial(const Points& features, SimulatedPanel& panel, 
     j.id = int64_t(r.answers.size());
     r.answers.push_back(j);
     objective.add_judgment(j);
-    continue_map(objective, *term, y, &at, options.iterations_between);
+    if (!r.blocks.empty() && (q + 1) % options.reweight_every == 0) {
+      reweight(*term);
+      continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, true);
+    }
+    continue_map(objective, *term, y, &at, options.iterations_between, 1.0, true);
     if (progress) progress(q + 1, options.answers);
   }
-  continue_map(objective, *term, y, &at, options.settle_iterations);
+  if (!r.blocks.empty() && !r.answers.empty() && r.answers.size() % size_t(options.reweight_every) != 0) {
+    reweight(*term);
+    continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, true);
+  }
+  continue_map(objective, *term, y, &at, options.settle_iterations, 1.0, true);
   r.final_map = y;
   r.agreement_after = triplet_agreement(y, heldout);
   r.answers_satisfied = r.answers.empty() ? -1.0 : triplet_agreement(y, r.answers);
 
-  if (options.control) {  // the same steps, no answers
+  if (options.control) {  // the same stretches of steps, no answers, the features as given
     auto control_term = std::make_shared<NeighbourTerm>(fit.p, no);
     BlendedObjective control(n, int(fit.map.cols()));
     control.set_neighbour_term(control_term);
     Points yc = fit.map;
     int64_t at_c = options.fit_iterations;
-    continue_map(control, *control_term, yc, &at_c,
-                 int(r.answers.size()) * options.iterations_between + options.settle_iterations);
+    for (const auto& [steps, exaggeration] : stretches)
+      continue_map(control, *control_term, yc, &at_c, steps, exaggeration, false);
     r.control_map = yc;
     r.agreement_control = triplet_agreement(yc, heldout);
   }

@@ -5,8 +5,13 @@
 //   3. `answers` times: the picker (solver/picker.h, most informative by default) chooses a pair
 //      question on the current map, the simulated panel answers it, the answer joins the blended
 //      objective (KL + blend * t-STE) and the map takes `iterations_between` more steps;
+//      Every `reweight_every` answers (and after the last) the answers also teach the features'
+//      metric: block weights are learned from all answers so far (solver/block_weights.h) and the
+//      t-SNE affinities are rebuilt from the reweighted features, so the whole map follows the
+//      panel, not only the items it was asked about (learn_weights; on by default), and the map
+//      takes `regroup_iterations` steps with exaggerated affinities to regroup;
 //   4. `settle_iterations` more steps, then the same held-out agreement again.
-// A control run takes exactly the same steps without the answers, so the change can be told
+// A control run takes exactly the same stretches of steps (and exaggerations) without the answers, so the change can be told
 // apart from the effect of merely optimizing longer. `kith demo` with no display and the tests use
 // it; the window uses the live engine instead. Any thread; nothing shared.
 #pragma once
@@ -15,6 +20,7 @@
 #include <string>
 #include <vector>
 
+#include "solver/block_weights.h"
 #include "solver/judgment.h"
 #include "solver/points.h"
 #include "solver/question_flow.h"
@@ -36,6 +42,14 @@ struct PanelTrialOptions {
   uint64_t heldout_seed = 1234;    // (default: 1234)
   uint64_t seed = 42;              // the fit's seed (default: 42)
   bool control = true;             // also run the control without answers (default: true)
+  bool learn_weights = true;       // answers also teach the feature blocks' weights (default: true)
+  int reweight_every = 10;         // answers between two relearnings of the weights (default: 10)
+  std::vector<ColumnBlock> blocks; // the feature blocks; empty = the picture descriptors' blocks when the
+                                   // features have descriptor_size() columns, else no reweighting (default: empty)
+  BlockWeightOptions weights;      // (default: see block_weights.h)
+  int regroup_iterations = 100;    // after each reweighting, steps with the affinities exaggerated, so that
+                                   // groups can move past each other into the new arrangement (default: 100)
+  double regroup_exaggeration = 12; // (default: 12, as the first fit)
   int threads = 0;                 // inside one evaluation, 0 = all (default: 0)
   bool IsValid(std::string* error) const;
 };
@@ -51,12 +65,18 @@ struct PanelTrialResult {
   double agreement_control = -1.0;   // ... of the control map (-1 if not run)
   double answers_satisfied = -1.0;   // fraction of the panel's answers the final map satisfies
   size_t heldout = 0;                // number of held-out triplets
+  std::vector<ColumnBlock> blocks;   // the blocks reweighted (empty if the weights were not learned)
+  BlockWeightsResult weights;        // the block weights learned from all the answers
   std::string BriefReport() const;   // one line
 };
 
 
 // Fraction of the triplets the map satisfies (a tie counts one half).
 double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets);
+
+// Every seed of a run from one number: the map's, the held-out triplets', the picker's and the
+// panel's. Seed 42 gives the defaults above (and SimulatedPanelOptions' seed 7).
+void set_trial_seed(uint64_t seed, PanelTrialOptions* trial, SimulatedPanelOptions* panel);
 
 // Progress: called after each answer with (answers so far, total); may be empty.
 PanelTrialResult run_panel_trial(const Points& features, SimulatedPanel& panel, const PanelTrialOptions& options,

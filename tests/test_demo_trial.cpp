@@ -29,11 +29,13 @@ kith::Points library_features(const std::vector<kith::Swatch>& swatches) {
 
 }  // namespace
 
-TEST_CASE("demo trial: 100 most-informative answers are honoured and held-out agreement is measured") {
+TEST_CASE("demo trial: 100 most-informative answers clearly raise held-out agreement over the features-only map") {
   const auto swatches = kith::make_swatches();
   const kith::Points features = library_features(swatches);
   kith::SimulatedPanel panel(kith::perceptual_items(swatches));
-  kith::PanelTrialOptions o;  // 100 answers, most informative picker, blend 5, seeds fixed
+  // The README's claim exactly: 100 answers, most informative picker, blend 5, block weights learned
+  // from the answers (on by default), seed 42 (all of the run's seeds at their defaults).
+  kith::PanelTrialOptions o;
   o.threads = 2;
   const auto r = kith::run_panel_trial(features, panel, o);
   MESSAGE(r.BriefReport() << "; answers honoured " << r.answers_satisfied);
@@ -44,12 +46,20 @@ TEST_CASE("demo trial: 100 most-informative answers are honoured and held-out ag
   // contrarian and the noise account for the rest), and the map honours at least that many.
   constexpr double kHonoured = 0.85;
   CHECK(r.answers_satisfied >= kHonoured);
-  // Measured (seed 42, see README): held-out agreement 0.680 features only -> 0.683 after the
-  // answers, control 0.684. The answers do not move agreement on triplets that were never asked by
-  // more than this; the test guards against the answers harming it.
-  constexpr double kNoHarm = 0.01;
-  CHECK(r.agreement_after >= r.agreement_before - kNoHarm);
-  CHECK(r.agreement_after >= r.agreement_control - kNoHarm);
+  // The weights were learned for the five descriptor blocks and keep their sum (the number of blocks).
+  REQUIRE(r.blocks.size() == 5);
+  double sum = 0;
+  for (double w : r.weights.weights) sum += w;
+  CHECK(sum == doctest::Approx(5.0));
+  CHECK(r.weights.loss_after < r.weights.loss_before);
+  // Measured (seed 42; tests/bench/RESULTS-demo.md, README): 0.680 features only -> 0.713 after
+  // the answers, control (the same stretches of steps without answers) 0.684; over seeds 42..46 the
+  // median gain over the control is given there. Held-out triplets are drawn apart from the
+  // questions (never asked). The test asserts a clear rise, below the measured one: 3000 held-out
+  // triplets give a standard error of about 0.008 on an agreement near 0.7.
+  constexpr double kClearRise = 0.02;
+  CHECK(r.agreement_after >= r.agreement_before + kClearRise);
+  CHECK(r.agreement_after >= r.agreement_control + kClearRise);
 }
 
 TEST_CASE("demo command: help, bad usage and an unwritable library folder") {

@@ -13,6 +13,7 @@
 #include <random>
 #include <string>
 
+#include "solver/block_weights.h"
 #include "solver/collection.h"
 #include "solver/panel_trial.h"
 #include "solver/picture_descriptors.h"
@@ -43,6 +44,12 @@ const char* kHelp =
     "options:\n"
     "  --answers N       answers in the headless run (default: 100)\n"
     "  --blend B         weight of the answers against the features (default: 5)\n"
+    "  --weights on|off  the answers also teach how much each block of picture features\n"
+    "                    (colour, texture, layout) matters, and the map is rebuilt from the\n"
+    "                    reweighted features, so it follows the panel also where nobody was\n"
+    "                    asked (default: on)\n"
+    "  --seed N          seed of the headless run: map, panel, questions and held-out triplets\n"
+    "                    (default: 42)\n"
     "  --out DIR         where the headless run writes its PNGs (default: the library folder)\n"
     "  --library DIR     the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
     "                    ~/.cache/kith/demo)\n"
@@ -98,9 +105,11 @@ bool load_demo(const std::string& folder, DemoData* out) {
 }
 
 // ---- headless -------------------------------------------------------------------------------
-int run_headless(const DemoData& d, const PanelTrialOptions& trial, const std::string& out_dir, int width,
+int run_headless(const DemoData& d, PanelTrialOptions trial, uint64_t seed, const std::string& out_dir, int width,
                  int height) {
-  SimulatedPanel panel(d.perceptual);
+  SimulatedPanelOptions po;
+  set_trial_seed(seed, &trial, &po);
+  SimulatedPanel panel(d.perceptual, po);
   std::printf("features-only map, then %d answers from the simulated panel (most informative questions)...\n",
               trial.answers);
   const PanelTrialResult r = run_panel_trial(d.collection.features, panel, trial, [](int done, int total) {
@@ -153,9 +162,25 @@ struct LiveDemo {
   double first_agreement = -1.0;     // of the features-only map, when the first answer came
   std::vector<int> show;             // the last question, to select
   bool show_pending = false;
+  bool learn_weights = true;         // the answers also reweight the feature blocks (--weights)
+  PanelTrialOptions trial;           // regroup settings and weight options, as in the headless run
+  std::vector<ColumnBlock> blocks;
+  BlockWeightsResult weights;
 
   LiveDemo(const DemoData& d, MapFeed& f)
-      : data(d), feed(f), panel(d.perceptual), truth(panel.truth_triplets(3000, 0, 3.0, 1234)) {}
+      : data(d), feed(f), panel(d.perceptual), truth(panel.truth_triplets(3000, 0, 3.0, 1234)) {
+    if (d.collection.features.cols() == descriptor_size())
+      for (const auto& b : descriptor_blocks()) blocks.push_back({b.name, b.begin, b.size});
+  }
+
+  // What the answers so far say about the feature blocks; the engine rebuilds the map's affinities
+  // from the reweighted features off its hot loop and regroups (solver/block_weights.h).
+  void reweight() {
+    if (!learn_weights || blocks.empty() || answers.empty()) return;
+    weights = learn_block_weights(data.collection.features, blocks, answers, trial.weights);
+    feed.post(cmd::SetFeatures{apply_block_weights(data.collection.features, blocks, weights.weights),
+                               trial.regroup_iterations, trial.regroup_exaggeration});
+  }
 
   std::string ask(int count) {
     auto snapshot = feed.latest();
@@ -177,6 +202,8 @@ struct LiveDemo {
       show = {question.anchor, question.candidates[0], question.candidates[1]};
       show_pending = true;
     }
+    if (answers.empty()) return "no question could be asked";
+    reweight();
     const Judgment& last = answers.back();
     return last.person + ": " + data.collection.ids[size_t(last.anchor)] + " is more like " +
            data.collection.ids[size_t(last.nearer)] + " than " + data.collection.ids[size_t(last.farther)];
@@ -198,6 +225,15 @@ struct LiveDemo {
       out.push_back(buf);
     }
     out.push_back("(held-out: 3000 triplets of the hidden perceptual distance that are never asked)");
+    if (!weights.weights.empty()) {
+      out.push_back("what the answers say matters (feature block weights, 1 = as computed):");
+      for (size_t b = 0; b < blocks.size(); ++b) {
+        std::snprintf(buf, sizeof buf, "  %-20s %.2f", blocks[b].name.c_str(), weights.weights[b]);
+        out.push_back(buf);
+      }
+    } else if (!learn_weights) {
+      out.push_back("feature block weights: off (--weights off)");
+    }
     for (const auto& m : panel.members())
       out.push_back("  " + m.name + (m.contrarian ? ": sees lightness and pattern, not hue" : ": noise " +
                                                                                                 std::to_string(int(m.noise))));
@@ -205,13 +241,16 @@ struct LiveDemo {
   }
 };
 
-int run_live(const DemoData& d, const EngineOptions& eo, const WindowOptions& hidden, bool* opened) {
+int run_live(const DemoData& d, const EngineOptions& eo, const PanelTrialOptions& trial, const WindowOptions& hidden,
+             bool* opened) {
   std::unique_ptr<MapFeed> feed = make_engine_feed(d.collection, eo);
   if (!feed) {
     std::fprintf(stderr, "kith demo: this build has no live engine; showing the headless run instead\n");
     return kExitInternal;
   }
   LiveDemo live(d, *feed);
+  live.trial = trial;
+  live.learn_weights = trial.learn_weights;
   WindowOptions wo = hidden;  // frames, script, screenshot: test hooks
   wo.title = "Studio sample library";
   for (size_t t = 0; t < d.collection.tags.size(); ++t)  // colour by collection line
@@ -248,6 +287,7 @@ int cmd_demo(const Args& args) {
   std::string library = default_sample_folder(), out_dir;
   int width = 1280, height = 800;
   double number = 0;
+  uint64_t seed = 42;
   if (auto v = flags.value("--answers")) {
     if (!parse_number(*v, &number) || number < 0 || number > 100000 || number != double(int(number))) {
       std::fprintf(stderr, "kith demo: --answers expects a whole number from 0 to 100000, got '%s'\n", v->c_str());
@@ -261,6 +301,20 @@ int cmd_demo(const Args& args) {
       return kExitUsage;
     }
     trial.blend = number;
+  }
+  if (auto v = flags.value("--weights")) {
+    if (*v != "on" && *v != "off") {
+      std::fprintf(stderr, "kith demo: --weights expects on or off, got '%s'\n", v->c_str());
+      return kExitUsage;
+    }
+    trial.learn_weights = *v == "on";
+  }
+  if (auto v = flags.value("--seed")) {
+    if (!parse_number(*v, &number) || number < 0 || number > 1e9 || number != double(int64_t(number))) {
+      std::fprintf(stderr, "kith demo: --seed expects a whole number from 0 to 1000000000, got '%s'\n", v->c_str());
+      return kExitUsage;
+    }
+    seed = uint64_t(number);
   }
   if (auto v = flags.value("--library")) library = *v;
   if (auto v = flags.value("--out")) out_dir = *v;
@@ -288,11 +342,11 @@ int cmd_demo(const Args& args) {
     EngineOptions eo;
     eo.blend = trial.blend;
     bool opened = false;
-    const int rc = run_live(d, eo, hidden, &opened);
+    const int rc = run_live(d, eo, trial, hidden, &opened);
     if (opened || rc == kExitOk) return rc;
     std::fprintf(stderr, "kith demo: no window could be opened; running headless instead\n");
   }
-  return run_headless(d, trial, out_dir, width, height);
+  return run_headless(d, trial, seed, out_dir, width, height);
 }
 
 }  // namespace kith
