@@ -71,5 +71,8 @@ TEST_CASE("demo command: help, bad usage and an unwritable library folder") {
   CHECK(run("--answers -3") == 2);
   CHECK(run("--answers lots") == 2);
   CHECK(run("--frobnicate") == 2);
+  CHECK(run("--weights maybe") == 2);
+  CHECK(run("--seed -1") == 2);
+  CHECK(run("--seed 1.5") == 2);
   CHECK(run("--no-window --library /proc/kith-cannot-write-here") == 3);
 }
