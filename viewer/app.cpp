@@ -1000,6 +1000,15 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       JudgmentsPanelLinks links;
       links.post = [&app](CommandBody& body) { return app.post_checked(body); };
       links.say = [&app](const std::string& text) { app.say(text); };
+      links.person_colour = [&app](const std::string& person, Rgb* colour) {
+        if (!app.asking) return false;
+        for (const Person& p : app.asking->desk().flow().people())
+          if (p.name == person) {
+            *colour = Rgb{((p.colour >> 16) & 255) / 255.f, ((p.colour >> 8) & 255) / 255.f, (p.colour & 255) / 255.f};
+            return true;
+          }
+        return false;
+      };
       app.judgments_panel = std::make_unique<JudgmentsPanel>(collection, *app.view, std::move(links));
     }
     app.interaction->teach = app.hooks.teach;

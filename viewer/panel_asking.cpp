@@ -19,6 +19,7 @@ namespace kith {
 namespace {
 ImFont* g_medium = nullptr;  // ids on cards, large type
 ImFont* g_big = nullptr;     // whose turn
+ImFont* g_huge = nullptr;    // whose turn, in large type
 
 ImU32 rgb32(uint32_t rgb, float alpha = 1.f) {
   return IM_COL32((rgb >> 16) & 255, (rgb >> 8) & 255, rgb & 255, int(alpha * 255.f));
@@ -49,6 +50,7 @@ void AskingPanel::load_fonts(float scale) {
       }
       g_medium = io.Fonts->AddFontFromFileTTF(path, 24.f * scale, nullptr, kRanges);
       g_big = io.Fonts->AddFontFromFileTTF(path, 44.f * scale, nullptr, kRanges);
+      g_huge = io.Fonts->AddFontFromFileTTF(path, 64.f * scale, nullptr, kRanges);
       return;
     }
   }
@@ -146,7 +148,7 @@ void AskingPanel::frame_map() {
   const ImGuiIO& io = ImGui::GetIO();
   const float h = io.DisplaySize.y;
   if (h <= 0.f) return;
-  const float top = desk_->large_type() ? 130.f : 100.f;
+  const float top = desk_->large_type() ? 150.f : 100.f;
   const float free = std::max(80.f, h - band_height() - top);
   Camera& cam = view_.camera();
   view_.fit_all(true);
@@ -161,7 +163,7 @@ bool AskingPanel::question_out_of_view() const {
   const Camera& cam = view_.camera();
   const float fb = float(cam.height()) / std::max(1.f, io.DisplaySize.y);
   const float bottom = (io.DisplaySize.y - band_height()) * fb;
-  const float top = (desk_->large_type() ? 130.f : 100.f) * fb;  // under the turn banner
+  const float top = (desk_->large_type() ? 150.f : 100.f) * fb;  // under the turn banner
   for (int i : desk_->question_items()) {
     if (size_t(i) >= view_.positions().size()) continue;
     const Projected p = cam.project(view_.positions()[size_t(i)]);
@@ -200,7 +202,7 @@ void AskingPanel::draw_turn_banner(float top) {
   ImGui::Begin("##turn", nullptr,
                ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoSavedSettings |
                    ImGuiWindowFlags_NoFocusOnAppearing | ImGuiWindowFlags_NoNav | ImGuiWindowFlags_NoInputs);
-  ImGui::PushFont(font_or_current(g_big));
+  ImGui::PushFont(font_or_current(desk_->large_type() && g_huge ? g_huge : g_big));
   const float h = ImGui::GetTextLineHeight();
   if (turn >= 0) {
     const ImVec2 at = ImGui::GetCursorScreenPos();
@@ -218,10 +220,7 @@ void AskingPanel::draw_turn_banner(float top) {
   const TurnRule rule = desk_->flow_options().turn_rule;
   if (!next.empty() && rule != TurnRule::kFacilitator) line += "next: " + next + "   ";
   line += std::to_string(desk_->answered()) + " answers, " + std::to_string(desk_->judgments_made()) + " judgments";
-  if (desk_->mode() != AskingMode::kOwn) {
-    const Question& q = desk_->question();
-    if (q.reask) line += "   (asked before)";
-  }
+  // A re-asked question is not marked on screen: the answer would not measure consistency then.
   ImGui::TextDisabled("%s", line.c_str());
   ImGui::End();
 }
