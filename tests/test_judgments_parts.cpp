@@ -322,3 +322,136 @@ TEST_CASE("pickers: information gain is high while the anchor's place is open, l
   MESSAGE("information of 50 questions: informative " << gain_informative << ", random " << gain_random);
   CHECK(gain_informative > 1.2 * gain_random);
 }
+
+namespace {
+// Slow, obvious expected information gain: every item's place (the anchor's own first) as a
+// candidate place for the anchor, uniform prior, t-STE or logistic likelihood of the anchor's
+// judgments, then I = H(sum w p) - sum w H(p) with H written out.
+double slow_information(const Points& y, const std::vector<Judgment>& js, int32_t a, int32_t b, int32_t c,
+                        bool calibrated, double alpha, double beta) {
+  auto g = [&](const Eigen::RowVectorXd& x, int32_t i) {
+    const double d = (x - y.row(i)).norm();
+    return calibrated ? -beta * d : -0.5 * (alpha + 1) * std::log(1 + d * d / alpha);
+  };
+  auto H = [](double p) { return -p * std::log(p) - (1 - p) * std::log(1 - p); };
+  std::vector<Eigen::RowVectorXd> places = {y.row(a)};
+  for (int32_t i = 0; i < int32_t(y.rows()); ++i)
+    if (i != a) places.push_back(y.row(i));
+  std::vector<double> logw;
+  for (const auto& x : places) {
+    double l = 0;
+    for (const Judgment& j : js) {
+      if (j.anchor != a && j.nearer != a && j.farther != a) continue;
+      auto pos = [&](int32_t i) -> Eigen::RowVectorXd { return i == a ? x : Eigen::RowVectorXd(y.row(i)); };
+      auto gg = [&](int32_t i, int32_t k) {
+        const double d = (pos(i) - pos(k)).norm();
+        return calibrated ? -beta * d : -0.5 * (alpha + 1) * std::log(1 + d * d / alpha);
+      };
+      l += std::log(1.0 / (1.0 + std::exp(gg(j.anchor, j.farther) - gg(j.anchor, j.nearer))));
+    }
+    logw.push_back(l);
+  }
+  const double top = *std::max_element(logw.begin(), logw.end());
+  double total = 0, pbar = 0, hbar = 0;
+  for (double l : logw) total += std::exp(l - top);
+  for (size_t s = 0; s < places.size(); ++s) {
+    const double w = std::exp(logw[s] - top) / total;
+    if (w <= 1e-6) continue;  // the picker skips places this light (their share is below 1e-6 each)
+    const double p = 1.0 / (1.0 + std::exp(g(places[s], c) - g(places[s], b)));
+    pbar += w * p;
+    hbar += w * H(p);
+  }
+  return H(pbar) - hbar;
+}
+}  // namespace
+
+TEST_CASE("pickers: information and the calibrated response equal slow, obvious computations") {
+  // 40 items, 60 judgments from a noisy rule on the map itself; the picker's places are every
+  // item when samples >= N - 1 and local_share = 0, so both sides use the same places.
+  const Points y = cloud(40, 21);
+  std::mt19937_64 rng(22);
+  std::uniform_int_distribution<int32_t> item(0, 39);
+  std::uniform_real_distribution<double> u(0, 1);
+  std::vector<Judgment> js;
+  while (js.size() < 60) {
+    const int32_t a = item(rng), b = item(rng), c = item(rng);
+    if (a == b || a == c || b == c) continue;
+    const double db = (y.row(a) - y.row(b)).norm(), dc = (y.row(a) - y.row(c)).norm();
+    const bool says_b = u(rng) < 1.0 / (1.0 + std::exp(-(dc - db) / 0.3));
+    js.push_back(says_b ? make(a, b, c) : make(a, c, b));
+  }
+  js.push_back(make(3, 4, 5));  // make sure the anchor below is judged
+  kith::PickerInput in{&y, nullptr, &js};
+
+  // beta: the maximum of sum log sigma(beta delta) (plus one agreeing and one disagreeing
+  // pseudo-answer at the median |delta|), found here by a plain golden-section search.
+  std::vector<double> delta, mag;
+  for (const Judgment& j : js) {
+    delta.push_back((y.row(j.anchor) - y.row(j.farther)).norm() - (y.row(j.anchor) - y.row(j.nearer)).norm());
+    mag.push_back(std::abs(delta.back()));
+  }
+  std::sort(mag.begin(), mag.end());
+  const double med = mag[mag.size() / 2];
+  delta.push_back(med);
+  delta.push_back(-med);
+  auto loglik = [&](double beta) {
+    double l = 0;
+    for (double x : delta) l -= std::log1p(std::exp(-beta * x));
+    return l;
+  };
+  double lo = 1e-3, hi = 100.0 / med;
+  const double phi = 0.5 * (std::sqrt(5.0) - 1);
+  for (int it = 0; it < 200; ++it) {
+    const double m1 = hi - phi * (hi - lo), m2 = lo + phi * (hi - lo);
+    (loglik(m1) < loglik(m2) ? lo : hi) = (loglik(m1) < loglik(m2) ? m1 : m2);
+  }
+  const double beta_slow = 0.5 * (lo + hi);
+  kith::PickerOptions o;
+  o.samples = 64;  // >= N - 1: every item is a place
+  o.local_share = 0.0;
+  kith::Picker picker(o);
+  const double beta = picker.calibrated_beta(in);
+  MESSAGE("beta " << beta << ", golden section " << beta_slow);
+  constexpr double kBetaTol = 1e-4;  // relative; golden section stops at 1e-4 of the bracket or better
+  CHECK(std::abs(beta - beta_slow) <= kBetaTol * beta_slow);
+
+  constexpr double kInfoTol = 1e-9;  // the same sums in another order
+  for (auto [b, c] : {std::pair<int32_t, int32_t>{4, 5}, {7, 30}, {12, 13}}) {
+    const double calibrated = picker.information(in, 3, b, c);
+    CHECK(std::abs(calibrated - slow_information(y, js, 3, b, c, true, 1.0, beta)) <= kInfoTol);
+    kith::PickerOptions t = o;
+    t.response = kith::PickerResponse::kTSTE;
+    t.alpha = 2.0;
+    kith::Picker tste(t);
+    CHECK(std::abs(tste.information(in, 3, b, c) - slow_information(y, js, 3, b, c, false, 2.0, 1.0)) <= kInfoTol);
+  }
+}
+
+TEST_CASE("pickers: scoring pairs on places resampled from the posterior keeps the questions informative") {
+  // Fast path (48 places drawn from the posterior) against the slow one (every place): the
+  // questions each asks carry, on average, nearly the same information, judged by the exact
+  // (unthinned) information on the same map and judgments.
+  const Points y = cloud(300, 31);
+  std::mt19937_64 rng(32);
+  std::uniform_int_distribution<int32_t> item(0, 299);
+  std::vector<Judgment> js;
+  while (js.size() < 900) {
+    const int32_t a = item(rng), b = item(rng), c = item(rng);
+    if (a == b || a == c || b == c) continue;
+    const bool says_b = (y.row(a) - y.row(b)).norm() < (y.row(a) - y.row(c)).norm();
+    js.push_back(says_b ? make(a, b, c) : make(a, c, b));
+  }
+  kith::PickerInput in{&y, nullptr, &js};
+  kith::PickerOptions fast, slow;
+  slow.scored_places = 0;
+  kith::Picker pf(fast), ps(slow), judge;
+  double info_fast = 0, info_slow = 0;
+  for (int t = 0; t < 30; ++t) {
+    const auto qf = pf.pair(in), qs = ps.pair(in);
+    info_fast += judge.information(in, qf.anchor, qf.candidates[0], qf.candidates[1]);
+    info_slow += judge.information(in, qs.anchor, qs.candidates[0], qs.candidates[1]);
+  }
+  MESSAGE("information of 30 questions: resampled places " << info_fast << ", all places " << info_slow);
+  constexpr double kKeep = 0.85;  // rule of thumb: resampling may cost a little, not most, of the gain
+  CHECK(info_fast >= kKeep * info_slow);
+}

@@ -7,8 +7,13 @@
 // held-out agreement (warm-up included), median over the seeds; then the time one
 // most-informative choice takes at N = 10,000.
 //
-//   build/tests/bench_judgments [seeds=5] [max_judgments=16000] [warm_up=2000]
+//   build/tests/bench_judgments [seeds=5] [max_judgments=16000] [warm_up=2000] [key=value ...]
+// keys: batch (questions between refits), refit (iterations per refit), near, feature, random,
+// draws, anchors, share, samples, scored, local, spread (the PickerOptions of the same names),
+// timing=0 to skip the choice-time measurement.
 #include <algorithm>
+#include <cstring>
+#include <string>
 #include <chrono>
 #include <cstdio>
 #include <cstdlib>
@@ -25,13 +30,33 @@ constexpr int kItems = 300;
 constexpr double kNoise = 0.02;      // oracle's logistic noise scale, in unit-cube lengths
 constexpr double kAlpha = 2.0;       // t-STE dof for a 3-D planted map
 size_t kStart = 2000;                // random judgments before the pickers take over (argument 3)
-constexpr size_t kBatch = 100;       // questions between refits
-constexpr int kRefitIterations = 150;
+size_t kBatch = 100;                 // questions between refits (key batch)
+int kRefitIterations = 150;          // (key refit)
+bool gTrace = false;
+int gOnly = -1;                      // run only this picker: 0 random, 1 most informative (key only)                 // print the agreement every 1,000 judgments (key trace)
+PickerOptions gOptions;              // the most-informative picker's options (keys above)
+
+constexpr int kInitialIterations = 600;  // a fit from scratch
+double gRestart = 2.0;               // refit from scratch when the judgments grow this many times; 0 = never (key restart)
+
+// The judgments-only fit (as test::fit_judgments_only) that also reports the final objective.
+Points fit(const std::vector<Judgment>& judgments, uint64_t seed, int iterations, const Points* start, double* cost) {
+  BlendedObjective objective(size_t(kItems), 3);
+  objective.set_alpha(kAlpha);
+  objective.set_judgments(judgments);
+  Points y = start ? *start : random_start(size_t(kItems), 3, seed, 1e-2);
+  BlendedFitOptions options;
+  options.iterations = iterations;
+  const BlendedFitSummary summary = fit_blended(objective, y, options);
+  if (cost) *cost = summary.finite ? summary.cost : 1e300;
+  return y;
+}
 
 struct Run {
   size_t reach85 = 0, reach90 = 0;  // 0 = not reached
   double final_agreement = 0;
-  double seconds = 0;
+  double seconds = 0, pick_seconds = 0, fit_seconds = 0;
+  int restarts_kept = 0;
 };
 
 Run run(PickerRule rule, uint64_t seed, size_t max_judgments) {
@@ -40,23 +65,39 @@ Run run(PickerRule rule, uint64_t seed, size_t max_judgments) {
   std::mt19937_64 pick(3000 + seed);
   const auto held_out = oracle.random_answers(kItems, 5000, pick);
   std::vector<Judgment> judgments = oracle.random_answers(kItems, kStart, pick);
-  Points y = test::fit_judgments_only(kItems, judgments, seed, 600, kAlpha);
-  PickerOptions po;
+  Points y = fit(judgments, seed, kInitialIterations, nullptr, nullptr);
+  size_t last_restart = judgments.size();
+  PickerOptions po = gOptions;
   po.rule = rule;
   po.alpha = kAlpha;
   po.seed = 4000 + seed;
-  po.anchors_scored = 4;
   Picker picker(po);
   Run r;
   const auto t0 = std::chrono::steady_clock::now();
   while (judgments.size() < max_judgments) {
+    const auto p0 = std::chrono::steady_clock::now();
     for (size_t q = 0; q < kBatch; ++q) {
       const Question question = picker.pair({&y, nullptr, &judgments});
       judgments.push_back(oracle.answer(question.anchor, question.candidates[0], question.candidates[1]));
     }
-    y = test::fit_judgments_only(kItems, judgments, seed, kRefitIterations, kAlpha, &y);
+    const auto p1 = std::chrono::steady_clock::now();
+    double cost = 0.0;
+    y = fit(judgments, seed, kRefitIterations, &y, &cost);
+    if (gRestart > 1.0 && double(judgments.size()) >= gRestart * double(last_restart)) {
+      // A warm-started refit cannot undo a fold; each time the judgments double (key restart), also fit from
+      // scratch and keep whichever map the judgments fit better (same rule for both pickers).
+      double fresh_cost = 0.0;
+      Points fresh = fit(judgments, seed + 100 * judgments.size(), kInitialIterations, nullptr, &fresh_cost);
+      if (fresh_cost < cost) y = fresh, ++r.restarts_kept;
+      last_restart = judgments.size();
+    }
+    r.pick_seconds += std::chrono::duration<double>(p1 - p0).count();
+    r.fit_seconds += std::chrono::duration<double>(std::chrono::steady_clock::now() - p1).count();
     const double agreement = judgment_agreement(y, held_out);
     r.final_agreement = agreement;
+    if (gTrace && judgments.size() % 1000 < kBatch)
+      std::printf("  trace %s seed %d: %zu judgments, held-out agreement %.3f\n",
+                  rule == PickerRule::kRandom ? "random" : "informative", int(seed), judgments.size(), agreement);
     if (!r.reach85 && agreement >= 0.85) r.reach85 = judgments.size();
     if (!r.reach90 && agreement >= 0.90) {
       r.reach90 = judgments.size();
@@ -79,15 +120,59 @@ int main(int argc, char** argv) {
   const int seeds = argc > 1 ? std::atoi(argv[1]) : 5;
   const size_t max_judgments = argc > 2 ? size_t(std::atol(argv[2])) : 16000;
   if (argc > 3) kStart = size_t(std::atol(argv[3]));
-  std::printf("planted map: %d items, oracle noise %.2f, alpha %.0f, %zu random to start, batches of %zu, %d seeds\n",
-              kItems, kNoise, kAlpha, kStart, kBatch, seeds);
-  std::printf("%-18s %6s %10s %10s %10s\n", "picker", "seed", "to 0.85", "to 0.90", "seconds");
+  bool timing = true;
+  for (int a = 4; a < argc; ++a) {
+    const char* eq = std::strchr(argv[a], '=');
+    if (!eq) {
+      std::fprintf(stderr, "bench_judgments: expected key=value, got '%s'\n", argv[a]);
+      return 2;
+    }
+    const std::string key(argv[a], size_t(eq - argv[a]));
+    const double v = std::atof(eq + 1);
+    if (key == "batch") kBatch = size_t(v);
+    else if (key == "refit") kRefitIterations = int(v);
+    else if (key == "near") gOptions.near_candidates = int(v);
+    else if (key == "feature") gOptions.feature_candidates = int(v);
+    else if (key == "random") gOptions.random_candidates = int(v);
+    else if (key == "draws") gOptions.anchor_draws = int(v);
+    else if (key == "anchors") gOptions.anchors_scored = int(v);
+    else if (key == "share") gOptions.random_share = v;
+    else if (key == "samples") gOptions.samples = int(v);
+    else if (key == "scored") gOptions.scored_places = int(v);
+    else if (key == "local") gOptions.local_share = v;
+    else if (key == "spread") gOptions.local_spread = v;
+    else if (key == "tste") gOptions.response = v != 0 ? PickerResponse::kTSTE : PickerResponse::kCalibrated;
+    else if (key == "restart") gRestart = v;
+    else if (key == "timing") timing = v != 0;
+    else if (key == "trace") gTrace = v != 0;
+    else if (key == "only") gOnly = int(v);
+    else {
+      std::fprintf(stderr, "bench_judgments: unknown key '%s'\n", key.c_str());
+      return 2;
+    }
+  }
+  std::string error;
+  if (!gOptions.IsValid(&error) || kBatch < 1 || kRefitIterations < 1) {
+    std::fprintf(stderr, "bench_judgments: %s\n", error.empty() ? "batch and refit must be at least 1" : error.c_str());
+    return 2;
+  }
+  std::printf("planted map: %d items, oracle noise %.2f, alpha %.0f, %zu random to start, batches of %zu, refit %d "
+              "iterations, %d seeds\n", kItems, kNoise, kAlpha, kStart, kBatch, kRefitIterations, seeds);
+  std::printf("informative picker: near %d, random %d, anchor draws %d, anchors scored %d, random share %.2f, "
+              "places %d (local share %.2f, spread %.2f), scored places %d\n",
+              gOptions.near_candidates, gOptions.random_candidates, gOptions.anchor_draws, gOptions.anchors_scored,
+              gOptions.random_share, gOptions.samples, gOptions.local_share, gOptions.local_spread,
+              gOptions.scored_places);
+  std::printf("%-18s %6s %10s %10s %10s %10s %10s %10s %9s\n", "picker", "seed", "to 0.85", "to 0.90", "final",
+              "seconds", "picking", "fitting", "restarts");
   std::vector<double> med[2][2];
   for (int rule = 0; rule < 2; ++rule)
     for (int s = 0; s < seeds; ++s) {
+      if (gOnly >= 0 && rule != gOnly) continue;
       const Run r = run(PickerRule(rule), uint64_t(s), max_judgments);
       const char* name = rule == 0 ? "random" : "most informative";
-      std::printf("%-18s %6d %10zu %10zu %10.1f\n", name, s, r.reach85, r.reach90, r.seconds);
+      std::printf("%-18s %6d %10zu %10zu %10.3f %10.1f %10.1f %10.1f %9d\n", name, s, r.reach85, r.reach90,
+                  r.final_agreement, r.seconds, r.pick_seconds, r.fit_seconds, r.restarts_kept);
       std::fflush(stdout);
       med[rule][0].push_back(r.reach85 ? double(r.reach85) : double(max_judgments) * 2);
       med[rule][1].push_back(r.reach90 ? double(r.reach90) : double(max_judgments) * 2);
@@ -102,7 +187,7 @@ int main(int argc, char** argv) {
   std::printf("(not reached counts as twice the cap, %zu)\n", max_judgments);
 
   // ---- time per choice at N = 10,000 --------------------------------------------
-  {
+  if (timing) {
     const int n = 10000;
     const Points map = test::planted_positions(n, 7, 20, 0.05);
     std::mt19937_64 rng(8);
@@ -112,7 +197,7 @@ int main(int argc, char** argv) {
     test::Oracle oracle(map, kNoise, 9);
     std::vector<Judgment> judgments = oracle.random_answers(n, 50000, rng);
     std::vector<double> pair_ms, grid_ms, random_ms;
-    PickerOptions po;
+    PickerOptions po = gOptions;
     Picker informative(po);
     po.rule = PickerRule::kRandom;
     Picker random(po);
