@@ -30,7 +30,9 @@ std::vector<size_t> filter_judgments(const std::vector<Judgment>& judgments, con
     item_matches.resize(ids.size());
     for (size_t i = 0; i < ids.size(); ++i) item_matches[i] = lower(ids[i]).find(needle) != std::string::npos;
   }
-  auto matches = [&](int32_t item) { return item >= 0 && size_t(item) < item_matches.size() && item_matches[size_t(item)]; };
+  auto matches = [&](int32_t item) {
+    return item >= 0 && size_t(item) < item_matches.size() && item_matches[size_t(item)];
+  };
   for (size_t k = 0; k < judgments.size(); ++k) {
     const Judgment& j = judgments[k];
     if (!filter.show_retracted && j.retracted) continue;
@@ -75,9 +77,8 @@ std::vector<PersonQuestionAgreement> same_question_agreement(const std::vector<J
     const QuestionKey key = question_key(j);
     rows.push_back({key, person_of[j.person], j.nearer == key.low});
   }
-  std::sort(rows.begin(), rows.end(), [](const Row& a, const Row& b) {
-    return a.key == b.key ? a.person < b.person : a.key < b.key;
-  });
+  std::sort(rows.begin(), rows.end(),
+            [](const Row& a, const Row& b) { return a.key == b.key ? a.person < b.person : a.key < b.key; });
   struct Counts {
     int person;
     size_t low = 0, high = 0;

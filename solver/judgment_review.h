@@ -29,10 +29,10 @@ namespace kith {
 
 // ---- filtering -----------------------------------------------------------------------------
 struct JudgmentFilter {
-  bool any_person = true;       // (default: everyone)
-  std::string person;           // with any_person false: only this person ("" = nobody named)
-  std::string item;             // part of an item id, any case; "" = any item (default: "")
-  bool show_retracted = true;   // (default: shown, marked)
+  bool any_person = true;      // (default: everyone)
+  std::string person;          // with any_person false: only this person ("" = nobody named)
+  std::string item;            // part of an item id, any case; "" = any item (default: "")
+  bool show_retracted = true;  // (default: shown, marked)
 };
 
 // Indices into `judgments` (in their order) of those passing the filter. `ids` names the items.

@@ -102,9 +102,9 @@ TEST_CASE("judgment review: same question, consistency and cross-agreement by ha
     j.anchor = a, j.nearer = n, j.farther = f, j.person = who;
     return j;
   };
-  std::vector<Judgment> js = {J(0, 1, 2, "Ada"), J(0, 1, 2, "Ada"), J(0, 2, 1, "Bram"), J(0, 1, 2, "Cleo"),
-                              J(5, 6, 7, "Ada"),  // asked once: no pairs
-                              J(1, 0, 2, "Bram")};  // another anchor: another question
+  std::vector<Judgment> js = {J(0, 1, 2, "Ada"),  J(0, 1, 2, "Ada"), J(0, 2, 1, "Bram"),
+                              J(0, 1, 2, "Cleo"), J(5, 6, 7, "Ada"),  // asked once: no pairs
+                              J(1, 0, 2, "Bram")};                    // another anchor: another question
   CHECK(question_key(js[0]) == question_key(js[2]));
   CHECK_FALSE(question_key(js[0]) == question_key(js[5]));
   CHECK(repeated_questions(js) == 1);
@@ -231,7 +231,7 @@ struct PanelRig {
   StillFeed feed{collection.ids, rough_positions(collection)};
   MapView view{collection, renderer};
   std::vector<CommandBody> posted;
-  std::string refuse;   // when set, every post is refused with this message
+  std::string refuse;     // when set, every post is refused with this message
   int64_t next_id = 100;  // what a session would number the next judgment
   std::vector<std::string> said;
   std::unique_ptr<JudgmentsPanel> panel;
@@ -309,9 +309,9 @@ TEST_CASE("judgments panel: CSV import is all or none, bad rows listed; export r
   const std::string bad = dir + "/bad.csv";
   std::ofstream(bad) << "anchor,nearer,farther,person,time,kind\n"
                         "s00001,s00002,s00003,Cleo,2026-12-01T10:00:00Z,pair\n"
-                        "s00001,lamp-9,s00003,Cleo,,pair\n"     // line 3: unknown id
-                        "s00004,s00004,s00005,Cleo,,pair\n"     // line 4: repeated item
-                        "s00006,s00007\n"                       // line 5: too few fields
+                        "s00001,lamp-9,s00003,Cleo,,pair\n"  // line 3: unknown id
+                        "s00004,s00004,s00005,Cleo,,pair\n"  // line 4: repeated item
+                        "s00006,s00007\n"                    // line 5: too few fields
                         "s00008,s00009,s00010,Dov,,grid\n";
   CHECK(r.panel->import_csv(bad, false) == 0);
   CHECK(r.posted.empty());
@@ -375,4 +375,62 @@ TEST_CASE("judgments panel: agreement figures per person from the map shown") {
   r.panel->tick(1.0);  // too soon for another sample
   r.panel->tick(3.5);
   CHECK(r.panel->history().samples() == 2);
+}
+
+#include "solver/session_store.h"
+#include "viewer/session_link.h"
+
+TEST_CASE(
+    "judgments panel: through a real session, imports and retractions are in the file; a refusal changes nothing") {
+  const std::string dir = kith::test::temp_dir("judgments-panel-session");
+  const std::string path = dir + "/s.kith";
+  const Collection c = synthetic_collection(40, 4);
+  {
+    auto store = SessionStore::create(path, c);
+    Judgment j;
+    j.anchor = 0, j.nearer = 1, j.farther = 2, j.person = "Ada";
+    store->add_judgment(j);
+  }
+  {
+    SessionLink link(path);
+    MockRenderer renderer;
+    StillFeed still{link.collection().ids, rough_positions(link.collection())};
+    auto feed = link.recording(still);
+    MapView view{link.collection(), renderer};
+    view.set_snapshot(still.latest());
+    view.set_judgments(link.judgments());
+    JudgmentsPanelLinks links;
+    links.post = [&](CommandBody& body) {  // the window's path: prepare (the session write), then post
+      if (std::string refused = feed->prepare(body); !refused.empty()) return refused;
+      feed->post(body);
+      return std::string();
+    };
+    JudgmentsPanel panel(link.collection(), view, links);
+    const std::string csv = dir + "/more.csv";
+    std::ofstream(csv) << "anchor,nearer,farther,person\ns00003,s00004,s00005,Bram\ns00006,s00007,s00008,Cleo\n";
+    REQUIRE(panel.import_csv(csv, false) == 2);
+    REQUIRE(view.judgments().size() == 3);
+    CHECK(view.judgments()[1].id == 2);  // the ids the session gave
+    CHECK(view.judgments()[2].id == 3);
+    CHECK(panel.set_retracted(1, true).empty());
+    // A judgment the session does not know (as if made elsewhere): the session refuses to retract
+    // it, so the list stays as it was and says why.
+    std::vector<Judgment> with_stranger = view.judgments();
+    Judgment stranger;
+    stranger.id = 99, stranger.anchor = 9, stranger.nearer = 10, stranger.farther = 11;
+    with_stranger.push_back(stranger);
+    view.set_judgments(with_stranger);
+    const std::string refused = panel.set_retracted(3, true);
+    CHECK_FALSE(refused.empty());
+    CHECK(refused.find("could not write to the session") != std::string::npos);
+    CHECK_FALSE(view.judgments()[3].retracted);
+  }
+  // What the file holds, read again after the window's link closed it.
+  const auto stored = SessionStore::open(path)->judgments();
+  REQUIRE(stored.size() == 3);
+  CHECK_FALSE(stored[0].retracted);
+  CHECK(stored[1].retracted);
+  CHECK(stored[1].person == "Bram");
+  CHECK(stored[2].person == "Cleo");
+  CHECK(stored[2].anchor == 6);
 }

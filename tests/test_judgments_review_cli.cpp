@@ -57,11 +57,11 @@ TEST_CASE("judgments import: kith judge --import reports every bad row and leave
   kith::test::write_bytes(bad,
                           "anchor,nearer,farther,person,time,kind\n"
                           "sw4,sw5,sw6,Bram,2026-12-01T10:00:00Z,pair\n"  // line 2: good
-                          "sw4,lamp-9,sw6,Bram,,pair\n"                    // line 3: unknown id
-                          "sw7,sw8,sw7,Bram,,pair\n"                       // line 4: an item twice
-                          "sw9,sw10\n"                                     // line 5: too few fields
-                          "sw11,sw12,sw13,Bram,yesterday,pair\n"           // line 6: not a time
-                          "sw14,sw15,sw16,Cleo,,grid\n");                  // line 7: good
+                          "sw4,lamp-9,sw6,Bram,,pair\n"                   // line 3: unknown id
+                          "sw7,sw8,sw7,Bram,,pair\n"                      // line 4: an item twice
+                          "sw9,sw10\n"                                    // line 5: too few fields
+                          "sw11,sw12,sw13,Bram,yesterday,pair\n"          // line 6: not a time
+                          "sw14,sw15,sw16,Cleo,,grid\n");                 // line 7: good
   const std::string before = kith::test::file_bytes(session);
   const auto listing = kith::test::folder_listing(dir);
   r = kith_run("judge " + session + " --import " + bad);
@@ -76,7 +76,7 @@ TEST_CASE("judgments import: kith judge --import reports every bad row and leave
   CHECK_FALSE(contains(r.output, "more.csv:7:"));
   CHECK(contains(r.output, "4 bad rows"));
   CHECK(contains(r.output, "none imported"));
-  CHECK(kith::test::file_bytes(session) == before);  // byte for byte
+  CHECK(kith::test::file_bytes(session) == before);   // byte for byte
   CHECK(kith::test::folder_listing(dir) == listing);  // no -wal or -journal left beside it
   CHECK(kith::SessionStore::open(session)->judgment_count() == 1);
 
@@ -126,8 +126,8 @@ TEST_CASE("judgments window: a session's judgments are listed and a scripted ret
   // Open the list (L), choose the second judgment (ctrl + down twice) and retract it (Delete).
   // Frame numbers only order the events; the dump waits for the engine to take the command.
   std::ofstream(dir + "/script.txt") << "10 key L\n12 key ctrl+DOWN\n14 key ctrl+DOWN\n16 key DELETE\n"
-                                        "18 wait-settle 3\n30 dump " << dir << "/state.json\n30 shot " << dir
-                                     << "/shot.png\n31 quit\n";
+                                        "18 wait-settle 3\n30 dump "
+                                     << dir << "/state.json\n30 shot " << dir << "/shot.png\n31 quit\n";
   const std::string cmd = "xvfb-run -a -s '-screen 0 1280x800x24' " + std::string(KITH_BINARY) + " open " + path +
                           " --frames 200 --script " + dir + "/script.txt > " + dir + "/log.txt 2>&1";
   REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");

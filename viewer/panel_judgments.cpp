@@ -66,7 +66,8 @@ std::string JudgmentsPanel::set_retracted(size_t index, bool retracted) {
   mark_judgments_changed();
   problem_.clear();
   if (links_.say)
-    links_.say(std::string(retracted ? "retracted" : "restored") + " judgment " + std::to_string(view_.judgments()[index].id));
+    links_.say(std::string(retracted ? "retracted" : "restored") + " judgment " +
+               std::to_string(view_.judgments()[index].id));
   return "";
 }
 
@@ -87,8 +88,10 @@ void JudgmentsPanel::choose_step(int step) {
   if (r.empty()) return;
   auto at = std::find(r.begin(), r.end(), chosen_);
   size_t pos;
-  if (at == r.end()) pos = step > 0 ? 0 : r.size() - 1;
-  else pos = size_t(std::clamp<long long>((long long)(at - r.begin()) + step, 0, (long long)r.size() - 1));
+  if (at == r.end())
+    pos = step > 0 ? 0 : r.size() - 1;
+  else
+    pos = size_t(std::clamp<long long>((long long)(at - r.begin()) + step, 0, (long long)r.size() - 1));
   choose(r[pos]);
   // Said as well, so stepping through judgments works with the panels hidden (Tab) and the map in full.
   const Judgment& j = view_.judgments()[r[pos]];
@@ -213,7 +216,8 @@ size_t JudgmentsPanel::import_csv(const std::string& path, bool skip_bad_rows) {
   std::string summary = "imported " + std::to_string(added) + " judgment" + (added == 1 ? "" : "s") + " from " + path;
   if (r.bad_rows) summary += "; skipped " + std::to_string(r.bad_rows) + " bad row" + (r.bad_rows == 1 ? "" : "s");
   if (!refused.empty())
-    summary += "; stopped after " + std::to_string(added) + " of " + std::to_string(r.judgments.size()) + ": " + refused;
+    summary +=
+        "; stopped after " + std::to_string(added) + " of " + std::to_string(r.judgments.size()) + ": " + refused;
   file_messages_.push_back(summary);
   if (links_.say) links_.say(summary);
   return added;
@@ -246,7 +250,8 @@ bool JudgmentsPanel::export_csv(const std::string& path, bool include_retracted,
   }
   size_t written = 0;
   for (const Judgment& j : all) written += include_retracted || !j.retracted;
-  const std::string summary = "wrote " + std::to_string(written) + " judgment" + (written == 1 ? "" : "s") + " to " + path;
+  const std::string summary =
+      "wrote " + std::to_string(written) + " judgment" + (written == 1 ? "" : "s") + " to " + path;
   file_messages_.push_back(summary);
   if (links_.say) links_.say(summary);
   return true;
@@ -289,7 +294,8 @@ void JudgmentsPanel::draw(bool* open) {
   tab_pending_ = false;
   if (!show_agreement_) return;
   ImGui::SetNextWindowPos(ImVec2(x, top + list_h + 8), ImGuiCond_FirstUseEver);
-  ImGui::SetNextWindowSize(ImVec2(width, std::max(200.f, io.DisplaySize.y - top - list_h - 18)), ImGuiCond_FirstUseEver);
+  ImGui::SetNextWindowSize(ImVec2(width, std::max(200.f, io.DisplaySize.y - top - list_h - 18)),
+                           ImGuiCond_FirstUseEver);
   if (ImGui::Begin("Agreement", &show_agreement_)) tab_agreement();
   ImGui::End();
 }
@@ -316,8 +322,8 @@ void JudgmentsPanel::tab_list() {
   bool show_retracted = filter_.show_retracted;
   if (ImGui::Checkbox("retracted too", &show_retracted)) filter().show_retracted = show_retracted;
   const auto& r = rows();
-  ImGui::TextDisabled("%zu shown of %zu  (%zu retracted)   ctrl + up/down: choose,  Delete: retract / restore", r.size(),
-                      all.size(), retracted_count_);
+  ImGui::TextDisabled("%zu shown of %zu  (%zu retracted)   ctrl + up/down: choose,  Delete: retract / restore",
+                      r.size(), all.size(), retracted_count_);
   if (!problem_.empty()) ImGui::TextColored(ImVec4(0.80f, 0.25f, 0.15f, 1.f), "%s", problem_.c_str());
 
   const ImGuiTableFlags flags = ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV |
@@ -342,7 +348,8 @@ void JudgmentsPanel::tab_list() {
     if (at != r.end()) {
       const float y = float(at - r.begin()) * row_height;
       const float view_h = ImGui::GetWindowHeight() - 2 * row_height;
-      if (y < ImGui::GetScrollY() || y > ImGui::GetScrollY() + view_h) ImGui::SetScrollY(std::max(0.f, y - view_h * 0.5f));
+      if (y < ImGui::GetScrollY() || y > ImGui::GetScrollY() + view_h)
+        ImGui::SetScrollY(std::max(0.f, y - view_h * 0.5f));
     }
     scroll_to_chosen_ = false;
   }
@@ -357,12 +364,13 @@ void JudgmentsPanel::tab_list() {
       ImGui::TableNextColumn();
       char id[32];
       std::snprintf(id, sizeof id, "%lld", static_cast<long long>(j.id));
-      if (ImGui::Selectable(id, k == chosen_, ImGuiSelectableFlags_SpanAllColumns | ImGuiSelectableFlags_AllowItemOverlap,
+      if (ImGui::Selectable(id, k == chosen_,
+                            ImGuiSelectableFlags_SpanAllColumns | ImGuiSelectableFlags_AllowItemOverlap,
                             ImVec2(0, row_height)))
         click = k;
-      if (ImGui::IsItemHovered()) ImGui::SetTooltip("show %s, %s and %s in the map", name_of(collection_.ids, j.anchor).c_str(),
-                                                   name_of(collection_.ids, j.nearer).c_str(),
-                                                   name_of(collection_.ids, j.farther).c_str());
+      if (ImGui::IsItemHovered())
+        ImGui::SetTooltip("show %s, %s and %s in the map", name_of(collection_.ids, j.anchor).c_str(),
+                          name_of(collection_.ids, j.nearer).c_str(), name_of(collection_.ids, j.farther).c_str());
       ImGui::TableNextColumn();
       ImGui::TextUnformatted(name_of(collection_.ids, j.anchor).c_str());
       ImGui::TableNextColumn();
@@ -370,8 +378,10 @@ void JudgmentsPanel::tab_list() {
       ImGui::TableNextColumn();
       ImGui::TextUnformatted(name_of(collection_.ids, j.farther).c_str());
       ImGui::TableNextColumn();
-      if (!j.retracted) ImGui::TextColored(to_imvec(person_colour(j.person)), "%s", person_label(j.person).c_str());
-      else ImGui::TextUnformatted(person_label(j.person).c_str());
+      if (!j.retracted)
+        ImGui::TextColored(to_imvec(person_colour(j.person)), "%s", person_label(j.person).c_str());
+      else
+        ImGui::TextUnformatted(person_label(j.person).c_str());
       ImGui::TableNextColumn();
       ImGui::TextUnformatted(short_time(j.time).c_str());
       ImGui::TableNextColumn();
@@ -419,8 +429,10 @@ void JudgmentsPanel::draw_chart(float height) {
     std::vector<ImVec2> line;
     line.reserve(points.size());
     for (const auto& p : points) line.emplace_back(x_of(p.seconds), y_of(p.agreement));
-    if (line.size() == 1) dl->AddCircleFilled(line[0], 3.f, colour);
-    else if (line.size() > 1) dl->AddPolyline(line.data(), int(line.size()), colour, ImDrawFlags_None, 2.f);
+    if (line.size() == 1)
+      dl->AddCircleFilled(line[0], 3.f, colour);
+    else if (line.size() > 1)
+      dl->AddPolyline(line.data(), int(line.size()), colour, ImDrawFlags_None, 2.f);
   }
   char span[64];
   std::snprintf(span, sizeof span, "last %.0f s, a point every %.0f s", t1 - t0, sample_seconds);
@@ -439,8 +451,7 @@ void JudgmentsPanel::tab_agreement() {
     ImGui::TableSetupColumn("with others");
     ImGui::TableNextRow(ImGuiTableRowFlags_Headers);
     static const char* kHints[] = {
-        "colour: the person's line in the chart below",
-        "their judgments that are not retracted",
+        "colour: the person's line in the chart below", "their judgments that are not retracted",
         "share of their judgments the map satisfies now (anchor nearer to the nearer item)",
         "share of agreeing pairs among their own answers to a question asked again (pairs in brackets)",
         "share of agreeing pairs between their answers and other people's to the same question (pairs)"};
@@ -452,8 +463,7 @@ void JudgmentsPanel::tab_agreement() {
     for (const PersonRow& p : people_) {
       ImGui::TableNextRow();
       ImGui::TableNextColumn();
-      ImGui::ColorButton("##c", to_imvec(person_colour(p.person)),
-                         ImGuiColorEditFlags_NoTooltip, ImVec2(12, 12));
+      ImGui::ColorButton("##c", to_imvec(person_colour(p.person)), ImGuiColorEditFlags_NoTooltip, ImVec2(12, 12));
       ImGui::SameLine();
       ImGui::TextUnformatted(person_label(p.person).c_str());
       ImGui::TableNextColumn();

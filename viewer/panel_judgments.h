@@ -54,11 +54,14 @@ class JudgmentsPanel {
   double sample_seconds = 3.0;  // (default: 3 s)
 
   // ---- list ---------------------------------------------------------------------------------
-  JudgmentFilter& filter() { filter_dirty_ = true; return filter_; }
-  const std::vector<size_t>& rows();          // indices into view.judgments() passing the filter
+  JudgmentFilter& filter() {
+    filter_dirty_ = true;
+    return filter_;
+  }
+  const std::vector<size_t>& rows();  // indices into view.judgments() passing the filter
   // Retract (true) or restore (false) judgment `index` of view.judgments(). "" when done.
   std::string set_retracted(size_t index, bool retracted);
-  std::string toggle_chosen();                 // retract or restore the chosen judgment
+  std::string toggle_chosen();                  // retract or restore the chosen judgment
   void choose(size_t index, bool show = true);  // choose a row (and show it in the map)
   void choose_step(int step);                   // the next / previous row of the filtered list
   size_t chosen() const { return chosen_; }
@@ -100,7 +103,7 @@ class JudgmentsPanel {
   JudgmentFilter filter_;
   std::vector<size_t> rows_;
   bool filter_dirty_ = true;
-  size_t rows_for_count_ = 0;        // judgments when rows_ was made
+  size_t rows_for_count_ = 0;  // judgments when rows_ was made
   size_t retracted_count_ = 0;
   size_t seen_retracted_ = 0, seen_count_ = 0;  // what tick() saw last
   size_t chosen_ = kNone;

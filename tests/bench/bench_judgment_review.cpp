@@ -29,7 +29,9 @@ double median_ms(const std::function<void()>& f) {
 }  // namespace
 
 int main() {
-  std::printf("| items | judgments | filter (person + item text) | same question | agreement with map | violated (p < 0.1) |\n");
+  std::printf(
+      "| items | judgments | filter (person + item text) | same question | agreement with map | violated (p < 0.1) "
+      "|\n");
   std::printf("|---|---|---|---|---|---|\n");
   for (const size_t m : {5000, 50000}) {
     const int n = 10000;
