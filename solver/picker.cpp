@@ -47,16 +47,12 @@ std::vector<int> judgment_counts(const PickerInput& in, size_t n) {
 
 // k nearest rows of x to row `anchor` (excluding it).
 std::vector<int32_t> nearest_rows(const Points& x, int32_t anchor, int k) {
+  // Eigen's row-wise reduction is vectorized (a plain loop with one accumulator is not).
+  const Eigen::VectorXd d2 = (x.rowwise() - x.row(anchor)).rowwise().squaredNorm();
   std::vector<std::pair<double, int32_t>> d;
   d.reserve(size_t(x.rows()));
-  const double* a = x.data() + Eigen::Index(anchor) * x.cols();
-  for (Eigen::Index i = 0; i < x.rows(); ++i) {
-    if (i == anchor) continue;
-    const double* b = x.data() + i * x.cols();
-    double s = 0.0;
-    for (Eigen::Index c = 0; c < x.cols(); ++c) s += (a[c] - b[c]) * (a[c] - b[c]);
-    d.emplace_back(s, int32_t(i));
-  }
+  for (Eigen::Index i = 0; i < x.rows(); ++i)
+    if (i != anchor) d.emplace_back(d2[i], int32_t(i));
   const size_t kk = std::min(d.size(), size_t(std::max(k, 0)));
   std::partial_sort(d.begin(), d.begin() + std::ptrdiff_t(kk), d.end());
   std::vector<int32_t> out;

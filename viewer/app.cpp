@@ -31,6 +31,7 @@
 #include "viewer/gl_renderer.h"
 #include "viewer/input_script.h"
 #include "viewer/offscreen_render.h"
+#include "viewer/panel_asking.h"
 #include "viewer/panel_judgments.h"
 #include "viewer/panel_structure.h"
 #include "viewer/picking.h"
@@ -106,6 +107,7 @@ struct App {
   std::unique_ptr<MapInteraction> interaction;
   std::unique_ptr<StructurePanel> structure;  // suspects, groups, neighbours (key S)
   bool show_structure = false;
+  std::unique_ptr<AskingPanel> asking;        // pair, grid and own judgments; people (keys A, O, W, B)
   std::unique_ptr<JudgmentsPanel> judgments_panel;  // list, agreement, CSV files (key L)
   bool show_judgments = false;
   std::unordered_map<std::string, int> index_of_id;
@@ -265,6 +267,13 @@ void App::process_queue() {
           interaction->pointer_move(e.pos);
         break;
       case QueuedEvent::kButton:
+        if (e.action == GLFW_PRESS && e.button == 0 && asking && asking->wants_item_clicks() &&
+            (!io.WantCaptureMouse || scripted)) {
+          if (const int item = view->item_at(interaction->pointer()); item >= 0) {
+            asking->click_item(item);  // own judgment: the next of anchor, nearer, farther
+            break;
+          }
+        }
         if (e.action == GLFW_PRESS) {
           if (!io.WantCaptureMouse || scripted) interaction->button_down(e.button, (e.mods & GLFW_MOD_SHIFT) != 0);
         } else {
@@ -360,6 +369,20 @@ void App::handle_key(int key, int mods) {
     else judgments_panel->choose_step(key == GLFW_KEY_UP ? -1 : 1);
     return;
   }
+  if (asking && !(key == GLFW_KEY_ESCAPE && show_help)) {
+    const bool was = asking->desk().asking();
+    if (asking->handle_key(key, mods)) {
+      if (!was && asking->desk().asking()) {  // a clean shared screen: the map above the question band
+        show_panels = false;
+        asking->frame_map();
+      } else if (was && !asking->desk().asking()) {
+        show_panels = options.panels;
+        view->fit_all(true);
+      }
+      if (!asking->message().empty()) say(asking->message());
+      return;
+    }
+  }
   Camera& cam = view->camera();
   switch (key) {
     case GLFW_KEY_ESCAPE:
@@ -369,7 +392,7 @@ void App::handle_key(int key, int mods) {
         view->selection_changed();
       }
       break;
-    case GLFW_KEY_F: view->fit_all(true); break;
+    case GLFW_KEY_F: asking && asking->desk().asking() ? asking->frame_map() : view->fit_all(true); break;
     case GLFW_KEY_Z: view->focus_selection(); break;
     case GLFW_KEY_R:
       if (shift) {
@@ -473,6 +496,14 @@ const char* kKeys[][2] = {
     {"L", "judgments: list, agreement per person, CSV import / export"},
     {"ctrl + up / down, Delete", "(judgments open, panels shown or not) show the previous / next judgment; retract / restore it"},
     {"F12", "save the view as PNG"},
+    {"A", "ask pair questions (again: grid questions), Esc stops"},
+    {"left / right arrow, 1 / 2", "pair: the left / right one is closer"},
+    {"1 .. 9", "grid: pick / unpick that place"},
+    {"down arrow, 0", "can't tell (kept, not a judgment)"},
+    {"Backspace", "undo the last answer"},
+    {"W, shift + W", "next / previous person's turn"},
+    {"O", "own judgment: click anchor, nearer, farther; Enter stores"},
+    {"B", "big type for a shared screen"},
     {"H, F1, ?", "this help"},
 };
 
@@ -733,6 +764,7 @@ void App::overlays() {
   ImDrawList* fg = ImGui::GetForegroundDrawList();
   const ImGuiIO& io = ImGui::GetIO();
   const float inv = 1.f / fb_scale;
+  if (asking) asking->draw(show_panels ? ImGui::GetFrameHeight() : 0.f, inv);
   // Box selection.
   if (interaction->state() == MapInteraction::State::kBoxing) {
     const glm::vec2 a = interaction->box_start() * inv, b = interaction->pointer() * inv;
@@ -800,7 +832,8 @@ void App::overlays() {
   // A short message at the bottom centre.
   if (!toast.empty() && Clock::now() < toast_until) {
     const ImVec2 size = ImGui::CalcTextSize(toast.c_str());
-    const ImVec2 at(io.DisplaySize.x * 0.5f - size.x * 0.5f, io.DisplaySize.y - size.y - 24);
+    const float lift = asking ? asking->band_height() : 0.f;  // above the question band
+    const ImVec2 at(io.DisplaySize.x * 0.5f - size.x * 0.5f, io.DisplaySize.y - size.y - 24 - lift);
     fg->AddRectFilled(ImVec2(at.x - 10, at.y - 6), ImVec2(at.x + size.x + 10, at.y + size.y + 6),
                       ImGui::GetColorU32(ImGuiCol_PopupBg), 6.f);
     fg->AddText(at, ImGui::GetColorU32(ImGuiCol_Text), toast.c_str());
@@ -878,6 +911,7 @@ void App::dump_state(const std::string& path) {
   for (const Command& c : feed.command_log())
     log.push_back({{"seq", c.seq}, {"iteration", c.iteration}, {"kind", command_name(c.body)}, {"item", command_item(c.body)}});
   j["log"] = log;
+  if (asking) j["asking"] = asking->state();
   {
     const auto& rows = judgments_panel->rows();
     const size_t chosen = judgments_panel->chosen();
@@ -950,6 +984,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
   float xscale = 1.f, yscale = 1.f;
   glfwGetWindowContentScale(app.window, &xscale, &yscale);
   load_ui_font(15.f * std::max(1.f, yscale));
+  AskingPanel::load_fonts(std::max(1.f, yscale));
   apply_ui_style(options.view.dark);
   ImGui_ImplGlfw_InitForOpenGL(app.window, true);  // chains to the callbacks above
   ImGui_ImplOpenGL3_Init("#version 330");
@@ -967,9 +1002,48 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       JudgmentsPanelLinks links;
       links.post = [&app](CommandBody& body) { return app.post_checked(body); };
       links.say = [&app](const std::string& text) { app.say(text); };
+      links.person_colour = [&app](const std::string& person, Rgb* colour) {
+        if (!app.asking) return false;
+        for (const Person& p : app.asking->desk().flow().people())
+          if (p.name == person) {
+            *colour = Rgb{((p.colour >> 16) & 255) / 255.f, ((p.colour >> 8) & 255) / 255.f, (p.colour & 255) / 255.f};
+            return true;
+          }
+        return false;
+      };
       app.judgments_panel = std::make_unique<JudgmentsPanel>(collection, *app.view, std::move(links));
     }
     app.interaction->teach = app.hooks.teach;
+    {
+      DeskLinks links;
+      links.post = [&app](CommandBody& body) {
+        int64_t top = 0;
+        for (const Judgment& j : app.view->judgments()) top = std::max(top, j.id);
+        if (const std::string refused = app.post_checked(body); !refused.empty()) return refused;
+        // Without a session the feed gives no id; the engine numbers it the same way (the next free one).
+        if (auto* a = std::get_if<cmd::AddJudgment>(&body); a && a->judgment.id < 0) a->judgment.id = top + 1;
+        std::vector<Judgment> all = app.view->judgments();  // the map's lines and counts follow at once
+        if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
+          all.push_back(a->judgment);
+        } else if (auto* r = std::get_if<cmd::RetractJudgment>(&body)) {
+          for (Judgment& j : all)
+            if (j.id == r->judgment_id) j.retracted = r->retracted;
+        }
+        app.view->set_judgments(std::move(all));
+        return std::string();
+      };
+      links.record_event = app.hooks.record_event;
+      links.snapshot = [&app] { return app.view->snapshot(); };
+      links.judgments = [&app] { return app.view->judgments(); };
+      links.selection = [&app] { return app.view->selection().items(); };
+      links.now = [] { return std::chrono::duration<double>(std::chrono::system_clock::now().time_since_epoch()).count(); };
+      app.asking = std::make_unique<AskingPanel>(collection, *app.view, std::move(links), app.index_of_id);
+      const uint32_t colours[] = {0x0072B2, 0xD55E00, 0x009E73, 0xCC79A7, 0xE69F00, 0x56B4E9};
+      for (const std::string& name : options.people)
+        if (const std::string e = app.asking->desk().add_person(name, colours[app.asking->desk().flow().people().size() % 6]);
+            !e.empty())
+          std::fprintf(stderr, "kith open: --people: %s\n", e.c_str());
+    }
     app.interaction->on_post = [&app](const CommandBody& body, uint64_t seq) {
       if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
         std::vector<Judgment> all = app.view->judgments();
@@ -1092,6 +1166,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
   }
 
   // ---- tear-down, in reverse ------------------------------------------------------
+  app.asking.reset();
   app.judgments_panel.reset();
   app.structure.reset();
   app.interaction.reset();

@@ -25,6 +25,7 @@ struct WindowOptions {
   bool vsync = true;             // (default: on; benchmarks turn it off)
   bool panels = true;            // (default: on; Tab toggles)
   bool auto_rotate = false;      // (default: off)
+  std::vector<std::string> people;  // people listed for asking at the start, in turn order (default: none)
   // What the controls show at first; the engine's own options decide (run_window(engine) copies them).
   double blend = 1.0, perplexity = 30.0, theta = 0.5;
   // Test and benchmark hooks (hidden options of kith open):

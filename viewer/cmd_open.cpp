@@ -3,6 +3,7 @@
 #include <filesystem>
 
 #include "viewer/app.h"
+#include "viewer/cli_text.h"
 #include "viewer/commands.h"
 #include "viewer/map_source.h"
 #include "viewer/offscreen_render.h"
@@ -26,6 +27,7 @@ const char* kHelp =
     "  --dark              the night ground instead of paper\n"
     "  --turn              start with the slow turn on (for a shared screen)\n"
     "  --no-panels         start with the panels hidden (Tab shows them)\n"
+    "  --people A,B,C      list these people for asking, in turn order (A in the window asks)\n"
     "  --read-only         with a session: look without writing (e.g. while another kith has it open)\n"
     "A session file (.kith) opens with its own settings, judgments, pins and last map, and\n"
     "everything done in the window is written to it at once. On a plain collection, the first\n"
@@ -106,6 +108,7 @@ int cmd_open(const Args& args) {
   wo.view.dark = flags.flag("--dark");
   wo.auto_rotate = flags.flag("--turn");
   wo.panels = !flags.flag("--no-panels");
+  if (auto v = flags.value("--people")) wo.people = split_commas(*v);
   // Hidden options for tests and benchmarks.
   double generate = 0, frames = 0;
   if (auto v = flags.value("--generate"); v && (!parse_number(*v, &generate) || generate < 2)) {
