@@ -159,12 +159,21 @@ TEST_CASE("engine: snapshots carry trustworthiness and neighbour recall, measure
   Collection c = clusters(40);
   Engine e(c, test_options());
   e.start();
-  auto s = wait_until(e, [](const Snapshot& s) { return s.health.trustworthiness >= 0.0; }, 30s);
+  // Generous limits: on a loaded machine the first figures may take a while; none is a timing.
+  auto s = wait_until(e, [](const Snapshot& s) { return s.health.trustworthiness >= 0.0; }, 120s);
   REQUIRE(s->health.trustworthiness >= 0.0);
-  // Four well-separated clusters: a map that has run a few seconds keeps most neighbours.
+  // Four well-separated clusters: once past early exaggeration, the map keeps most neighbours.
   // (0.9 and 0.3 are common-practice floors for such data, not figures from a source.)
-  s = wait_until(e, [](const Snapshot& s) { return s.settled || s.iteration > 1500; }, 60s);
-  s = wait_until(e, [&](const Snapshot& x) { return x.generation > s->generation + 1 || x.settled; }, 10s);
+  s = wait_until(e, [](const Snapshot& s) { return s.settled || s.iteration > 600; }, 120s);
+  const double first = s->health.trustworthiness;
+  const auto measured_after = std::chrono::steady_clock::now();
+  // A measurement made after that point: the figures are refreshed every few seconds.
+  s = wait_until(
+      e, [&](const Snapshot& x) {
+        return x.settled || (std::chrono::steady_clock::now() - measured_after > 5s &&
+                             x.health.trustworthiness != first);
+      },
+      60s);
   CHECK(s->health.trustworthiness > 0.9);
   CHECK(s->health.trustworthiness <= 1.0);
   CHECK(s->health.neighbour_recall > 0.3);
