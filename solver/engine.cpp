@@ -549,8 +549,11 @@ class EngineModel : public LiveModel {
     // Trustworthiness and neighbour recall now and then (every kHealthSeconds), on a fixed-seed
     // sample of at most kHealthSample items: about 40 ms of this thread at any N.
     const auto now = std::chrono::steady_clock::now();
-    if (prepared_ && has_features_ && n() >= 12 && now >= next_health_) {
+    // A map that settles gets its figures then too, so a sleeping engine never shows stale ones.
+    const bool settling = s.settled && health_at_ != schedule_it_;
+    if (prepared_ && has_features_ && n() >= 12 && (now >= next_health_ || settling)) {
       next_health_ = now + std::chrono::seconds(kHealthSeconds);
+      health_at_ = schedule_it_;
       HealthOptions ho;
       ho.sample_above = kHealthSample;
       ho.threads = 1;
@@ -594,6 +597,7 @@ class EngineModel : public LiveModel {
   static constexpr size_t kHealthSample = 1000;
   std::chrono::steady_clock::time_point next_health_ = std::chrono::steady_clock::now() + std::chrono::seconds(1);
   double trust_ = -1.0, recall_ = -1.0;
+  int64_t health_at_ = -1;  // schedule_it_ when they were measured
   bool has_features_ = false;
   bool ready_ = false;
   double perplexity_ = 30.0;

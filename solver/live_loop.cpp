@@ -53,7 +53,6 @@ void LiveLoop::log(Command c) {
 
 void LiveLoop::publish() {
   auto s = std::make_shared<Snapshot>();
-  model_->fill(*s);
   s->iteration = iteration_;
   s->last_command = last_command_;
   s->generation = ++generation_;
@@ -64,6 +63,7 @@ void LiveLoop::publish() {
   s->rebuilding = flight_ != nullptr;
   s->waiting_commands = pending_.size();
   s->last_rejected = last_rejected_;
+  model_->fill(*s);  // last: the model may look at the loop's fields (e.g. settled)
   mailbox_.publish(std::move(s));
   last_publish_ = Clock::now();
 }

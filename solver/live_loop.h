@@ -52,7 +52,7 @@ class LiveModel {
   virtual StepReport step() = 0;
   virtual bool may_settle() const = 0;  // false e.g. during early exaggeration
   // Fills positions, ids, pinned, costs and health; the loop fills the rest.
-  virtual void fill(Snapshot& snapshot) = 0;
+  virtual void fill(Snapshot& snapshot) = 0;  // called after the loop's own fields (iteration, settled...) are set
 };
 
 struct LiveLoopOptions {

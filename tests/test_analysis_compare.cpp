@@ -100,7 +100,7 @@ TEST_CASE("map alignment is the least-squares optimum (brute-force search over a
   CHECK(al.rms >= best - 1e-6);  // the grid comes within 1e-6 of the optimum
 }
 
-TEST_CASE("displacement ranks the moved items; judgment attribution follows the force along the move") {
+TEST_CASE("displacement ranks the moved items, judgment attribution follows the force along the move") {
   // A square plus a centre; in the current map only item 4 moved, by +1 in x. With two items moved
   // symmetrically (4 by +x, 5 by -x, both at the centre) the best alignment stays the identity.
   const Points r = rows({{-2, -2}, {2, -2}, {2, 2}, {-2, 2}, {0, 0}, {0, 0}});

@@ -87,7 +87,7 @@ QuestionFlowOptions no_reask() {
 
 }  // namespace
 
-TEST_CASE("asking keys: each screen has its own keys; ctrl chords stay the window's") {
+TEST_CASE("asking keys: each screen has its own keys, ctrl chords stay the window's") {
   using A = AskingAction;
   CHECK(asking_key_action(AskingMode::kOff, GLFW_KEY_A, 0, 8).action == A::kStartPair);
   CHECK(asking_key_action(AskingMode::kPair, GLFW_KEY_A, 0, 8).action == A::kStartGrid);
@@ -135,7 +135,7 @@ TEST_CASE("own judgment: three clicks in order, no item twice, back clears the l
   CHECK(d.slots() == std::array<int, 3>{7, 4, 9});
 }
 
-TEST_CASE("own judgment typed: ids with completion; bad words are named") {
+TEST_CASE("own judgment typed: ids with completion, bad words are named") {
   const std::vector<std::string> ids = {"oak-1", "oak-12", "Olive", "pine"};
   std::unordered_map<std::string, int> index;
   for (size_t i = 0; i < ids.size(); ++i) index[ids[i]] = int(i);
@@ -269,7 +269,7 @@ TEST_CASE("asking desk: a refused write leaves the question and the turn where t
   CHECK(desk.flow().people().size() == 2);
 }
 
-TEST_CASE("asking desk: own judgments by clicks carry the person whose turn it is; W moves the turn") {
+TEST_CASE("asking desk: own judgments by clicks carry the person whose turn it is, W moves the turn") {
   const Collection c = small_collection();
   FakeWindow w;
   random_map(w.snapshot.get(), c.size(), 7);
@@ -306,7 +306,7 @@ TEST_CASE("asking desk: own judgments by clicks carry the person whose turn it i
   CHECK(desk.mode() == AskingMode::kOff);
 }
 
-TEST_CASE("asking desk: no question until the map has enough items; about the selection keeps the anchor in it") {
+TEST_CASE("asking desk: no question until the map has enough items, about the selection keeps the anchor in it") {
   const Collection c = small_collection();
   FakeWindow w;
   AskingDesk desk(c, w.links(), no_reask());

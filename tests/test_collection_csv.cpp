@@ -99,7 +99,7 @@ TEST_CASE("CRLF line ends, a byte order mark and a last line without a line end"
   kith::test::assert_near(c.features, matrix({{1, 2}, {3, 4}, {5, 6}}), 0.0);
 }
 
-TEST_CASE("TSV by extension and by sniffing; the first unique text column is the id") {
+TEST_CASE("TSV by extension and by sniffing, the first unique text column is the id") {
   for (const std::string& name : {std::string("tabs.tsv"), std::string("tabs.txt")}) {
     CAPTURE(name);
     const Collection c = kith::load_collection_from_memory(kith::read_file(kGood + "tabs.tsv"), name);

@@ -110,7 +110,7 @@ TEST_CASE("block weights: planted features where only one block matters") {
   CHECK(r2.weights[2] > 1.0);
 }
 
-TEST_CASE("block weights: no judgments keep the features; the penalty pulls toward them") {
+TEST_CASE("block weights: no judgments keep the features, the penalty pulls toward them") {
   const kith::Points x = random_features(50, 12, 21);
   const auto none = kith::learn_block_weights(x, kBlocks, {});
   for (double w : none.weights) CHECK(w == 1.0);
@@ -125,7 +125,7 @@ TEST_CASE("block weights: no judgments keep the features; the penalty pulls towa
   CHECK(b.weights[0] < 1.5);
 }
 
-TEST_CASE("block weights: reweighted features give the weighted squared distance; bad input") {
+TEST_CASE("block weights: reweighted features give the weighted squared distance, bad input") {
   const kith::Points x = random_features(10, 14, 31);  // columns 12, 13 belong to no block
   const std::vector<double> w = {0.5, 2.0, 0.5};
   const kith::Points xw = kith::apply_block_weights(x, kBlocks, w);

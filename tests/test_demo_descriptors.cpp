@@ -113,7 +113,7 @@ void write_png16(const std::string& path, int w, int h, int channels, const std:
 
 }  // namespace
 
-TEST_CASE("demo descriptors: identical pictures give identical features; formats agree") {
+TEST_CASE("demo descriptors: identical pictures give identical features, formats agree") {
   const std::string dir = kith::test::temp_dir("descriptors-same");
   const Rgb8 im = stripes(30, 9, 15, -20);
   REQUIRE(stbi_write_png((dir + "/a.png").c_str(), im.w, im.h, 3, im.px.data(), im.w * 3));
@@ -211,7 +211,7 @@ TEST_CASE("demo descriptors: rotating a pattern moves the orientation histogram"
   for (double v : op) CHECK(std::abs(v - 1.0 / 8) < 1e-9);
 }
 
-TEST_CASE("demo descriptors: broken files are reported and skipped; blocks get equal weight") {
+TEST_CASE("demo descriptors: broken files are reported and skipped, blocks get equal weight") {
   const std::string dir = kith::test::temp_dir("descriptors-broken");
   std::ofstream(dir + "/broken.png") << "this is not a picture";
   std::ofstream(dir + "/empty.jpg");

@@ -45,7 +45,7 @@ TEST_CASE("demo library: deterministic, written once, regenerated when incomplet
   CHECK(slurp(o.folder + "/pictures/" + a.swatches[7].id + ".png") == pic);
 }
 
-TEST_CASE("demo library: every line and pattern appears; colours are in gamut; descriptors see the pattern") {
+TEST_CASE("demo library: every line and pattern appears, colours are in gamut, descriptors see the pattern") {
   const auto swatches = kith::make_swatches();
   CHECK(swatches.size() == 600);
   std::map<std::string, int> per_line, per_pattern;

@@ -35,7 +35,7 @@ TEST_CASE("demo panel: the hidden distance is CIEDE2000 plus pattern terms") {
   CHECK_THROWS(kith::SimulatedPanel(items, bad));
 }
 
-TEST_CASE("demo panel: members' answers follow their noise; the contrarian disagrees systematically") {
+TEST_CASE("demo panel: members' answers follow their noise, the contrarian disagrees systematically") {
   auto panel = library_panel();
   const auto truth = panel.truth_triplets(3000, 0, 0.0, 5);
   REQUIRE(truth.size() == 3000);

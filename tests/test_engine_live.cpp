@@ -93,7 +93,7 @@ TEST_CASE("engine: bad options and bad commands are refused with a message") {
   CHECK(e.latest()->positions.allFinite());
 }
 
-TEST_CASE("engine: a drag target moves the item there and holds it; a pin holds exactly") {
+TEST_CASE("engine: a drag target moves the item there and holds it, a pin holds exactly") {
   Collection c = clusters(60);
   Engine e(c, test_options());
   e.start();
@@ -128,7 +128,7 @@ TEST_CASE("engine: a drag target moves the item there and holds it; a pin holds 
   CHECK(back < 0.5 * away);
 }
 
-TEST_CASE("engine: a judgment bends the map; retracted, it stops acting") {
+TEST_CASE("engine: a judgment bends the map, retracted, it stops acting") {
   Collection c = clusters(50);
   EngineOptions o = test_options();
   o.blend = 30;  // strong enough for one judgment to pull an item across (blend is normalized per touched item)
@@ -180,7 +180,7 @@ TEST_CASE("engine: snapshots carry trustworthiness and neighbour recall, measure
   CHECK(s->health.neighbour_recall <= 1.0);
 }
 
-TEST_CASE("engine: a converged engine settles and idles under 5% of a core; a command wakes it") {
+TEST_CASE("engine: a converged engine settles and idles under 5% of a core, a command wakes it") {
   Collection c = clusters(40);
   EngineOptions o = test_options();
   o.settle_cap = 1500;

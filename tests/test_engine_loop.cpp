@@ -363,7 +363,7 @@ TEST_CASE("engine loop: a heavy command runs on the helper thread while the map 
   CHECK(static_cast<StandInModel&>(loop.model()).perplexity == 50);
 }
 
-TEST_CASE("engine loop: stress: posting threads and reading threads; every command once; replay identical") {
+TEST_CASE("engine loop: stress: posting threads and reading threads, every command once, replay identical") {
   LiveLoopOptions o = quick_options();
   o.settle_after = 40;
   auto live_model = std::make_unique<StandInModel>(60);

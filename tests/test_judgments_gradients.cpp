@@ -82,7 +82,7 @@ TEST_CASE("judgment term: cost is -w log p with the Student-t kernel written out
   }
 }
 
-TEST_CASE("judgment term: retracted judgments are ignored; the threaded sum equals the serial one") {
+TEST_CASE("judgment term: retracted judgments are ignored, the threaded sum equals the serial one") {
   const int n = 400;
   auto js = random_judgments(n, 20000, 3);
   for (size_t t = 0; t < js.size(); t += 7) js[t].retracted = true;
@@ -180,7 +180,7 @@ TEST_CASE("spring term: gradient matches finite differences") {
   CHECK_FALSE(springs.has_target(4));
 }
 
-TEST_CASE("blended objective: gradient matches finite differences; pins zero their rows; blend changes live") {
+TEST_CASE("blended objective: gradient matches finite differences, pins zero their rows, blend changes live") {
   const int n = 15;
   kith::BlendedObjective obj(n, 3);
   obj.set_judgments(random_judgments(n, 30, 21));

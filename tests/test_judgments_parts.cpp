@@ -157,7 +157,7 @@ TEST_CASE("judgments CSV: header in any order, positional rows, times and kinds"
   CHECK(plain.judgments[1].kind == kith::JudgmentKind::kImport);
 }
 
-TEST_CASE("judgments CSV: every bad row is reported with its line and cause; a bad file imports nothing") {
+TEST_CASE("judgments CSV: every bad row is reported with its line and cause, a bad file imports nothing") {
   const auto ids = item_ids(4);
   const std::string text =
       "anchor,nearer,farther,time,kind\n"
@@ -252,7 +252,7 @@ void check_question(const kith::Question& q, int n, int size) {
 }
 }  // namespace
 
-TEST_CASE("pickers: random and most informative give valid pair and grid questions; selection limits anchors") {
+TEST_CASE("pickers: random and most informative give valid pair and grid questions, selection limits anchors") {
   const Points y = cloud(200, 3);
   std::vector<Judgment> js;
   kith::PickerInput in{&y, nullptr, &js};

@@ -259,7 +259,7 @@ struct PanelRig {
 };
 }  // namespace
 
-TEST_CASE("judgments panel: retract and restore go through the post path; a refusal changes nothing") {
+TEST_CASE("judgments panel: retract and restore go through the post path, a refusal changes nothing") {
   PanelRig r;
   REQUIRE(r.panel->rows().size() == 6);
   // Refused (e.g. the session file could not be written): the list stays as it was.
@@ -303,7 +303,7 @@ TEST_CASE("judgments panel: retract and restore go through the post path; a refu
   CHECK(r.panel->rows()[0] == 1);
 }
 
-TEST_CASE("judgments panel: CSV import is all or none, bad rows listed; export reads back the same") {
+TEST_CASE("judgments panel: CSV import is all or none, bad rows listed, export reads back the same") {
   PanelRig r;
   const std::string dir = kith::test::temp_dir("judgments-panel-files");
   const std::string bad = dir + "/bad.csv";

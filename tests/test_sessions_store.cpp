@@ -373,7 +373,7 @@ TEST_CASE("sessions: a version 1 file is migrated after a backup, and keeps ever
   sqlite3_close(db);
 }
 
-TEST_CASE("sessions: events and renamed people are kept; a copy saved as is complete and never overwrites") {
+TEST_CASE("sessions: events and renamed people are kept, a copy saved as is complete and never overwrites") {
   const std::string dir = kith::test::temp_dir("kith-events");
   const std::string path = make_session(dir);
   auto store = SessionStore::open(path);

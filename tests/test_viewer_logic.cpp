@@ -36,7 +36,7 @@ Points to_points(const std::vector<glm::vec3>& p) {
   return y;
 }
 
-TEST_CASE("viewer camera: the target projects to the centre; the facing plane inverts the projection") {
+TEST_CASE("viewer camera: the target projects to the centre, the facing plane inverts the projection") {
   Camera cam;
   cam.set_viewport(800, 600);
   CameraPose pose;
@@ -61,7 +61,7 @@ TEST_CASE("viewer camera: the target projects to the centre; the facing plane in
   CHECK_FALSE(cam.project(cam.eye() - cam.forward() * 2.f).visible);
 }
 
-TEST_CASE("viewer camera: up on screen is +y; orbit keeps the target; zoom and pan move as expected") {
+TEST_CASE("viewer camera: up on screen is +y, orbit keeps the target, zoom and pan move as expected") {
   Camera cam;
   cam.set_viewport(640, 480);
   cam.set_pose(CameraPose{});
@@ -83,7 +83,7 @@ TEST_CASE("viewer camera: up on screen is +y; orbit keeps the target; zoom and p
   CHECK(moved.screen.y == doctest::Approx(240 - 20).epsilon(1e-3));
 }
 
-TEST_CASE("viewer camera: fit puts every point on screen; transitions converge smoothly") {
+TEST_CASE("viewer camera: fit puts every point on screen, transitions converge smoothly") {
   const auto pts = random_points(500, 11, 7.f);
   glm::vec3 lo(1e9f), hi(-1e9f);
   for (const auto& p : pts) lo = glm::min(lo, p), hi = glm::max(hi, p);
@@ -165,7 +165,7 @@ TEST_CASE("viewer picking: the nearest item on screen, checked against brute for
   }
 }
 
-TEST_CASE("viewer picking: box selection matches brute force; search by id and by tag") {
+TEST_CASE("viewer picking: box selection matches brute force, search by id and by tag") {
   const auto pts = random_points(1500, 8);
   Camera cam;
   cam.set_viewport(800, 800);
@@ -231,7 +231,7 @@ TEST_CASE("viewer interaction: click selects, shift-click adds, click on empty s
   CHECK(r.view.selection().empty());
 }
 
-TEST_CASE("viewer interaction: shift-drag on empty space selects by box; plain drag orbits") {
+TEST_CASE("viewer interaction: shift-drag on empty space selects by box, plain drag orbits") {
   Rig r;
   const float yaw = r.view.camera().pose().yaw;
   r.interaction.pointer_move(glm::vec2(1, 1));
@@ -247,7 +247,7 @@ TEST_CASE("viewer interaction: shift-drag on empty space selects by box; plain d
   CHECK(r.view.camera().pose().yaw != doctest::Approx(yaw));
 }
 
-TEST_CASE("viewer interaction: dragging posts drag targets in the facing plane; pin lands at the drop") {
+TEST_CASE("viewer interaction: dragging posts drag targets in the facing plane, pin lands at the drop") {
   Rig r;
   const int item = r.view.item_at(r.screen_of(42));
   REQUIRE(item >= 0);
@@ -288,7 +288,7 @@ TEST_CASE("viewer interaction: dragging posts drag targets in the facing plane; 
   CHECK_FALSE(r.view.pinned(item));
 }
 
-TEST_CASE("viewer interaction: release lets go; teach posts the hook's judgments") {
+TEST_CASE("viewer interaction: release lets go, teach posts the hook's judgments") {
   Rig r;
   const int item = r.view.item_at(r.screen_of(7));
   REQUIRE(item >= 0);
@@ -324,7 +324,7 @@ TEST_CASE("viewer interaction: release lets go; teach posts the hook's judgments
   CHECK_FALSE(r.view.pinned(item));
 }
 
-TEST_CASE("viewer scene: legend counts tags; measures ramp; cards respect the limit") {
+TEST_CASE("viewer scene: legend counts tags, measures ramp, cards respect the limit") {
   Rig r;
   REQUIRE(r.view.legend().size() == 4);
   size_t total = 0;
@@ -402,7 +402,7 @@ TEST_CASE("viewer input script: parses events and reports the line of a mistake"
 
 namespace kith {
 namespace {
-TEST_CASE("viewer camera: a growing map stays framed until someone pans or zooms; F resumes following") {
+TEST_CASE("viewer camera: a growing map stays framed until someone pans or zooms, F resumes following") {
   Rig r;
   auto grown = [&](float scale) {
     auto s = std::make_shared<Snapshot>(*r.feed.latest());
@@ -531,7 +531,7 @@ TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow
 
 namespace kith {
 namespace {
-TEST_CASE("viewer scene: below the cap, slow frames still thin the moving view; fast frames draw all") {
+TEST_CASE("viewer scene: below the cap, slow frames still thin the moving view, fast frames draw all") {
   const Collection c = synthetic_collection(12000, 3);
   MockRenderer renderer;
   StillFeed feed(c.ids, rough_positions(c));

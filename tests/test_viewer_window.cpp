@@ -234,7 +234,7 @@ TEST_CASE("viewer window: a session opens with its pins, and a pin made in the w
 }
 
 
-TEST_CASE("viewer window: a pin on a plain collection starts a session beside it; read-only writes nothing") {
+TEST_CASE("viewer window: a pin on a plain collection starts a session beside it, read-only writes nothing") {
   if (!have_xvfb()) {
     MESSAGE("xvfb-run not installed: window test skipped");
     return;
