@@ -27,7 +27,8 @@ const char* kHelp =
     "  --dark              the night ground instead of paper\n"
     "  --turn              start with the slow turn on (for a shared screen)\n"
     "  --no-panels         start with the panels hidden (Tab shows them)\n"
-    "  --people A,B,C      list these people for asking, in turn order (A in the window asks)\n"
+    "  --people A,B,C      list these people for asking, in turn order (A in the window asks;\n"
+    "                      default for a session: the people who answered in it before)\n"
     "  --read-only         with a session: look without writing (e.g. while another kith has it open)\n"
     "A session file (.kith) opens with its own settings, judgments, pins and last map, and\n"
     "everything done in the window is written to it at once. On a plain collection, the first\n"
@@ -86,6 +87,8 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
     std::fprintf(stderr, "kith open: %s: the picture of item %s was not found (%s)\n", path.c_str(),
                  link->collection().ids[item].c_str(), link->collection().pictures[item].c_str());
   wo.title = std::filesystem::path(path).filename().string();
+  if (wo.people.empty())  // the people who answered before, in the order they first did
+    for (const SessionPerson& p : link->store()->people()) wo.people.push_back(p.name);
   EngineOptions eo = link->engine_options();  // the session's own settings
   eo.start_paused = start_paused;
   return run_linked(*link, wo, eo);
