@@ -1,7 +1,10 @@
-// Helpers shared by the session tests (tests/test_sessions_*.cpp): an invented collection and
-// byte-level file comparisons.
+// Helpers shared by the session tests (tests/test_sessions_*.cpp and others): an invented
+// collection, byte-level file comparisons, and running the built kith binary.
 #pragma once
+#include <sys/wait.h>
+
 #include <cstdint>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <iterator>
@@ -54,6 +57,24 @@ inline std::vector<std::string> folder_listing(const std::string& dir) {
   for (const auto& e : std::filesystem::directory_iterator(dir)) names.push_back(e.path().filename().string());
   std::sort(names.begin(), names.end());
   return names;
+}
+
+// Runs the built kith (KITH_BINARY) with ARGUMENTS through the shell; stdout and stderr together.
+struct KithRun {
+  int code = -1;       // exit code, -1 if it did not exit normally
+  std::string output;
+};
+inline KithRun run_kith(const std::string& arguments) {
+  const std::string command = std::string(KITH_BINARY) + " " + arguments + " 2>&1";
+  KithRun r;
+  FILE* pipe = popen(command.c_str(), "r");
+  if (!pipe) return r;
+  char buf[4096];
+  size_t got;
+  while ((got = fread(buf, 1, sizeof buf, pipe)) > 0) r.output.append(buf, got);
+  const int status = pclose(pipe);
+  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+  return r;
 }
 
 }  // namespace kith::test

@@ -18,23 +18,8 @@ namespace fs = std::filesystem;
 
 namespace {
 
-struct Run {
-  int code = -1;
-  std::string output;  // stdout and stderr together
-};
-
-Run kith_run(const std::string& arguments) {
-  const std::string command = std::string(KITH_BINARY) + " " + arguments + " 2>&1";
-  Run r;
-  FILE* pipe = popen(command.c_str(), "r");
-  REQUIRE(pipe != nullptr);
-  char buf[4096];
-  size_t got;
-  while ((got = fread(buf, 1, sizeof buf, pipe)) > 0) r.output.append(buf, got);
-  const int status = pclose(pipe);
-  r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-  return r;
-}
+using Run = kith::test::KithRun;
+Run kith_run(const std::string& arguments) { return kith::test::run_kith(arguments); }
 
 // An invented collection file: fabric swatches of a sample box.
 std::string write_items(const std::string& dir, size_t n) {
