@@ -1111,6 +1111,9 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       ImGui::Render();
 
       glfwGetFramebufferSize(app.window, &fbw, &fbh);
+      // Centre the map in the part the right-hand panels (300 px and margins) leave free.
+      if (io.DisplaySize.x > 0.f)
+        app.view->set_centre_offset(app.show_panels ? -320.f / io.DisplaySize.x : 0.f);
       app.view->frame(dt, fbw, fbh);
       ImGui_ImplOpenGL3_RenderDrawData(ImGui::GetDrawData());
 

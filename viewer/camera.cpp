@@ -65,7 +65,7 @@ void Camera::fit(const glm::vec3& lo, const glm::vec3& hi, bool smooth) {
   g.target = (lo + hi) * 0.5f;
   const float radius = std::max(glm::length(hi - lo) * 0.5f, 1e-7f);
   const float half_fov_y = glm::radians(kFovYDegrees) / 2.f;
-  const float half_fov_x = std::atan(std::tan(half_fov_y) * float(width_) / float(height_));
+  const float half_fov_x = std::atan(std::tan(half_fov_y) * float(width_) / float(height_) * (1.f - std::abs(centre_offset_)));
   const float half = std::min(half_fov_x, half_fov_y);
   g.distance = radius / std::sin(half) * 1.02f;
   if (smooth)
@@ -87,7 +87,8 @@ void Camera::fit_points(const std::vector<glm::vec3>& points, bool smooth, float
   const glm::vec3 right = glm::normalize(glm::cross(f, glm::vec3(0, 1, 0)));
   const glm::vec3 up = glm::cross(right, f);
   const float tan_y = std::tan(glm::radians(kFovYDegrees) / 2.f) * (1.f - margin);
-  const float tan_x = std::tan(glm::radians(kFovYDegrees) / 2.f) * float(width_) / float(height_) * (1.f - margin);
+  const float tan_x = std::tan(glm::radians(kFovYDegrees) / 2.f) * float(width_) / float(height_) * (1.f - margin) *
+                      (1.f - std::abs(centre_offset_));
   float d = 1e-3f;
   for (const auto& p : points) {
     const glm::vec3 o = p - g.target;
@@ -124,8 +125,12 @@ glm::vec3 Camera::forward() const { return glm::normalize(pose_.target - eye());
 glm::mat4 Camera::view() const { return glm::lookAt(eye(), pose_.target, glm::vec3(0, 1, 0)); }
 
 glm::mat4 Camera::projection() const {
-  return glm::perspective(glm::radians(kFovYDegrees), float(width_) / float(height_), near_plane(), far_plane());
+  // Clip-space x += offset * w, i.e. normalized device x += offset.
+  const glm::mat4 shift = glm::translate(glm::mat4(1.f), glm::vec3(centre_offset_, 0.f, 0.f));
+  return shift * glm::perspective(glm::radians(kFovYDegrees), float(width_) / float(height_), near_plane(), far_plane());
 }
+
+void Camera::set_centre_offset(float ndc_x) { centre_offset_ = std::clamp(ndc_x, -0.6f, 0.6f); }
 
 Projected Camera::project(const glm::vec3& world) const {
   Projected out;

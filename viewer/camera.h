@@ -35,6 +35,11 @@ class Camera {
   static constexpr float kFovYDegrees = 40.f;
 
   void set_viewport(int width, int height);
+  // Moves the picture's centre sideways by `ndc_x` (in normalized device units, -0.6..0.6): the
+  // window uses it to centre the map in the part the side panels leave free. Fitting then uses
+  // the narrower free width. Every projection (drawing, picking, dragging) goes through it.
+  void set_centre_offset(float ndc_x);
+  float centre_offset() const { return centre_offset_; }
   int width() const { return width_; }
   int height() const { return height_; }
 
@@ -82,6 +87,7 @@ class Camera {
   CameraPose pose_, goal_;
   int width_ = 1280, height_ = 800;
   uint64_t framing_changes_ = 0;
+  float centre_offset_ = 0.f;
 };
 
 }  // namespace kith

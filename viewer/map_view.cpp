@@ -164,6 +164,13 @@ void MapView::fit_all(bool smooth, bool by_person) {
   camera_.fit_points(positions_, smooth);
 }
 
+void MapView::set_centre_offset(float ndc_x) {
+  const float before = camera_.centre_offset();
+  camera_.set_centre_offset(ndc_x);
+  if (camera_.centre_offset() != before && following_ && camera_.framing_changes() == framing_at_fit_ && have_bounds_)
+    fit_all(true, false);
+}
+
 void MapView::focus_selection() {
   if (selection_.empty()) return fit_all(true);
   following_ = false;

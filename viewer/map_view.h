@@ -86,6 +86,8 @@ class MapView {
   const Camera& camera() const { return camera_; }
   // Frames the whole map; `by_person` (F, the menu) also resumes following a growing map.
   void fit_all(bool smooth = true, bool by_person = true);
+  // Camera::set_centre_offset; a view that follows the map reframes it when the offset changes.
+  void set_centre_offset(float ndc_x);
   void focus_selection();
   bool auto_rotate = false;
   float rotate_speed = 0.12f;  // radians per second
