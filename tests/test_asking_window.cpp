@@ -16,18 +16,14 @@
 
 #include "solver/session_store.h"
 #include "tests/approx.h"
+#include "tests/window_support.h"
 #include "tests/sessions_support.h"
 
 namespace {
 
-constexpr const char* kXvfb = "xvfb-run -a -s '-screen 0 1280x800x24' ";
-
-bool have_xvfb() { return std::system("command -v xvfb-run >/dev/null 2>&1") == 0; }
-
-int run(const std::string& command) {
-  const int status = std::system(command.c_str());
-  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-}
+using kith::test::have_xvfb;
+using kith::test::kXvfb;
+int run(const std::string& command) { return kith::test::run_command(command); }
 
 nlohmann::json load_json(const std::string& path) {
   std::ifstream in(path);

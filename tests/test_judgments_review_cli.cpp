@@ -15,6 +15,7 @@
 #include "solver/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
+#include "tests/window_support.h"
 #include "viewer/synthetic_collection.h"
 
 namespace {
@@ -80,11 +81,8 @@ TEST_CASE("judgments import: kith judge --import reports every bad row and leave
 }
 
 namespace {
-bool have_xvfb() { return std::system("command -v xvfb-run >/dev/null 2>&1") == 0; }
-int run(const std::string& command) {
-  const int status = std::system(command.c_str());
-  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-}
+using kith::test::have_xvfb;
+int run(const std::string& command) { return kith::test::run_command(command); }
 }  // namespace
 
 TEST_CASE("judgments window: a session's judgments are listed and a scripted retract is written to it") {
@@ -113,7 +111,7 @@ TEST_CASE("judgments window: a session's judgments are listed and a scripted ret
   std::ofstream(dir + "/script.txt") << "10 key L\n12 key ctrl+DOWN\n14 key ctrl+DOWN\n16 key DELETE\n"
                                         "18 wait-settle 3\n30 dump "
                                      << dir << "/state.json\n30 shot " << dir << "/shot.png\n31 quit\n";
-  const std::string cmd = "xvfb-run -a -s '-screen 0 1280x800x24' " + std::string(KITH_BINARY) + " open " + path +
+  const std::string cmd = std::string(kith::test::kXvfb) + std::string(KITH_BINARY) + " open " + path +
                           " --frames 200 --script " + dir + "/script.txt > " + dir + "/log.txt 2>&1";
   REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
   std::ifstream in(dir + "/state.json");

@@ -14,17 +14,13 @@
 #include <string>
 
 #include "tests/approx.h"
+#include "tests/window_support.h"
 
 namespace {
 
-constexpr const char* kXvfb = "xvfb-run -a -s '-screen 0 1280x800x24' ";
-
-bool have_xvfb() { return std::system("command -v xvfb-run >/dev/null 2>&1") == 0; }
-
-int run(const std::string& command) {
-  const int status = std::system(command.c_str());
-  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
-}
+using kith::test::have_xvfb;
+using kith::test::kXvfb;
+int run(const std::string& command) { return kith::test::run_command(command); }
 
 struct Image {
   int w = 0, h = 0;
