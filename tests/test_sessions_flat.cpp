@@ -4,6 +4,7 @@
 #include <sys/wait.h>
 
 #include <cstdio>
+#include <map>
 #include <random>
 #include <sstream>
 
@@ -213,6 +214,18 @@ TEST_CASE("sessions: the window's Session menu saves as and exports, and never w
   CHECK(std::get<kith::cmd::AddJudgment>(body).judgment.id > 0);
   CHECK(link.path() == dir + "/swatches.kith");
   CHECK(link.record_event("cant_tell", R"({"anchor":"sw-1"})") == "");
+  // People events keep the session's people table in step with the window's list.
+  CHECK(link.record_event("person", R"({"action":"add","name":"Tomasz","colour":"#D55E00"})") == "");
+  CHECK(link.record_event("person", R"({"action":"colour","name":"Ines","colour":"#0072B2"})") == "");
+  CHECK(link.record_event("person", R"({"action":"rename","from":"Tomasz","name":"Tom"})") == "");
+  CHECK(link.record_event("person", R"({"action":"rename","from":"Tom","name":"Ines"})") != "");  // taken
+  {
+    std::map<std::string, std::string> people;
+    for (const auto& p : link.store()->people()) people[p.name] = p.colour;
+    CHECK(people.count("Tomasz") == 0);
+    CHECK(people["Tom"] == "#D55E00");
+    CHECK(people["Ines"] == "#0072B2");
+  }
 
   using D = kith::SessionMenu::Dialog;
   const std::string copy = dir + "/copy.kith";
@@ -223,10 +236,10 @@ TEST_CASE("sessions: the window's Session menu saves as and exports, and never w
   {
     auto original = kith::SessionStore::open(dir + "/swatches.kith");  // closed by save as, complete
     CHECK(original->judgment_count() == 1);
-    CHECK(original->events().size() == 1);
+    CHECK(original->events().size() == 4);  // the refused rename wrote no event
   }
   CHECK(link.store()->judgment_count() == 2);
-  CHECK(link.store()->events().size() == 1);
+  CHECK(link.store()->events().size() == 4);
   CHECK(menu.run(D::kSaveAs, copy) != "");  // exists: refused
 
   const std::string before = kith::test::file_bytes(dir + "/swatches.kith");

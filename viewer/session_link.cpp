@@ -7,6 +7,7 @@
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
+#include <nlohmann/json.hpp>
 
 namespace kith {
 
@@ -184,11 +185,26 @@ std::string SessionLink::record(CommandBody& body) {
   return "";
 }
 
+void SessionLink::apply_person_event(const std::string& detail) {
+  const nlohmann::json d = nlohmann::json::parse(detail, nullptr, false);
+  if (!d.is_object() || !d.contains("name") || !d["name"].is_string()) return;
+  const std::string name = d["name"];
+  const std::string colour = d.contains("colour") && d["colour"].is_string() ? d["colour"].get<std::string>() : "";
+  const std::string action = d.contains("action") && d["action"].is_string() ? d["action"].get<std::string>() : "add";
+  if (action == "rename" && d.contains("from") && d["from"].is_string()) {
+    for (const SessionPerson& p : store_->people())
+      if (p.name == d["from"].get<std::string>()) return store_->rename_person(p.id, name);
+  }
+  const int64_t id = store_->add_person(name, colour);  // an existing name: its id
+  if (!colour.empty()) store_->set_person_colour(id, colour);
+}
+
 std::string SessionLink::record_event(const std::string& kind, const std::string& detail) {
   if (read_only_) return last_error_ = "read-only session: this cannot be saved (open it without --read-only)";
   if (std::string problem = ensure_store("a person or an answer"); !problem.empty()) return last_error_ = problem;
   if (!store_) return "";
   try {
+    if (kind == "person") apply_person_event(detail);  // the people table follows the window's list
     store_->add_event(kind, detail);
     ++writes_;
     last_error_.clear();

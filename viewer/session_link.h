@@ -64,6 +64,9 @@ class SessionLink {
  private:
   std::string record(CommandBody& body);
   std::string ensure_store(const char* why);
+  // A "person" event ({"action": "add"|"rename"|"colour", "name", "colour", "from"}) also updates
+  // the session's people table; throws SessionError (e.g. a rename to a name already taken).
+  void apply_person_event(const std::string& detail);
   std::unique_ptr<SessionStore> store_;
   Collection collection_;
   std::vector<Judgment> judgments_;
