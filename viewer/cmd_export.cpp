@@ -157,14 +157,7 @@ int cmd_export(const Args& args) {
                      path.c_str(), path.c_str());
         return kExitBadInput;
       }
-      const SessionSettings settings = store->settings();
-      FlatMapOptions fo;
-      fo.perplexity = std::min(settings.perplexity, std::max(1.0, double(c.size() - 1) / 3.0));
-      fo.blend = settings.blend;
-      fo.theta = settings.theta;
-      fo.dof = settings.dof;
-      fo.learning_rate = settings.learning_rate;
-      fo.seed = settings.seed;
+      const FlatMapOptions fo = flat_options(store->settings(), c.size());
       std::vector<int32_t> pinned;
       for (const auto& pin : store->pins()) pinned.push_back(pin.item);
       const std::vector<Judgment> judgments = store->judgments();

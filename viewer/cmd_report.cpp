@@ -18,6 +18,7 @@
 #include "solver/neighbour_term.h"
 #include "solver/session_store.h"
 #include "viewer/commands.h"
+#include "viewer/map_source.h"  // parse_number
 #include "viewer/report_page.h"
 
 namespace kith {
@@ -55,15 +56,6 @@ int usage_error(const std::string& message) {
   return kExitUsage;
 }
 
-bool parse_number(const std::string& text, double* out) {
-  try {
-    size_t used = 0;
-    *out = std::stod(text, &used);
-    return used == text.size() && std::isfinite(*out);
-  } catch (const std::exception&) {
-    return false;
-  }
-}
 
 std::string fixed(double v, int digits) {
   char buf[64];

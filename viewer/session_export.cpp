@@ -2,6 +2,7 @@
 
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <cmath>
 #include <cstdio>
@@ -152,6 +153,17 @@ std::string export_judgments(std::vector<Judgment> judgments, const Collection& 
   w.include_retracted = include_retracted;
   w.include_people = people != session_cli::PeopleInExport::kLeaveOut;
   return write_judgments_csv(out, judgments, collection.ids, w);
+}
+
+FlatMapOptions flat_options(const SessionSettings& settings, size_t items) {
+  FlatMapOptions fo;
+  fo.perplexity = std::min(settings.perplexity, std::max(1.0, double(items > 0 ? items - 1 : 0) / 3.0));
+  fo.blend = settings.blend;
+  fo.theta = settings.theta;
+  fo.dof = settings.dof;
+  fo.learning_rate = settings.learning_rate;
+  fo.seed = settings.seed;
+  return fo;
 }
 
 std::string export_flat(const Collection& collection, const Points& map, const std::vector<Judgment>& judgments,

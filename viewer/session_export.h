@@ -12,6 +12,7 @@
 #include "solver/flat_map.h"
 #include "solver/judgment.h"
 #include "solver/points.h"
+#include "solver/session_store.h"
 #include "viewer/session_cli.h"
 
 namespace kith {
@@ -28,6 +29,10 @@ std::string export_layout(const Collection& collection, const Points& map, uint6
 // Writes judgments as CSV by item id; people as names, codes (P1, P2, ...) or left out.
 std::string export_judgments(std::vector<Judgment> judgments, const Collection& collection, const std::string& out,
                              session_cli::PeopleInExport people, bool include_retracted, const std::string& session);
+
+// The flat layout's options from a session's settings, for `items` items (the perplexity is capped
+// at (items - 1) / 3 so that small collections still have enough neighbours).
+FlatMapOptions flat_options(const SessionSettings& settings, size_t items);
 
 // Flattens `map` to 2-D with solver/flat_map.h and writes it like export_layout (CSV or JSON).
 // `agreement` (may be null) receives the share of non-retracted judgments the flat map satisfies.

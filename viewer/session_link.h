@@ -35,6 +35,7 @@ class SessionLink {
 
   const Collection& collection() const { return collection_; }
   EngineOptions engine_options() const;
+  const SessionSettings& settings() const { return settings_; }  // as stored (or to be stored)
   const std::vector<Judgment>& judgments() const { return judgments_; }
   Points start() const;                  // the last checkpoint, or empty
   void post_pins(MapFeed& feed) const;   // the stored pins, as commands

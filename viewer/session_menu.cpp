@@ -162,13 +162,7 @@ std::string SessionMenu::run(Dialog d, const std::string& out, const std::string
     }
     case Dialog::kFlat: {
       if (!snap) return "no map yet";
-      const EngineOptions e = link_.engine_options();
-      FlatMapOptions fo;
-      fo.perplexity = std::min(e.perplexity, std::max(1.0, double(c.size() - 1) / 3.0));
-      fo.blend = e.blend;
-      fo.theta = e.theta;
-      fo.dof = e.dof;
-      fo.seed = e.seed;
+      const FlatMapOptions fo = flat_options(link_.settings(), c.size());
       std::vector<int32_t> pinned;
       for (size_t i = 0; i < snap->pinned.size(); ++i)
         if (snap->pinned[i]) pinned.push_back(int32_t(i));
