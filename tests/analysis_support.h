@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-#include "solver/neighbours.h"
+#include "solver/features/neighbours.h"
 
 namespace kith::test {
 

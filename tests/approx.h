@@ -5,7 +5,7 @@
 
 #include <Eigen/Core>
 
-#include "solver/objective_term.h"
+#include "solver/objective/objective_term.h"
 #include <cmath>
 #include <cstdio>
 #include <sstream>

@@ -9,11 +9,11 @@
 #include <random>
 #include <vector>
 
-#include "solver/blended_fit.h"
-#include "solver/blended_objective.h"
-#include "solver/judgment.h"
-#include "solver/judgment_health.h"
-#include "solver/points.h"
+#include "solver/fit/blended_fit.h"
+#include "solver/objective/blended_objective.h"
+#include "solver/base/judgment.h"
+#include "solver/measures/judgment_health.h"
+#include "solver/base/points.h"
 
 namespace kith::test {
 

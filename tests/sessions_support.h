@@ -12,7 +12,7 @@
 #include <string>
 #include <vector>
 
-#include "solver/collection.h"
+#include "solver/io/collection.h"
 
 namespace kith::test {
 

@@ -4,9 +4,9 @@
 
 #include <cmath>
 
-#include "solver/displacement.h"
-#include "solver/judgment_term.h"
-#include "solver/neighbour_compare.h"
+#include "solver/measures/displacement.h"
+#include "solver/objective/judgment_term.h"
+#include "solver/measures/neighbour_compare.h"
 #include "tests/analysis_support.h"
 #include "tests/approx.h"
 

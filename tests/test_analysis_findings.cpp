@@ -3,8 +3,8 @@
 
 #include <random>
 
-#include "solver/map_findings.h"
-#include "solver/neighbour_compare.h"
+#include "solver/measures/map_findings.h"
+#include "solver/measures/neighbour_compare.h"
 #include "tests/analysis_support.h"
 
 using namespace kith;

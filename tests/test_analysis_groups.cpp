@@ -5,7 +5,7 @@
 #include <fstream>
 #include <set>
 
-#include "solver/groups.h"
+#include "solver/measures/groups.h"
 #include "tests/analysis_support.h"
 #include "tests/approx.h"
 

@@ -8,12 +8,12 @@
 #include <random>
 #include <sstream>
 
-#include "solver/groups.h"
-#include "solver/neighbour_compare.h"
-#include "solver/suspects.h"
+#include "solver/measures/groups.h"
+#include "solver/measures/neighbour_compare.h"
+#include "solver/measures/suspects.h"
 #include "tests/analysis_support.h"
 #include "tests/approx.h"
-#include "viewer/report_page.h"
+#include "viewer/cli/report_page.h"
 
 using namespace kith;
 

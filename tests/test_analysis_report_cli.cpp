@@ -12,10 +12,10 @@
 #include <algorithm>
 #include <sstream>
 
-#include "solver/fit.h"
-#include "solver/session_store.h"
+#include "solver/fit/fit.h"
+#include "solver/session/session_store.h"
 #include "tests/approx.h"
-#include "viewer/report_page.h"
+#include "viewer/cli/report_page.h"
 
 using namespace kith;
 

@@ -6,8 +6,8 @@
 #include <fstream>
 #include <sstream>
 
-#include "solver/collection.h"
-#include "solver/suspects.h"
+#include "solver/io/collection.h"
+#include "solver/measures/suspects.h"
 #include "tests/analysis_support.h"
 #include "tests/approx.h"
 

@@ -5,11 +5,11 @@
 #include <cmath>
 
 #include "tests/approx.h"
-#include "viewer/map_feed.h"
-#include "viewer/map_view.h"
-#include "viewer/panel_structure.h"
-#include "viewer/renderer.h"
-#include "viewer/synthetic_collection.h"
+#include "viewer/scene/map_feed.h"
+#include "viewer/scene/map_view.h"
+#include "viewer/panels/panel_structure.h"
+#include "viewer/scene/renderer.h"
+#include "viewer/cli/synthetic_collection.h"
 
 using namespace kith;
 

@@ -12,7 +12,7 @@
 #include <tuple>
 
 #include "tests/sessions_support.h"
-#include "viewer/asking_desk.h"
+#include "viewer/scene/asking_desk.h"
 
 using namespace kith;
 

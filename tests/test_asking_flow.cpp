@@ -5,7 +5,7 @@
 #include <stdexcept>
 #include <tuple>
 
-#include "solver/question_flow.h"
+#include "solver/asking/question_flow.h"
 
 using namespace kith;
 

@@ -14,7 +14,7 @@
 #include <string>
 #include <tuple>
 
-#include "solver/session_store.h"
+#include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/window_support.h"
 #include "tests/sessions_support.h"

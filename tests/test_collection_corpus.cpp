@@ -9,7 +9,7 @@
 #include <sstream>
 #include <sys/wait.h>
 
-#include "solver/collection.h"
+#include "solver/io/collection.h"
 #include "tests/approx.h"
 
 namespace {

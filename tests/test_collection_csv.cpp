@@ -10,8 +10,8 @@
 #include <set>
 #include <algorithm>
 
-#include "solver/collection.h"
-#include "solver/csv_table.h"
+#include "solver/io/collection.h"
+#include "solver/io/csv_table.h"
 #include "tests/approx.h"
 
 using kith::Collection;

@@ -6,9 +6,9 @@
 #include <random>
 #include <sstream>
 
-#include "solver/collection.h"
-#include "solver/csv_table.h"
-#include "solver/npy_file.h"
+#include "solver/io/collection.h"
+#include "solver/io/csv_table.h"
+#include "solver/io/npy_file.h"
 #include "tests/approx.h"
 
 using kith::Collection;

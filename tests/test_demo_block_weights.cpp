@@ -8,8 +8,8 @@
 #include <stdexcept>
 #include <thread>
 
-#include "solver/block_weights.h"
-#include "solver/engine.h"
+#include "solver/features/block_weights.h"
+#include "solver/live/engine.h"
 
 namespace {
 

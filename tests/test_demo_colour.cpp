@@ -7,7 +7,7 @@
 #include <string>
 #include <vector>
 
-#include "solver/colour.h"
+#include "solver/features/colour.h"
 #include "tests/approx.h"
 
 namespace {

@@ -13,8 +13,8 @@
 #include <string>
 #include <vector>
 
-#include "solver/colour.h"
-#include "solver/picture_descriptors.h"
+#include "solver/features/colour.h"
+#include "solver/features/picture_descriptors.h"
 #include "tests/approx.h"
 
 namespace {

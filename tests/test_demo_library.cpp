@@ -6,9 +6,9 @@
 #include <map>
 #include <sstream>
 
-#include "solver/colour.h"
-#include "solver/picture_descriptors.h"
-#include "solver/sample_library.h"
+#include "solver/features/colour.h"
+#include "solver/features/picture_descriptors.h"
+#include "solver/demo/sample_library.h"
 #include "tests/approx.h"
 
 namespace {

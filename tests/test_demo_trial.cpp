@@ -1,5 +1,5 @@
-// The demo's measured story (solver/panel_trial.h): the simulated panel answers 100 questions
-// chosen by the most-informative picker, and the map's held-out agreement with the panel's hidden
+// The demo's measured story (solver/demo_trial.h): the simulated people answers 100 questions
+// chosen by the most-informative picker, and the map's held-out agreement with the people's hidden
 // perceptual distance is compared with the features-only map and with a control run that takes the
 // same optimizer steps without the answers.
 #include <doctest/doctest.h>
@@ -8,9 +8,9 @@
 #include <cstdlib>
 #include <string>
 
-#include "solver/panel_trial.h"
-#include "solver/picture_descriptors.h"
-#include "solver/sample_library.h"
+#include "solver/demo/demo_trial.h"
+#include "solver/features/picture_descriptors.h"
+#include "solver/demo/sample_library.h"
 
 namespace {
 
@@ -32,17 +32,17 @@ kith::Points library_features(const std::vector<kith::Swatch>& swatches) {
 TEST_CASE("demo trial: 100 most-informative answers clearly raise held-out agreement over the features-only map") {
   const auto swatches = kith::make_swatches();
   const kith::Points features = library_features(swatches);
-  kith::SimulatedPanel panel(kith::perceptual_items(swatches));
+  kith::SimulatedPeople people(kith::perceptual_items(swatches));
   // The README's claim exactly: 100 answers, most informative picker, blend 5, block weights learned
   // from the answers (on by default), seed 42 (all of the run's seeds at their defaults).
-  kith::PanelTrialOptions o;
+  kith::DemoTrialOptions o;
   o.threads = 2;
-  const auto r = kith::run_panel_trial(features, panel, o);
+  const auto r = kith::run_demo_trial(features, people, o);
   MESSAGE(r.BriefReport() << "; answers honoured " << r.answers_satisfied);
   REQUIRE(r.answers.size() == 100);
   REQUIRE(r.heldout == 3000);
   CHECK(r.first_question.anchor >= 0);
-  // The map takes the panel's answers in: about 85 % of them agree with the hidden distance (the
+  // The map takes the people's answers in: about 85 % of them agree with the hidden distance (the
   // contrarian and the noise account for the rest), and the map honours at least that many.
   constexpr double kHonoured = 0.85;
   CHECK(r.answers_satisfied >= kHonoured);

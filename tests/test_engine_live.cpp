@@ -10,7 +10,7 @@
 #include <set>
 #include <thread>
 
-#include "solver/engine.h"
+#include "solver/live/engine.h"
 
 namespace kith {
 namespace {

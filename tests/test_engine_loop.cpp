@@ -12,10 +12,10 @@
 #include <set>
 #include <thread>
 
-#include "solver/inbox.h"
-#include "solver/live_loop.h"
-#include "solver/mailbox.h"
-#include "solver/objective_term.h"
+#include "solver/live/inbox.h"
+#include "solver/live/live_loop.h"
+#include "solver/live/mailbox.h"
+#include "solver/objective/objective_term.h"
 
 namespace kith {
 namespace {

@@ -1,6 +1,6 @@
 #include <doctest/doctest.h>
 
-#include "solver/judgment.h"
+#include "solver/base/judgment.h"
 
 TEST_CASE("judgment kinds round-trip through their names") {
   for (int k = 0; k <= 4; ++k) {

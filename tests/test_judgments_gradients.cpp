@@ -5,9 +5,9 @@
 #include <cmath>
 #include <random>
 
-#include "solver/blended_objective.h"
-#include "solver/judgment_term.h"
-#include "solver/spring_term.h"
+#include "solver/objective/blended_objective.h"
+#include "solver/objective/judgment_term.h"
+#include "solver/objective/spring_term.h"
 #include "tests/approx.h"
 
 namespace {

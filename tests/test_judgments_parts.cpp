@@ -8,10 +8,10 @@
 #include <set>
 #include <sstream>
 
-#include "solver/judgment_health.h"
-#include "solver/judgment_io.h"
-#include "solver/picker.h"
-#include "solver/teach.h"
+#include "solver/measures/judgment_health.h"
+#include "solver/io/judgment_io.h"
+#include "solver/asking/picker.h"
+#include "solver/asking/teach.h"
 #include "tests/approx.h"
 
 using kith::Judgment;

@@ -6,10 +6,10 @@
 #include <cstdio>
 #include <set>
 
-#include "solver/affinities.h"
-#include "solver/judgment_health.h"
-#include "solver/neighbour_term.h"
-#include "solver/neighbours.h"
+#include "solver/features/affinities.h"
+#include "solver/measures/judgment_health.h"
+#include "solver/objective/neighbour_term.h"
+#include "solver/features/neighbours.h"
 #include "tests/judgments_planted.h"
 
 using kith::Judgment;

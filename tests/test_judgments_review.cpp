@@ -12,13 +12,13 @@
 #include <fstream>
 #include <random>
 
-#include "solver/judgment_io.h"
-#include "solver/judgment_review.h"
+#include "solver/io/judgment_io.h"
+#include "solver/measures/judgment_review.h"
 #include "tests/approx.h"
-#include "viewer/map_feed.h"
-#include "viewer/panel_judgments.h"
-#include "viewer/renderer.h"
-#include "viewer/synthetic_collection.h"
+#include "viewer/scene/map_feed.h"
+#include "viewer/panels/panel_judgments.h"
+#include "viewer/scene/renderer.h"
+#include "viewer/cli/synthetic_collection.h"
 
 using namespace kith;
 
@@ -377,8 +377,8 @@ TEST_CASE("judgments panel: agreement figures per person from the map shown") {
   CHECK(r.panel->history().samples() == 2);
 }
 
-#include "solver/session_store.h"
-#include "viewer/session_link.h"
+#include "solver/session/session_store.h"
+#include "viewer/session/session_link.h"
 
 TEST_CASE(
     "judgments panel: through a real session, imports and retractions are in the file; a refusal changes nothing") {

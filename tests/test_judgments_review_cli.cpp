@@ -12,11 +12,11 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
-#include "solver/session_store.h"
+#include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
 #include "tests/window_support.h"
-#include "viewer/synthetic_collection.h"
+#include "viewer/cli/synthetic_collection.h"
 
 namespace {
 

@@ -10,7 +10,7 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
-#include "solver/session_store.h"
+#include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
 

@@ -13,7 +13,7 @@
 #include <random>
 #include <sstream>
 
-#include "solver/session_store.h"
+#include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
 

@@ -8,17 +8,17 @@
 #include <random>
 #include <sstream>
 
-#include "solver/collection.h"
-#include "solver/fit.h"
-#include "solver/flat_map.h"
-#include "solver/health.h"
-#include "solver/judgment_health.h"
-#include "solver/session_store.h"
+#include "solver/io/collection.h"
+#include "solver/fit/fit.h"
+#include "solver/fit/flat_map.h"
+#include "solver/measures/health.h"
+#include "solver/measures/judgment_health.h"
+#include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
-#include "viewer/map_feed.h"
-#include "viewer/session_link.h"
-#include "viewer/session_menu.h"
+#include "viewer/scene/map_feed.h"
+#include "viewer/session/session_link.h"
+#include "viewer/window/session_menu.h"
 
 namespace {
 

@@ -8,7 +8,7 @@
 #include <random>
 #include <set>
 
-#include "solver/session_store.h"
+#include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
 

@@ -4,8 +4,8 @@
 #include <cmath>
 #include <random>
 
-#include "solver/affinities.h"
-#include "solver/neighbours.h"
+#include "solver/features/affinities.h"
+#include "solver/features/neighbours.h"
 #include "tests/approx.h"
 
 namespace {

@@ -4,9 +4,9 @@
 
 #include <random>
 
-#include "solver/affinities.h"
-#include "solver/neighbour_term.h"
-#include "solver/neighbours.h"
+#include "solver/features/affinities.h"
+#include "solver/objective/neighbour_term.h"
+#include "solver/features/neighbours.h"
 #include "tests/approx.h"
 
 namespace {

@@ -3,9 +3,9 @@
 
 #include <random>
 
-#include "solver/feature_prep.h"
-#include "solver/health.h"
-#include "solver/schedule.h"
+#include "solver/features/feature_prep.h"
+#include "solver/measures/health.h"
+#include "solver/fit/schedule.h"
 #include "tests/approx.h"
 
 namespace {

@@ -1,7 +1,7 @@
 // GradientDescent on problems with a known minimum.
 #include <doctest/doctest.h>
 
-#include "solver/optimizer.h"
+#include "solver/fit/optimizer.h"
 #include "tests/approx.h"
 
 namespace {

@@ -8,11 +8,11 @@
 #include <map>
 #include <sstream>
 
-#include "solver/affinities.h"
-#include "solver/feature_prep.h"
-#include "solver/fit.h"
-#include "solver/health.h"
-#include "solver/neighbours.h"
+#include "solver/features/affinities.h"
+#include "solver/features/feature_prep.h"
+#include "solver/fit/fit.h"
+#include "solver/measures/health.h"
+#include "solver/features/neighbours.h"
 #include "tests/approx.h"
 
 namespace {

@@ -8,13 +8,13 @@
 #include <set>
 #include <tuple>
 
-#include "viewer/camera.h"
-#include "viewer/input_script.h"
-#include "viewer/map_feed.h"
-#include "viewer/map_interaction.h"
-#include "viewer/map_view.h"
-#include "viewer/picking.h"
-#include "viewer/synthetic_collection.h"
+#include "viewer/scene/camera.h"
+#include "viewer/window/input_script.h"
+#include "viewer/scene/map_feed.h"
+#include "viewer/scene/map_interaction.h"
+#include "viewer/scene/map_view.h"
+#include "viewer/scene/picking.h"
+#include "viewer/cli/synthetic_collection.h"
 
 namespace kith {
 namespace {

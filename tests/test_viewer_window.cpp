@@ -184,8 +184,8 @@ TEST_CASE("viewer render: kith render with DISPLAY unset writes a PNG of the ask
 
 }  // namespace
 
-#include "solver/session_store.h"
-#include "viewer/synthetic_collection.h"
+#include "solver/session/session_store.h"
+#include "viewer/cli/synthetic_collection.h"
 #include "tests/sessions_support.h"
 
 namespace {

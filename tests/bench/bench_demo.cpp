@@ -1,5 +1,5 @@
-// The demo's measured claim over several seeds (solver/panel_trial.h): held-out agreement with
-// the simulated panel's hidden distance, features only / after N answers / control without them,
+// The demo's measured claim over several seeds (solver/demo_trial.h): held-out agreement with
+// the simulated people's hidden distance, features only / after N answers / control without them,
 // with and without learned block weights. Prints a table and the medians.
 //   build/tests/bench_demo [--answers N] [--seeds S] [--lambda L] [--random-share R] [--rule informative|random]
 //                          [--blend B] [--settle N] [--weights on|off|both] [--regroup N]
@@ -12,10 +12,10 @@
 #include <string>
 #include <vector>
 
-#include "solver/fit.h"
-#include "solver/panel_trial.h"
-#include "solver/picture_descriptors.h"
-#include "solver/sample_library.h"
+#include "solver/fit/fit.h"
+#include "solver/demo/demo_trial.h"
+#include "solver/features/picture_descriptors.h"
+#include "solver/demo/sample_library.h"
 
 namespace {
 double median(std::vector<double> v) {
@@ -26,8 +26,8 @@ double median(std::vector<double> v) {
 }  // namespace
 
 int main(int argc, char** argv) {
-  int answers = 100, seeds = 5, settle = 300, count = kith::SampleLibraryOptions{}.count, regroup = kith::PanelTrialOptions{}.regroup_iterations;
-  double regroup_exaggeration = kith::PanelTrialOptions{}.regroup_exaggeration;
+  int answers = 100, seeds = 5, settle = 300, count = kith::SampleLibraryOptions{}.count, regroup = kith::DemoTrialOptions{}.regroup_iterations;
+  double regroup_exaggeration = kith::DemoTrialOptions{}.regroup_exaggeration;
   double lambda = kith::BlockWeightOptions{}.lambda, share = 0.0, blend = 5.0;
   std::string rule = "informative", weights = "both";
   for (int i = 1; i + 1 < argc; i += 2) {
@@ -64,8 +64,8 @@ int main(int argc, char** argv) {
     if ((weights == "on" && !learn) || (weights == "off" && learn)) continue;
     std::vector<double> before, after, control;
     for (int s = 0; s < seeds; ++s) {
-      kith::PanelTrialOptions o;
-      kith::SimulatedPanelOptions po;
+      kith::DemoTrialOptions o;
+      kith::SimulatedPeopleOptions po;
       kith::set_trial_seed(uint64_t(42 + s), &o, &po);
       o.answers = answers;
       o.blend = blend;
@@ -77,15 +77,15 @@ int main(int argc, char** argv) {
       o.picker.random_share = share;
       o.picker.rule = rule == "random" ? kith::PickerRule::kRandom : kith::PickerRule::kInformative;
       o.threads = 2;
-      kith::SimulatedPanel panel(kith::perceptual_items(swatches), po);
-      const auto r = kith::run_panel_trial(f, panel, o);
+      kith::SimulatedPeople people(kith::perceptual_items(swatches), po);
+      const auto r = kith::run_demo_trial(f, people, o);
       double fresh = -1;  // a new features-only map of the reweighted features, for comparison
       if (std::getenv("BENCH_DEMO_FRESH") && !r.blocks.empty()) {
         kith::FitOptions fo;
         fo.iterations = o.fit_iterations;
         fo.threads = 2;
         const auto fit = kith::fit_map(kith::apply_block_weights(f, r.blocks, r.weights.weights), fo);
-        fresh = kith::triplet_agreement(fit.map, panel.truth_triplets(o.heldout_triplets, 0, o.heldout_gap, o.heldout_seed));
+        fresh = kith::triplet_agreement(fit.map, people.truth_triplets(o.heldout_triplets, 0, o.heldout_gap, o.heldout_seed));
         std::printf("  (seed %d: a fresh map of the reweighted features agrees %.3f)\n", 42 + s, fresh);
       }
       before.push_back(r.agreement_before);

@@ -16,7 +16,7 @@
 
 #include <sys/resource.h>
 
-#include "solver/engine.h"
+#include "solver/live/engine.h"
 
 using namespace kith;
 using Clock = std::chrono::steady_clock;

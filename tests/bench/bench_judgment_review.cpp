@@ -10,8 +10,8 @@
 #include <string>
 #include <vector>
 
-#include "solver/judgment_health.h"
-#include "solver/judgment_review.h"
+#include "solver/measures/judgment_health.h"
+#include "solver/measures/judgment_review.h"
 
 using namespace kith;
 

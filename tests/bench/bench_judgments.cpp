@@ -19,7 +19,7 @@
 #include <cstdlib>
 #include <vector>
 
-#include "solver/picker.h"
+#include "solver/asking/picker.h"
 #include "tests/judgments_planted.h"
 
 using namespace kith;

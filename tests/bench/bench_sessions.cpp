@@ -11,7 +11,7 @@
 #include <string>
 #include <vector>
 
-#include "solver/session_store.h"
+#include "solver/session/session_store.h"
 
 namespace {
 using Clock = std::chrono::steady_clock;

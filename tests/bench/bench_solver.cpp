@@ -13,13 +13,13 @@
 #include <stdexcept>
 #include <string>
 
-#include "solver/affinities.h"
-#include "solver/feature_prep.h"
-#include "solver/fit.h"
-#include "solver/neighbour_term.h"
-#include "solver/neighbours.h"
-#include "solver/optimizer.h"
-#include "solver/schedule.h"
+#include "solver/features/affinities.h"
+#include "solver/features/feature_prep.h"
+#include "solver/fit/fit.h"
+#include "solver/objective/neighbour_term.h"
+#include "solver/features/neighbours.h"
+#include "solver/fit/optimizer.h"
+#include "solver/fit/schedule.h"
 
 namespace {
 

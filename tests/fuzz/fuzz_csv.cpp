@@ -7,7 +7,7 @@
 #include <cstdlib>
 #include <string>
 
-#include "solver/collection.h"
+#include "solver/io/collection.h"
 
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   // The first byte picks how the name looks, so both separators and sniffing are covered. The

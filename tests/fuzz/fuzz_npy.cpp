@@ -6,8 +6,8 @@
 #include <cstdlib>
 #include <string>
 
-#include "solver/collection.h"
-#include "solver/npy_file.h"
+#include "solver/io/collection.h"
+#include "solver/io/npy_file.h"
 
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   const std::string_view bytes(reinterpret_cast<const char*>(data), size);

@@ -1,0 +1,94 @@
+// DemoTrial: the demo's story, measured headlessly and deterministically (one thread, fixed seeds):
+//   1. the features-only map: fit_map (solver/fit.h) on the features;
+//   2. agreement of that map with the hidden perceptual distance on held-out triplets
+//      (SimulatedPeople::truth_triplets, never asked);
+//   3. `answers` times: the picker (solver/picker.h, most informative by default) chooses a pair
+//      question on the current map, the simulated people answers it, the answer joins the blended
+//      objective (KL + blend * t-STE) and the map takes `iterations_between` more steps;
+//      Every `reweight_every` answers from `reweight_from` on (and after the last) the answers also teach the features'
+//      metric: block weights are learned from all answers so far (solver/block_weights.h) and the
+//      t-SNE affinities are rebuilt from the reweighted features, so the whole map follows the
+//      people, not only the items it was asked about (learn_weights; on by default), and the map
+//      takes `regroup_iterations` steps with exaggerated affinities to regroup;
+//   4. `settle_iterations` more steps, then the same held-out agreement again.
+// A control run takes exactly the same stretches of steps (and exaggerations) without the answers, so the change can be told
+// apart from the effect of merely optimizing longer. `kith demo` with no display and the tests use
+// it; the window uses the live engine instead. Any thread; nothing shared.
+#pragma once
+#include <cstdint>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "solver/features/block_weights.h"
+#include "solver/base/judgment.h"
+#include "solver/base/points.h"
+#include "solver/asking/question_flow.h"
+#include "solver/asking/picker.h"
+#include "solver/demo/simulated_people.h"
+
+namespace kith {
+
+// The most informative rule with the settings the demo uses: candidates mostly from the anchor's
+// neighbourhood in the map and the features, the t-STE answer model, one anchor per question.
+// Refining where items sit among their neighbours is what people judging colour answers best;
+// the picker's own defaults (tuned on the planted-map benchmark, mostly long-range candidates)
+// gave +0.017 over the control after 100 answers where these give about +0.04.
+PickerOptions neighbourhood_picker();
+
+struct DemoTrialOptions {
+  int answers = 100;               // questions the people answers (default: 100)
+  int fit_iterations = 750;        // steps of the features-only map (default: 750)
+  int iterations_between = 10;     // steps after each answer (default: 10)
+  int settle_iterations = 300;     // steps after the last answer (default: 300)
+  double blend = 5.0;              // weight of the judgments (default: 5; see the README's demo section)
+  double perplexity = 30.0;        // (default: 30)
+  PickerOptions picker = neighbourhood_picker();  // (default: most informative, neighbourhood settings)
+  size_t heldout_triplets = 3000;  // held-out truth triplets (default: 3000)
+  double heldout_gap = 3.0;        // least |d(a,b) - d(a,c)| of a held-out triplet, CIEDE2000 units (default: 3)
+  uint64_t heldout_seed = 1234;    // (default: 1234)
+  uint64_t seed = 42;              // the fit's seed (default: 42)
+  bool control = true;             // also run the control without answers (default: true)
+  bool learn_weights = true;       // answers also teach the feature blocks' weights (default: true)
+  int reweight_every = 10;         // answers between two relearnings of the weights (default: 10)
+  int reweight_from = 30;          // no relearning before this many answers: 10 answers say too little
+                                   // about five blocks (they gave 0.680 -> 0.611, 30 gave 0.704) (default: 30)
+  std::vector<ColumnBlock> blocks; // the feature blocks; empty = the picture descriptors' blocks when the
+                                   // features have descriptor_size() columns, else no reweighting (default: empty)
+  BlockWeightOptions weights;      // (default: see block_weights.h)
+  int regroup_iterations = 100;    // after each reweighting, steps with the affinities exaggerated, so that
+                                   // groups can move past each other into the new arrangement (default: 100)
+  double regroup_exaggeration = 12; // (default: 12, as the first fit)
+  int threads = 0;                 // inside one evaluation, 0 = all (default: 0)
+  bool IsValid(std::string* error) const;
+};
+
+struct DemoTrialResult {
+  Points features_only_map;          // after step 1
+  Points final_map;                  // after step 4
+  Points control_map;                // the control (empty if not run)
+  std::vector<Judgment> answers;     // in the order given
+  Question first_question;           // what was asked first (for the README's picture)
+  double agreement_before = -1.0;    // held-out agreement of the features-only map
+  double agreement_after = -1.0;     // ... of the final map
+  double agreement_control = -1.0;   // ... of the control map (-1 if not run)
+  double answers_satisfied = -1.0;   // fraction of the people's answers the final map satisfies
+  size_t heldout = 0;                // number of held-out triplets
+  std::vector<ColumnBlock> blocks;   // the blocks reweighted (empty if the weights were not learned)
+  BlockWeightsResult weights;        // the block weights learned from all the answers
+  std::string BriefReport() const;   // one line
+};
+
+
+// Fraction of the triplets the map satisfies (a tie counts one half).
+double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets);
+
+// Every seed of a run from one number: the map's, the held-out triplets', the picker's and the
+// people's. Seed 42 gives the defaults above (and SimulatedPeopleOptions' seed 7).
+void set_trial_seed(uint64_t seed, DemoTrialOptions* trial, SimulatedPeopleOptions* people);
+
+// Progress: called after each answer with (answers so far, total); may be empty.
+DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, const DemoTrialOptions& options,
+                                 const std::function<void(int, int)>& progress = {});
+
+}  // namespace kith

@@ -1,0 +1,79 @@
+// SimulatedPeople: virtual people who answer "is the anchor more like b or like c?" from a hidden
+// perceptual distance, for the demo and for benchmarks of pickers and the blend.
+//
+// Hidden distance between two swatches i, j (in CIEDE2000 units):
+//   d(i, j) = dE00(base_i, base_j)                                  colour (solver/colour.h)
+//           + pattern_weight * [pattern_i != pattern_j]             a different kind of pattern
+//           + scale_weight * |log2(period_i / period_j)|            a different scale, when both
+//                                                                   have a pattern
+// Each member answers like a Thurstone observer: they perceive d(a, b) + e_b and d(a, c) + e_c,
+// e ~ Normal(0, noise^2), and choose the nearer. The contrarian member perceives a distance of
+// their own instead: lightness and pattern only (2 |dL*| + pattern term), blind to hue and chroma,
+// so they disagree with the others systematically, not at random.
+// One SimulatedPeople is used from one thread (it owns its random generator); distance() is const.
+#pragma once
+#include <cstdint>
+#include <random>
+#include <string>
+#include <vector>
+
+#include "solver/features/colour.h"
+#include "solver/base/judgment.h"
+#include "solver/demo/sample_library.h"
+
+namespace kith {
+
+struct PerceptualItem {
+  Lab colour;
+  int pattern = 0;      // 0 = plain
+  double period = 1.0;  // pattern repeat (any unit, used as a ratio)
+};
+std::vector<PerceptualItem> perceptual_items(const std::vector<Swatch>& swatches);
+
+struct PerceptualDistanceOptions {
+  double pattern_weight = 20.0;  // cost of a different pattern kind, in dE00 units (default: 20)
+  double scale_weight = 8.0;     // per doubling of the pattern repeat (default: 8)
+};
+
+struct SimulatedPerson {
+  std::string name;
+  double noise = 2.0;       // standard deviation of the perceived distances, dE00 units
+  bool contrarian = false;  // judges by lightness and pattern only
+};
+
+struct SimulatedPeopleOptions {
+  std::vector<SimulatedPerson> members = {
+      {"Ines", 2.0, false}, {"Tomas", 5.0, false}, {"Wren", 9.0, false}, {"Odile", 3.0, true}};  // (default: these four)
+  PerceptualDistanceOptions distance;
+  uint64_t seed = 7;  // (default: 7)
+  bool IsValid(std::string* error) const;
+};
+
+class SimulatedPeople {
+ public:
+  explicit SimulatedPeople(std::vector<PerceptualItem> items, SimulatedPeopleOptions options = {});
+
+  size_t size() const { return items_.size(); }
+  const std::vector<SimulatedPerson>& members() const { return options_.members; }
+  // The hidden perceptual distance d(i, j) above.
+  double distance(int32_t i, int32_t j) const;
+  // The distance as member m perceives it before noise (the contrarian's own, else d).
+  double perceived(int member, int32_t i, int32_t j) const;
+
+  // Member `member` answers (anchor; b vs c); member < 0 takes turns. Returns a pair judgment
+  // naming the member, weight 1, time 0 (the caller stamps it).
+  Judgment answer(int32_t anchor, int32_t b, int32_t c, int member = -1);
+
+  // `count` triplets stated by the hidden distance itself (nearer first), for measuring a map's
+  // agreement with it: anchor uniform; b and c drawn from the anchor's `neighbourhood` nearest
+  // items by d (0 = from all items), with |d(a, b) - d(a, c)| >= min_gap so the truth is clear.
+  std::vector<Judgment> truth_triplets(size_t count, size_t neighbourhood, double min_gap, uint64_t seed) const;
+
+ private:
+  std::vector<PerceptualItem> items_;
+  SimulatedPeopleOptions options_;
+  std::mt19937_64 rng_;
+  size_t turn_ = 0;
+};
+
+}  // namespace kith

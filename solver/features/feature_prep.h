@@ -1,0 +1,40 @@
+// Feature preparation before the neighbour search, and the PCA start of the map.
+//   standardize:  x_ic <- (x_ic - mean_c) / std_c   (population std; constant columns left at 0)
+//   reduce:       when F > max_dims, project the centred features on their first max_dims
+//                 principal axes (eigenvectors of the covariance, largest variance first)
+//   pca start:    Y = centred X projected on the first `dims` axes, scaled so that column 0 has
+//                 standard deviation 1e-4 (as scikit-learn's init='pca' does)
+// Signs of principal axes are fixed (largest-magnitude loading positive), so results are
+// deterministic. The eigen decomposition lives in pca.cpp. Pure functions; any thread.
+#pragma once
+#include <cstdint>
+#include <string>
+
+#include "solver/base/points.h"
+
+namespace kith {
+
+struct FeaturePrepOptions {
+  bool standardize = false;  // scale every feature column to unit variance (default: false)
+  int max_dims = 50;         // PCA down to this many dims when wider; 0 = never (default: 50)
+};
+
+struct Pca {
+  Eigen::RowVectorXd mean;     // 1 x F
+  Eigen::MatrixXd axes;        // F x m, columns are unit principal axes
+  Eigen::VectorXd variances;   // m, population variances along the axes
+  Points project(const Points& x) const;  // (x - mean) * axes
+};
+
+// The first m principal axes of x's rows (m <= F).
+Pca fit_pca(const Points& x, int m);
+
+// Standardization and reduction as above; `note` (if given) gets a one-line description.
+Points prepare_features(const Points& x, const FeaturePrepOptions& options, std::string* note = nullptr);
+
+// The PCA start of a map with `dims` columns; column 0 has standard deviation `first_std`.
+// Columns beyond the number of features (e.g. 2 features, a 3-D map) get seeded Gaussian noise of
+// that same standard deviation, so that they can unfold.
+Points pca_start(const Points& x, int dims, double first_std = 1e-4, uint64_t seed = 42);
+
+}  // namespace kith

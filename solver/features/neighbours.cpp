@@ -1,0 +1,116 @@
+// k nearest neighbours (see neighbours.h).
+//
+// Exact: rows in blocks of kBlock; squared distances of a block to every row from one Eigen
+// product, |a|^2 + |b|^2 - 2 a.b, then the k + 1 smallest (the item itself dropped). The chosen
+// neighbours' distances are recomputed as sum (a - b)^2 in double, so cancellation in the product
+// form never reaches P. Ties are broken by index, so the result is deterministic.
+// HNSW (hnswlib, M = 16, ef_construction = 200, ef = max(2k, 100)): the index is built on one
+// thread, in row order, with a seeded level generator, so a seed gives one graph; queries run in
+// parallel (read-only). Distances are again recomputed exactly in double.
+#include "solver/features/neighbours.h"
+
+#include <hnswlib/hnswlib.h>
+
+#include <algorithm>
+#include <memory>
+#include <numeric>
+#include <stdexcept>
+
+#include "solver/base/parallel.h"
+
+namespace kith {
+namespace {
+
+constexpr Eigen::Index kBlock = 256;
+
+double exact_d2(const Points& x, Eigen::Index i, Eigen::Index j) {
+  return (x.row(i) - x.row(j)).squaredNorm();
+}
+
+// Sorts row i's candidates by (exact distance, index) and writes the first k.
+void finish_row(const Points& x, Eigen::Index i, std::vector<int32_t>& cand, size_t k, NeighbourGraph& g) {
+  std::vector<std::pair<double, int32_t>> dj;
+  dj.reserve(cand.size());
+  for (int32_t j : cand)
+    if (j != i) dj.emplace_back(exact_d2(x, i, j), j);
+  std::sort(dj.begin(), dj.end());
+  for (size_t c = 0; c < k; ++c) {
+    g.index[size_t(i) * k + c] = dj[c].second;
+    g.distance2[size_t(i) * k + c] = dj[c].first;
+  }
+}
+
+void exact_search(const Points& x, size_t k, int threads, NeighbourGraph& g) {
+  const Eigen::Index n = x.rows();
+  const Eigen::VectorXd norms = x.rowwise().squaredNorm();
+  const size_t blocks = size_t((n + kBlock - 1) / kBlock);
+  parallel_for(blocks, threads, [&](size_t b) {
+    const Eigen::Index r0 = Eigen::Index(b) * kBlock, rows = std::min(kBlock, n - r0);
+    Points d = -2.0 * (x.middleRows(r0, rows) * x.transpose());
+    d.rowwise() += norms.transpose();
+    d.colwise() += norms.segment(r0, rows);
+    std::vector<int32_t> order(static_cast<size_t>(n));
+    std::vector<int32_t> cand;
+    // One more than needed (the item itself), plus a margin so that rounding in the product form
+    // cannot push a true neighbour out before the exact re-sort.
+    const size_t keep = std::min<size_t>(size_t(n), k + 1 + 8);
+    for (Eigen::Index r = 0; r < rows; ++r) {
+      std::iota(order.begin(), order.end(), 0);
+      const double* row = &d(r, 0);
+      auto less = [row](int32_t a, int32_t c) { return row[a] < row[c] || (row[a] == row[c] && a < c); };
+      std::nth_element(order.begin(), order.begin() + (keep - 1), order.end(), less);
+      cand.assign(order.begin(), order.begin() + keep);
+      finish_row(x, r0 + r, cand, k, g);
+    }
+  });
+}
+
+void hnsw_search(const Points& x, size_t k, const NeighbourOptions& options, NeighbourGraph& g) {
+  const Eigen::Index n = x.rows(), f = x.cols();
+  // hnswlib works in float; the found neighbours' distances are recomputed in double afterwards.
+  Eigen::Matrix<float, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> xf = x.cast<float>();
+  hnswlib::L2Space space(static_cast<size_t>(f));
+  auto index = std::make_unique<hnswlib::HierarchicalNSW<float>>(&space, size_t(n), 16, 200,
+                                                                  size_t(options.seed));
+  for (Eigen::Index i = 0; i < n; ++i) index->addPoint(xf.row(i).data(), hnswlib::labeltype(i));
+  index->setEf(std::max<size_t>(2 * k + 2, 100));
+  constexpr Eigen::Index kChunk = 512;
+  const size_t chunks = size_t((n + kChunk - 1) / kChunk);
+  parallel_for(chunks, options.threads, [&](size_t c) {
+    std::vector<int32_t> cand;
+    for (Eigen::Index i = Eigen::Index(c) * kChunk; i < std::min(n, Eigen::Index(c + 1) * kChunk); ++i) {
+      auto found = index->searchKnn(xf.row(i).data(), k + 1);
+      cand.clear();
+      while (!found.empty()) {
+        cand.push_back(int32_t(found.top().second));
+        found.pop();
+      }
+      // The item itself normally comes back among the k + 1; if not (exact duplicates), finish_row
+      // keeps the k nearest of the others.
+      const bool has_self = std::find(cand.begin(), cand.end(), int32_t(i)) != cand.end();
+      if (cand.size() < k + (has_self ? 1 : 0))
+        throw std::runtime_error("HNSW returned too few neighbours for item " + std::to_string(i));
+      finish_row(x, i, cand, k, g);
+    }
+  });
+}
+
+}  // namespace
+
+NeighbourGraph find_neighbours(const Points& x, size_t k, const NeighbourOptions& options) {
+  const size_t n = size_t(x.rows());
+  if (n < 2) throw std::invalid_argument("find_neighbours: need at least 2 items");
+  if (k == 0 || k > n - 1) throw std::invalid_argument("find_neighbours: k must be in 1 .. N-1");
+  NeighbourGraph g;
+  g.n = n;
+  g.k = k;
+  g.index.assign(n * k, 0);
+  g.distance2.assign(n * k, 0.0);
+  if (n < options.exact_below)
+    exact_search(x, k, options.threads, g);
+  else
+    hnsw_search(x, k, options, g);
+  return g;
+}
+
+}  // namespace kith

@@ -1,0 +1,79 @@
+// PCA (see feature_prep.h), in its own translation unit because Eigen's eigensolver is slow to
+// compile. Covariance C = (X - mean)^T (X - mean) / N, eigenvectors by SelfAdjointEigenSolver.
+#include <Eigen/Eigenvalues>
+#include <cmath>
+#include <cstdio>
+#include <random>
+#include <stdexcept>
+
+#include "solver/features/feature_prep.h"
+
+namespace kith {
+
+Points Pca::project(const Points& x) const { return (x.rowwise() - mean) * axes; }
+
+Pca fit_pca(const Points& x, int m) {
+  const Eigen::Index n = x.rows(), f = x.cols();
+  if (n < 1 || f < 1) throw std::invalid_argument("PCA needs at least one row and one column");
+  if (m < 1 || m > f) throw std::invalid_argument("PCA: number of axes must be in 1 .. F");
+  Pca p;
+  p.mean = x.colwise().mean();
+  const Eigen::MatrixXd centred = x.rowwise() - p.mean;
+  const Eigen::MatrixXd cov = (centred.transpose() * centred) / double(n);
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(cov);
+  if (es.info() != Eigen::Success) throw std::runtime_error("PCA: eigen decomposition failed");
+  p.axes.resize(f, m);
+  p.variances.resize(m);
+  for (int c = 0; c < m; ++c) {  // eigenvalues come in increasing order
+    Eigen::VectorXd v = es.eigenvectors().col(f - 1 - c);
+    Eigen::Index big;
+    v.cwiseAbs().maxCoeff(&big);
+    if (v(big) < 0) v = -v;
+    p.axes.col(c) = v;
+    p.variances(c) = std::max(0.0, es.eigenvalues()(f - 1 - c));
+  }
+  return p;
+}
+
+Points prepare_features(const Points& x, const FeaturePrepOptions& options, std::string* note) {
+  Points out = x;
+  std::string what;
+  if (options.standardize) {
+    const Eigen::RowVectorXd mean = out.colwise().mean();
+    out.rowwise() -= mean;
+    for (Eigen::Index c = 0; c < out.cols(); ++c) {
+      const double sd = std::sqrt(out.col(c).squaredNorm() / double(out.rows()));
+      if (sd > 0) out.col(c) /= sd;
+    }
+    what = "standardized";
+  }
+  if (options.max_dims > 0 && out.cols() > options.max_dims) {
+    const Pca p = fit_pca(out, options.max_dims);
+    const double kept = p.variances.sum();
+    const Eigen::MatrixXd centred = out.rowwise() - out.colwise().mean();
+    const double total = centred.squaredNorm() / double(out.rows());
+    char buf[160];
+    std::snprintf(buf, sizeof buf, "%sPCA %ld -> %d dims (%.1f%% of the variance)", what.empty() ? "" : ", ",
+                  long(out.cols()), options.max_dims, total > 0 ? 100.0 * kept / total : 100.0);
+    what += buf;
+    out = p.project(out);
+  }
+  if (note) *note = what.empty() ? "features used as given" : what;
+  return out;
+}
+
+Points pca_start(const Points& x, int dims, double first_std, uint64_t seed) {
+  const int m = std::min<int>(dims, int(x.cols()));
+  Points y = Points::Zero(x.rows(), dims);
+  y.leftCols(m) = fit_pca(x, m).project(x);
+  const Eigen::VectorXd c0 = y.col(0);
+  const double sd = std::sqrt((c0.array() - c0.mean()).square().mean());
+  if (sd > 0) y *= first_std / sd;
+  std::mt19937_64 rng(seed);
+  std::normal_distribution<double> noise(0.0, first_std);
+  for (Eigen::Index i = 0; i < y.rows(); ++i)
+    for (int c = m; c < dims; ++c) y(i, c) = noise(rng);
+  return y;
+}
+
+}  // namespace kith

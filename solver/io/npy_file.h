@@ -1,0 +1,26 @@
+// NpyFile: reads a NumPy .npy array of features into Points.
+//
+// The format (NumPy's "NEP 1" file format, versions 1.0, 2.0 and 3.0): the magic bytes
+// "\x93NUMPY", a major and a minor version byte, the header length (2 bytes little-endian in 1.0,
+// 4 bytes in 2.0 and 3.0), then a Python dict literal such as
+//   {'descr': '<f8', 'fortran_order': False, 'shape': (100, 50), }
+// padded with spaces and ended by '\n', then the elements. kith reads little-endian float32
+// ('<f4') and float64 ('<f8') in C order, shape (N,) or (N, F). Anything else, a header that does
+// not parse, data cut short or extra, and NaN or infinite values throw LoadError with the byte
+// offset (Problem::column, line 0) and what was expected.
+// Pure functions; safe from any thread.
+#pragma once
+#include <string>
+#include <string_view>
+
+#include "solver/base/points.h"
+
+namespace kith {
+
+// True if `bytes` start with the .npy magic "\x93NUMPY".
+bool looks_like_npy(std::string_view bytes);
+
+// Parses a whole .npy file held in memory; `source` names it in messages.
+Points parse_npy(std::string_view bytes, const std::string& source);
+
+}  // namespace kith

@@ -1,0 +1,40 @@
+// What the engine publishes: an immutable Snapshot of the live map, taken by the window once a
+// frame from the engine's mailbox (latest wins). Shared through shared_ptr<const Snapshot>;
+// never changed after publishing, so any thread may read it.
+#pragma once
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "solver/base/points.h"
+
+namespace kith {
+
+struct HealthFigures {
+  double kl = 0.0;                    // KL(P||Q) at this map
+  double judgment_agreement = -1.0;   // fraction of active judgments satisfied; -1 if none
+  double trustworthiness = -1.0;      // -1 until computed (it is computed now and then, not every frame)
+  double neighbour_recall = -1.0;
+};
+
+struct Snapshot {
+  Points positions;                 // N x dims
+  std::vector<std::string> ids;     // N, same order as positions
+  std::vector<uint8_t> pinned;      // N, 1 where hard-pinned
+  double neighbour_cost = 0.0;      // per-term costs
+  double judgment_cost = 0.0;
+  double pin_cost = 0.0;
+  HealthFigures health;
+  uint64_t iteration = 0;
+  uint64_t last_command = 0;        // highest sequence number applied (or rejected/superseded) so far
+  uint64_t generation = 0;          // increases with every publish
+  double iterations_per_second = 0.0;
+  double movement = 0.0;            // mean step of the last iteration over the map's RMS radius
+  bool paused = false;
+  bool settled = false;             // converged and sleeping
+  bool rebuilding = false;          // a heavy rebuild (perplexity, new items) runs on the helper thread
+  size_t waiting_commands = 0;      // taken from the inbox but waiting for that rebuild
+  std::string last_rejected;        // why the most recent rejected command was rejected ("" if none)
+};
+
+}  // namespace kith

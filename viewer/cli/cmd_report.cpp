@@ -1,0 +1,281 @@
+// kith report ITEMS|SESSION -o report.html: a self-contained HTML page (viewer/report_page.h)
+// with the health figures, the suspect list, the groups table, the neighbourhoods the map keeps
+// worst and pictures of the map. For ITEMS it fits a map itself (solver/fit.h). Main thread only.
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <optional>
+#include <string>
+
+#include "solver/io/collection.h"
+#include "solver/measures/displacement.h"
+#include "solver/features/feature_prep.h"
+#include "solver/fit/fit.h"
+#include "solver/measures/health.h"
+#include "solver/objective/judgment_term.h"
+#include "solver/measures/map_findings.h"
+#include "solver/objective/neighbour_term.h"
+#include "solver/session/session_store.h"
+#include "viewer/cli/commands.h"
+#include "viewer/cli/map_source.h"  // parse_number
+#include "viewer/cli/report_page.h"
+
+namespace kith {
+namespace {
+
+const char* const kUsage =
+    "usage: kith report ITEMS|SESSION -o report.html [options]\n"
+    "\n"
+    "Writes one self-contained HTML page (no links to anything outside it) about a map: its health\n"
+    "figures, the suspects (tagged items whose nearest neighbours mostly carry another tag), the\n"
+    "groups found in the map (DBSCAN with an automatic radius), the neighbourhoods the map keeps\n"
+    "worst, and pictures of the map coloured by tag and by group. For ITEMS (CSV, TSV or .npy) the\n"
+    "map is fitted first (as kith fit does). For a SESSION (.kith, opened read-only) the map is its\n"
+    "last saved one, and the page adds what the judgments changed: each item's displacement from\n"
+    "the map fitted from the features alone, and the judgments that pulled the most moved items.\n"
+    "The session's own settings (dims, perplexity, seed) are used for the reference map.\n"
+    "\n"
+    "options:\n"
+    "  -o, --output FILE      the HTML file to write (required; never the input)\n"
+    "  --tag COLUMN           the tag column for suspects and group purity (default: the first)\n"
+    "  --space features|map|both   where suspects' neighbours come from (default: both)\n"
+    "  --k N                  neighbours looked at per suspect (default: 10)\n"
+    "  --eps R                DBSCAN radius in map units (default: automatic, from the k-distance knee)\n"
+    "  --min-points N         DBSCAN's minPts (default: max(10, 2 x dims))\n"
+    "  --rows N               rows in the lists (default: 25)\n"
+    "  --dims 2|3             map dimensions (default: 3)\n"
+    "  --perplexity P         (default: 30)\n"
+    "  --iterations N         (default: 1000)\n"
+    "  --seed S               (default: 42)\n"
+    "\n"
+    "exit codes: 0 written, 2 bad usage, 3 a problem in the data, 1 internal error\n";
+
+int usage_error(const std::string& message) {
+  std::fprintf(stderr, "kith report: %s\n(kith report --help lists the options)\n", message.c_str());
+  return kExitUsage;
+}
+
+
+std::string fixed(double v, int digits) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", digits, v);
+  return buf;
+}
+
+}  // namespace
+
+int cmd_report(const Args& args) {
+  std::string input, output, tag_column;
+  FitOptions fit;
+  FindingsOptions find;
+  size_t rows = 25;
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string& a = args[i];
+    if (a == "--help" || a == "-h") {
+      std::fputs(kUsage, stdout);
+      return kExitOk;
+    }
+    if (a.rfind("-", 0) != 0) {
+      if (!input.empty()) return usage_error("one input only (got '" + input + "' and '" + a + "')");
+      input = a;
+      continue;
+    }
+    if (i + 1 >= args.size()) return usage_error(a + " needs a value");
+    const std::string v = args[++i];
+    double x = 0;
+    auto number = [&](double lo, double hi) {
+      if (!parse_number(v, &x) || x < lo || x > hi) throw std::invalid_argument(a + " expects a number from " +
+                                                                                fixed(lo, 0) + " to " + fixed(hi, 0) +
+                                                                                ", got '" + v + "'");
+      return x;
+    };
+    try {
+      if (a == "-o" || a == "--output") output = v;
+      else if (a == "--tag") tag_column = v;
+      else if (a == "--space") {
+        if (!suspect_space_from_string(v, &find.suspects.space))
+          return usage_error("--space expects features, map or both, got '" + v + "'");
+      } else if (a == "--k") find.suspects.k = size_t(number(1, 1000));
+      else if (a == "--eps") find.groups.eps = number(0, 1e12);
+      else if (a == "--min-points") find.groups.min_points = size_t(number(2, 100000));
+      else if (a == "--rows") rows = size_t(number(1, 100000));
+      else if (a == "--dims") fit.dims = int(number(2, 3));
+      else if (a == "--perplexity") fit.perplexity = number(1e-9, 1e9);
+      else if (a == "--iterations") fit.iterations = int64_t(number(1, 1e9));
+      else if (a == "--seed") fit.seed = uint64_t(number(0, 1e18));
+      else return usage_error("unknown option " + a);
+    } catch (const std::invalid_argument& e) {
+      return usage_error(e.what());
+    }
+  }
+  if (input.empty()) return usage_error("which collection? (kith report ITEMS -o report.html)");
+  if (output.empty()) return usage_error("where to? (-o report.html)");
+  std::error_code ec;
+  if (std::filesystem::exists(output, ec) && std::filesystem::equivalent(input, output, ec))
+    return usage_error("the output '" + output + "' is the input; choose another file");
+  const bool is_session = input.size() > 5 && input.compare(input.size() - 5, 5, ".kith") == 0;
+
+  Collection items;
+  std::vector<Judgment> judgments;
+  std::optional<MapCheckpoint> saved;
+  try {
+    if (is_session) {
+      SessionOpenOptions so;
+      so.read_only = true;
+      const auto store = SessionStore::open(input, so);
+      items = store->collection();
+      judgments = store->judgments();
+      saved = store->last_checkpoint();
+      const SessionSettings settings = store->settings();
+      fit.dims = settings.dims;
+      fit.perplexity = settings.perplexity;
+      fit.seed = settings.seed;
+      fit.dof = settings.dof;
+      fit.theta = settings.theta;
+    } else {
+      items = load_collection(input);
+    }
+  } catch (const LoadError& e) {
+    std::fprintf(stderr, "kith report: %s\n", e.problem().str().c_str());
+    return kExitBadInput;
+  } catch (const SessionError& e) {
+    std::fprintf(stderr, "kith report: %s: %s\n", input.c_str(), e.what());
+    return kExitBadInput;
+  }
+  if (items.features.cols() == 0) {
+    std::fprintf(stderr, "kith report: %s: no feature columns, so there is no map to fit\n", input.c_str());
+    return kExitBadInput;
+  }
+  try {
+    validate_judgments(judgments, items.size());
+  } catch (const JudgmentError& e) {
+    std::fprintf(stderr, "kith report: %s: %s\n", input.c_str(), e.what());
+    return kExitBadInput;
+  }
+  if (saved && (size_t(saved->positions.rows()) != items.size() || saved->positions.cols() != fit.dims ||
+                !saved->positions.allFinite())) {
+    std::fprintf(stderr, "kith report: %s: the saved map does not fit the collection (%ld x %ld for %zu items); "
+                 "using the map fitted from the features\n", input.c_str(), long(saved->positions.rows()),
+                 long(saved->positions.cols()), items.size());
+    saved.reset();
+  }
+  const std::vector<std::string>* tags = nullptr;
+  std::string tag_name;
+  for (const TagColumn& t : items.tags)
+    if (tag_column.empty() ? tags == nullptr : t.name == tag_column) {
+      tags = &t.values;
+      tag_name = t.name;
+    }
+  if (!tag_column.empty() && !tags) {
+    std::string names;
+    for (const TagColumn& t : items.tags) names += (names.empty() ? "" : ", ") + t.name;
+    return usage_error("no tag column '" + tag_column + "' in " + input + " (tag columns: " +
+                       (names.empty() ? "none" : names) + ")");
+  }
+  std::string error;
+  if (!fit.IsValid(&error, items.size())) return usage_error(error);
+  if (!find.IsValid(&error)) return usage_error(error);
+
+  std::fprintf(stderr, "kith report: fitting the map of %zu items from their features...\n", items.size());
+  FitResult fitted;
+  try {
+    fitted = fit_map(items.features, fit);
+  } catch (const DivergenceError& e) {
+    std::fprintf(stderr, "kith report: the fit diverged: %s\n", e.what());
+    return kExitInternal;
+  } catch (const std::invalid_argument& e) {
+    std::fprintf(stderr, "kith report: %s: %s\n", input.c_str(), e.what());
+    return kExitBadInput;
+  }
+  // The map reported: the session's saved map, else the fitted one (which is also the reference).
+  const Points& map = saved ? saved->positions : fitted.map;
+  const MapFindings found = find_structure(fitted.features, map, tags, find);
+  const MapHealth health = measure_health(fitted.features, map);
+  double kl = fitted.summary.kl;
+  if (saved) {
+    NeighbourTermOptions no;
+    no.dof = fit.dof;
+    no.theta = fit.theta;
+    kl = NeighbourTerm(fitted.p, no).evaluate(map, nullptr);
+  }
+  size_t active = 0, agreeing = 0;
+  for (const Judgment& j : judgments) {
+    if (j.retracted) continue;
+    ++active;
+    if (tste_probability(map, j.anchor, j.nearer, j.farther, fit.dof) > 0.5) ++agreeing;
+  }
+  std::optional<Displacement> moved;
+  std::vector<std::string> moved_by;
+  if (saved) {
+    moved = measure_displacement(fitted.map, map);
+    moved_by.assign(items.size(), "");
+    for (size_t r = 0; r < std::min(rows, moved->ranking.size()); ++r) {
+      const int32_t i = moved->ranking[r];
+      std::string text;
+      for (const JudgmentPull& p : judgments_moving(i, map, *moved, judgments, 3, fit.dof)) {
+        if (p.pull <= 0.0) break;
+        const Judgment& j = judgments[p.index];
+        text += (text.empty() ? "" : "; ") + items.ids[size_t(j.anchor)] + " nearer " + items.ids[size_t(j.nearer)] +
+                " than " + items.ids[size_t(j.farther)] + (j.person.empty() ? "" : " (" + j.person + ")");
+      }
+      moved_by[size_t(i)] = text.empty() ? "-" : text;
+    }
+  }
+
+  ReportContent c;
+  c.title = std::filesystem::path(input).filename().string();
+  c.source = input;
+  c.ids = items.ids;
+  c.tag_name = tag_name;
+  if (tags) c.tags = *tags;
+  c.view = fit.dims == 2 ? map : fit_pca(map, 2).project(map);
+  c.figures = {{"KL divergence", fixed(kl, 4)},
+               {"trustworthiness (k 5)", fixed(health.trustworthiness, 4)},
+               {"neighbour recall (k 10)", fixed(health.neighbour_recall, 4)},
+               {"items", std::to_string(items.size())},
+               {"features", std::to_string(items.features.cols())},
+               {"map", std::to_string(fit.dims) + "-D, perplexity " + fixed(fit.perplexity, 1) + ", " +
+                           std::to_string(fitted.summary.iterations) + " iterations, seed " + std::to_string(fit.seed)},
+               {"fit time", fixed(fitted.summary.seconds, 1) + " s"}};
+  if (is_session) {
+    c.figures.push_back({"map shown", saved ? "the session's last saved map (iteration " +
+                                                  std::to_string(saved->iteration) + ")"
+                                            : "fitted from the features (the session has no saved map)"});
+    c.figures.push_back({"judgments", std::to_string(active) + " active of " + std::to_string(judgments.size())});
+    if (active > 0)
+      c.figures.push_back({"judgment agreement", fixed(double(agreeing) / double(active), 4)});
+  }
+  if (health.sample < items.size())
+    c.figures.push_back({"health measured on", std::to_string(health.sample) + " sampled items"});
+  if (found.have_suspects) c.suspects = &found.suspects;
+  c.groups = &found.groups;
+  c.kept = found.kept;
+  c.list_rows = rows;
+  if (moved) {
+    c.displacement = &*moved;
+    c.moved_by = moved_by;
+  }
+
+  const std::string tmp = output + ".part";
+  {
+    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
+    out << report_html(c);
+    if (!out) {
+      std::fprintf(stderr, "kith report: could not write %s\n", tmp.c_str());
+      std::filesystem::remove(tmp, ec);
+      return kExitBadInput;
+    }
+  }
+  std::filesystem::rename(tmp, output, ec);
+  if (ec) {
+    std::fprintf(stderr, "kith report: could not write %s: %s\n", output.c_str(), ec.message().c_str());
+    return kExitBadInput;
+  }
+  std::printf("%s\n%s\n%s\nwrote %s\n", fitted.summary.BriefReport().c_str(), found.groups.summary().c_str(),
+              found.have_suspects ? found.suspects.summary().c_str() : "no tag column, so no suspects",
+              output.c_str());
+  return kExitOk;
+}
+
+}  // namespace kith

@@ -1,0 +1,359 @@
+// The HTML report page (see report_page.h).
+// [SECTION] text helpers  [SECTION] pictures  [SECTION] page
+#include "viewer/cli/report_page.h"
+
+#include <stb_image_write.h>
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstdio>
+#include <map>
+#include <sstream>
+
+namespace kith {
+
+// ==== [SECTION] text helpers ================================================
+
+std::string html_escape(const std::string& text) {
+  std::string out;
+  out.reserve(text.size());
+  for (char c : text) {
+    switch (c) {
+      case '&': out += "&amp;"; break;
+      case '<': out += "&lt;"; break;
+      case '>': out += "&gt;"; break;
+      case '"': out += "&quot;"; break;
+      case '\'': out += "&#39;"; break;
+      default: out += c;
+    }
+  }
+  return out;
+}
+
+std::string base64_encode(const std::string& bytes) {
+  static const char* k = "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
+  std::string out;
+  out.reserve((bytes.size() + 2) / 3 * 4);
+  size_t i = 0;
+  for (; i + 2 < bytes.size(); i += 3) {
+    const uint32_t v = (uint32_t(uint8_t(bytes[i])) << 16) | (uint32_t(uint8_t(bytes[i + 1])) << 8) | uint8_t(bytes[i + 2]);
+    out += k[v >> 18];
+    out += k[(v >> 12) & 63];
+    out += k[(v >> 6) & 63];
+    out += k[v & 63];
+  }
+  if (i + 1 == bytes.size()) {
+    const uint32_t v = uint32_t(uint8_t(bytes[i])) << 16;
+    out += k[v >> 18];
+    out += k[(v >> 12) & 63];
+    out += "==";
+  } else if (i + 2 == bytes.size()) {
+    const uint32_t v = (uint32_t(uint8_t(bytes[i])) << 16) | (uint32_t(uint8_t(bytes[i + 1])) << 8);
+    out += k[v >> 18];
+    out += k[(v >> 12) & 63];
+    out += k[(v >> 6) & 63];
+    out += '=';
+  }
+  return out;
+}
+
+std::string external_reference(const std::string& html) {
+  std::string lower = html;
+  std::transform(lower.begin(), lower.end(), lower.begin(), [](unsigned char c) { return char(std::tolower(c)); });
+  // Attributes that load something must hold inline data or a fragment.
+  for (const char* attr : {"src=", "href=", "srcset=", "poster=", "data=", "action="}) {
+    for (size_t at = lower.find(attr); at != std::string::npos; at = lower.find(attr, at + 1)) {
+      if (at > 0 && (std::isalnum(static_cast<unsigned char>(lower[at - 1])) || lower[at - 1] == '-')) continue;
+      size_t v = at + std::string(attr).size();
+      if (v < lower.size() && (lower[v] == '"' || lower[v] == '\'')) ++v;
+      if (lower.compare(v, 5, "data:") == 0 || lower.compare(v, 1, "#") == 0) continue;
+      return html.substr(at, std::min<size_t>(60, html.size() - at));
+    }
+  }
+  for (const char* bad : {"<link", "@import", "url(http", "url(//", "url(\"http", "url('http", "<iframe", "<object",
+                          "<embed", "<script"}) {
+    const size_t at = lower.find(bad);
+    if (at != std::string::npos) return html.substr(at, std::min<size_t>(60, html.size() - at));
+  }
+  return "";
+}
+
+namespace {
+
+std::string fmt(const char* format, double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, format, v);
+  return buf;
+}
+
+// ==== [SECTION] pictures ====================================================
+
+using Rgb = std::array<uint8_t, 3>;
+// Okabe & Ito's colour-blind-safe palette (without black, kept for rings), then two quieter
+// colours of our own for collections with more tags; the rest share a neutral grey.
+const Rgb kPalette[] = {{0xE6, 0x9F, 0x00}, {0x56, 0xB4, 0xE9}, {0x00, 0x9E, 0x73}, {0xF0, 0xE4, 0x42},
+                        {0x00, 0x72, 0xB2}, {0xD5, 0x5E, 0x00}, {0xCC, 0x79, 0xA7}, {0x8C, 0x6D, 0x46},
+                        {0x6F, 0x7F, 0x9E}, {0x9C, 0xB8, 0x6A}};
+constexpr size_t kPaletteSize = sizeof kPalette / sizeof kPalette[0];
+const Rgb kOther = {0xB4, 0xB0, 0xA8};
+const Rgb kPaper = {0xFB, 0xF9, 0xF4};
+const Rgb kInk = {0x22, 0x22, 0x22};
+
+std::string hex(const Rgb& c) {
+  char buf[8];
+  std::snprintf(buf, sizeof buf, "#%02x%02x%02x", c[0], c[1], c[2]);
+  return buf;
+}
+
+class Raster {
+ public:
+  explicit Raster(int size) : size_(size), pixels_(size_t(size) * size_t(size) * 3) {
+    for (size_t i = 0; i < pixels_.size(); i += 3) std::copy(kPaper.begin(), kPaper.end(), pixels_.begin() + long(i));
+  }
+  // A disc with a soft one-pixel edge; `ring` > 0 draws only an annulus of that width.
+  void disc(double cx, double cy, double r, const Rgb& c, double ring = 0.0) {
+    const int x0 = std::max(0, int(std::floor(cx - r - 1))), x1 = std::min(size_ - 1, int(std::ceil(cx + r + 1)));
+    const int y0 = std::max(0, int(std::floor(cy - r - 1))), y1 = std::min(size_ - 1, int(std::ceil(cy + r + 1)));
+    for (int y = y0; y <= y1; ++y)
+      for (int x = x0; x <= x1; ++x) {
+        const double d = std::hypot(x + 0.5 - cx, y + 0.5 - cy);
+        double a = std::clamp(r + 0.5 - d, 0.0, 1.0);
+        if (ring > 0.0) a = std::min(a, std::clamp(d - (r - ring) + 0.5, 0.0, 1.0));
+        if (a <= 0.0) continue;
+        uint8_t* p = &pixels_[(size_t(y) * size_t(size_) + size_t(x)) * 3];
+        for (int k = 0; k < 3; ++k) p[k] = uint8_t(std::lround(p[k] * (1 - a) + c[size_t(k)] * a));
+      }
+  }
+  std::string png() const {
+    std::string out;
+    stbi_write_png_to_func(
+        [](void* context, void* data, int size) { static_cast<std::string*>(context)->append((const char*)data, size_t(size)); },
+        &out, size_, size_, 3, pixels_.data(), size_ * 3);
+    return out;
+  }
+
+ private:
+  int size_;
+  std::vector<uint8_t> pixels_;
+};
+
+// Pixel positions of the view, fitted into the square with a margin, aspect kept, y up.
+std::vector<std::array<double, 2>> to_pixels(const Points& view, int size) {
+  std::vector<std::array<double, 2>> out(size_t(view.rows()));
+  if (view.rows() == 0) return out;
+  const Eigen::RowVectorXd lo = view.colwise().minCoeff(), hi = view.colwise().maxCoeff();
+  const double span = std::max({hi[0] - lo[0], hi[1] - lo[1], 1e-12});
+  const double margin = 0.05 * size, scale = (size - 2 * margin) / span;
+  const double ox = margin + 0.5 * ((size - 2 * margin) - (hi[0] - lo[0]) * scale);
+  const double oy = margin + 0.5 * ((size - 2 * margin) - (hi[1] - lo[1]) * scale);
+  for (Eigen::Index i = 0; i < view.rows(); ++i)
+    out[size_t(i)] = {ox + (view(i, 0) - lo[0]) * scale, size - (oy + (view(i, 1) - lo[1]) * scale)};
+  return out;
+}
+
+double disc_radius(size_t n, int size) {
+  // Larger discs for small collections, never below 1.2 px.
+  return std::clamp(0.9 * size / std::sqrt(double(std::max<size_t>(n, 1))) * 0.35, 1.2, 5.0);
+}
+
+// An inline SVG holding the PNG and text labels.
+std::string picture(const Raster& raster, int size, const std::string& caption,
+                    const std::vector<std::pair<std::array<double, 2>, std::string>>& labels) {
+  std::ostringstream s;
+  s << "<figure><svg width='" << size << "' height='" << size << "' viewBox='0 0 "
+    << size << ' ' << size << "' role='img'><image width='" << size << "' height='" << size
+    << "' href='data:image/png;base64," << base64_encode(raster.png()) << "'/>";
+  for (const auto& [at, text] : labels)
+    s << "<text x='" << fmt("%.1f", at[0]) << "' y='" << fmt("%.1f", at[1]) << "' class='lbl'>" << html_escape(text)
+      << "</text>";
+  s << "</svg><figcaption>" << caption << "</figcaption></figure>\n";
+  return s.str();
+}
+
+// ==== [SECTION] page ========================================================
+
+const char* kStyle = R"(
+body{font:15px/1.45 system-ui,sans-serif;background:#f6f3ec;color:#2b2b2b;margin:0;padding:24px 32px}
+h1{font-weight:600;margin:0 0 4px}h2{font-weight:600;margin:28px 0 8px;border-bottom:1px solid #d8d2c4}
+p.note{color:#6b665c;margin:2px 0 12px}
+table{border-collapse:collapse;margin:4px 0 8px}td,th{padding:3px 10px;text-align:left;vertical-align:top}
+th{font-weight:600;border-bottom:1px solid #cfc8b8}tr:nth-child(even) td{background:#efebe1}
+td.num{text-align:right;font-variant-numeric:tabular-nums}
+.pics{display:flex;flex-wrap:wrap;gap:18px}figure{margin:0;background:#fbf9f4;border:1px solid #ddd6c6;padding:6px}
+figcaption{font-size:13px;color:#5a554b;margin-top:4px;max-width:560px}
+.sw{display:inline-block;width:11px;height:11px;border-radius:50%;margin:0 4px 0 10px;vertical-align:-1px}
+.lbl{font:bold 14px system-ui,sans-serif;fill:#222;paint-order:stroke;stroke:#fbf9f4;stroke-width:3px}
+.bar{display:inline-block;height:9px;background:#b8683a;vertical-align:0}
+)";
+
+}  // namespace
+
+std::string report_html(const ReportContent& c) {
+  const size_t n = c.ids.size();
+  const int size = c.picture_size;
+  const bool have_tags = c.tags.size() == n && n > 0;
+  std::ostringstream h;
+  h << "<!DOCTYPE html>\n<html lang='en'><head><meta charset='utf-8'><title>kith report: " << html_escape(c.title)
+    << "</title><style>" << kStyle << "</style></head><body>\n";
+  h << "<h1 id='kith-report'>" << html_escape(c.title) << "</h1><p class='note'>" << n << " items from "
+    << html_escape(c.source) << (have_tags ? "; tag column '" + html_escape(c.tag_name) + "'" : std::string())
+    << "</p>\n";
+
+  // Health and fit figures.
+  h << "<h2>Health</h2><table id='health'>";
+  for (const auto& [name, value] : c.figures)
+    h << "<tr><th>" << html_escape(name) << "</th><td class='num'>" << html_escape(value) << "</td></tr>";
+  h << "</table>\n";
+
+  // Pictures.
+  const auto px = to_pixels(c.view, size);
+  const double r = disc_radius(n, size);
+  std::map<std::string, size_t> tag_count;
+  if (have_tags)
+    for (const auto& t : c.tags)
+      if (!t.empty()) ++tag_count[t];
+  std::vector<std::pair<std::string, size_t>> tag_order(tag_count.begin(), tag_count.end());
+  std::stable_sort(tag_order.begin(), tag_order.end(), [](const auto& a, const auto& b) { return a.second > b.second; });
+  std::map<std::string, Rgb> tag_colour;
+  for (size_t i = 0; i < tag_order.size(); ++i) tag_colour[tag_order[i].first] = i < kPaletteSize ? kPalette[i] : kOther;
+  const size_t ringed = c.suspects ? std::min(c.list_rows, c.suspects->ranking.size()) : 0;
+
+  h << "<h2>The map</h2><p class='note'>Seen along the map's two widest directions.";
+  if (have_tags) {
+    h << " Tags:";
+    for (size_t i = 0; i < tag_order.size() && i < kPaletteSize; ++i)
+      h << "<span class='sw' style='background:" << hex(kPalette[i]) << "'></span>" << html_escape(tag_order[i].first);
+    if (tag_order.size() > kPaletteSize) h << "<span class='sw' style='background:" << hex(kOther) << "'></span>others";
+  }
+  h << "</p><div class='pics'>\n";
+  {
+    Raster pic(size);
+    for (size_t i = 0; i < n; ++i) {
+      const auto it = have_tags ? tag_colour.find(c.tags[i]) : tag_colour.end();
+      pic.disc(px[i][0], px[i][1], r, it == tag_colour.end() ? kOther : it->second);
+    }
+    std::vector<std::pair<std::array<double, 2>, std::string>> labels;
+    for (size_t s = 0; s < ringed; ++s) {
+      const size_t i = size_t(c.suspects->ranking[s]);
+      const auto it = have_tags ? tag_colour.find(c.tags[i]) : tag_colour.end();
+      pic.disc(px[i][0], px[i][1], r, it == tag_colour.end() ? kOther : it->second);  // on top of its crowd
+      pic.disc(px[i][0], px[i][1], r + 3.5, kInk, 1.6);
+    }
+    h << picture(pic, size,
+                 have_tags ? "Coloured by tag; rings mark the " + std::to_string(ringed) + " strongest suspects."
+                           : "The map (no tag column).",
+                 labels);
+  }
+  if (c.groups) {
+    Raster pic(size);
+    for (size_t i = 0; i < n; ++i) {
+      const int32_t g = c.groups->label[i];
+      pic.disc(px[i][0], px[i][1], r, g < 0 ? kOther : kPalette[size_t(g) % kPaletteSize]);
+    }
+    std::vector<std::pair<std::array<double, 2>, std::string>> labels;
+    for (size_t g = 0; g < c.groups->groups.size(); ++g) {
+      double x = 0, y = 0;
+      for (int32_t i : c.groups->groups[g].members) {
+        x += px[size_t(i)][0];
+        y += px[size_t(i)][1];
+      }
+      const double m = double(c.groups->groups[g].members.size());
+      labels.push_back({{x / m - 5, y / m + 5}, std::to_string(g + 1)});
+    }
+    h << picture(pic, size, "Coloured by group (numbers as in the table); grey: in no group.", labels);
+  }
+  if (c.displacement) {
+    Raster pic(size);
+    const auto& d = c.displacement->distance;
+    const double top = d.empty() ? 1.0 : std::max(1e-12, d[size_t(c.displacement->ranking.front())]);
+    std::vector<size_t> order(n);
+    for (size_t i = 0; i < n; ++i) order[i] = i;
+    std::sort(order.begin(), order.end(), [&](size_t a, size_t b) { return d[a] < d[b]; });  // most moved on top
+    for (size_t i : order) {
+      const double t = std::sqrt(std::clamp(d[i] / top, 0.0, 1.0));
+      const Rgb col = {uint8_t(std::lround(0xE4 + (0x8A - 0xE4) * t)), uint8_t(std::lround(0xDF + (0x2E - 0xDF) * t)),
+                       uint8_t(std::lround(0xD4 + (0x0E - 0xD4) * t))};
+      pic.disc(px[i][0], px[i][1], r, col);
+    }
+    h << picture(pic, size, "Coloured by how far judgments moved each item (darker: further).", {});
+  }
+  h << "</div>\n";
+
+  // Suspects.
+  if (c.suspects) {
+    const SuspectScores& s = *c.suspects;
+    h << "<h2>Suspects</h2><p class='note'>Tagged items whose nearest neighbours mostly carry another tag. "
+      << html_escape(s.summary()) << ".</p><table id='suspects'><tr><th>#</th><th>item</th><th>tag</th><th>score</th>"
+      << "<th>neighbours lean to</th><th>features</th><th>map</th></tr>";
+    for (size_t k = 0; k < std::min(c.list_rows, s.ranking.size()); ++k) {
+      const size_t i = size_t(s.ranking[k]);
+      auto num = [](double v) { return std::isnan(v) ? std::string("-") : fmt("%.2f", v); };
+      h << "<tr><td class='num'>" << k + 1 << "</td><td>" << html_escape(c.ids[i]) << "</td><td>"
+        << html_escape(have_tags ? c.tags[i] : "") << "</td><td class='num'>" << num(s.score[i])
+        << " <span class='bar' style='width:" << int(std::lround(40 * (std::isnan(s.score[i]) ? 0 : s.score[i])))
+        << "px'></span></td><td>" << html_escape(s.likely_tag[i]) << " (" << fmt("%.0f%%", 100 * s.likely_share[i])
+        << ")</td><td class='num'>" << num(s.feature_score[i]) << "</td><td class='num'>" << num(s.map_score[i])
+        << "</td></tr>";
+    }
+    h << "</table>\n";
+  }
+
+  // Groups.
+  if (c.groups) {
+    const Grouping& g = *c.groups;
+    h << "<h2>Groups</h2><p class='note'>" << html_escape(g.summary())
+      << ". Representatives are the members closest to the group's centre.</p><table id='groups'><tr><th>group</th>"
+      << "<th>size</th><th>most common tags</th><th>purity</th><th>representatives</th></tr>";
+    for (size_t k = 0; k < g.groups.size(); ++k) {
+      const Group& grp = g.groups[k];
+      h << "<tr><td class='num'><span class='sw' style='background:" << hex(kPalette[k % kPaletteSize]) << "'></span>"
+        << k + 1 << "</td><td class='num'>" << grp.size << "</td><td>";
+      for (size_t t = 0; t < grp.tags.size(); ++t)
+        h << (t ? ", " : "") << html_escape(grp.tags[t].tag) << " " << fmt("%.0f%%", 100 * grp.tags[t].share);
+      h << "</td><td class='num'>" << (grp.tags.empty() ? std::string("-") : fmt("%.2f", grp.purity)) << "</td><td>";
+      for (size_t t = 0; t < grp.representatives.size(); ++t)
+        h << (t ? ", " : "") << html_escape(c.ids[size_t(grp.representatives[t])]);
+      h << "</td></tr>";
+    }
+    h << "</table>\n";
+  }
+
+  // Neighbourhoods.
+  if (c.kept.size() == n && n > 0) {
+    double mean = 0;
+    for (double v : c.kept) mean += v;
+    mean /= double(n);
+    std::vector<size_t> order(n);
+    for (size_t i = 0; i < n; ++i) order[i] = i;
+    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return c.kept[a] < c.kept[b]; });
+    h << "<h2>Neighbourhoods the map keeps worst</h2><p class='note'>Share of each item's nearest neighbours in the "
+         "features that are also its nearest in the map; the mean over all items is "
+      << fmt("%.3f", mean) << ".</p><table id='kept'><tr><th>item</th><th>tag</th><th>kept</th></tr>";
+    for (size_t k = 0; k < std::min(c.list_rows, n); ++k)
+      h << "<tr><td>" << html_escape(c.ids[order[k]]) << "</td><td>" << html_escape(have_tags ? c.tags[order[k]] : "")
+        << "</td><td class='num'>" << fmt("%.2f", c.kept[order[k]]) << "</td></tr>";
+    h << "</table>\n";
+  }
+
+  // Displacement.
+  if (c.displacement) {
+    const Displacement& d = *c.displacement;
+    h << "<h2>What the judgments moved</h2><p class='note'>Distance between each item's place in the map fitted "
+         "from the features alone (aligned by rotation, scale and shift) and its place now; alignment rms "
+      << fmt("%.3g", d.alignment.rms) << ".</p><table id='moved'><tr><th>item</th><th>tag</th><th>moved</th>"
+      << (c.moved_by.size() == n ? "<th>judgments pulling it that way most</th>" : "") << "</tr>";
+    for (size_t k = 0; k < std::min(c.list_rows, d.ranking.size()); ++k) {
+      const size_t i = size_t(d.ranking[k]);
+      h << "<tr><td>" << html_escape(c.ids[i]) << "</td><td>" << html_escape(have_tags ? c.tags[i] : "")
+        << "</td><td class='num'>" << fmt("%.3g", d.distance[i]) << "</td>";
+      if (c.moved_by.size() == n) h << "<td>" << html_escape(c.moved_by[i]) << "</td>";
+      h << "</tr>";
+    }
+    h << "</table>\n";
+  }
+  h << "<p class='note'>Written by kith.</p></body></html>\n";
+  return h.str();
+}
+
+}  // namespace kith

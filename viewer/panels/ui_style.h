@@ -1,0 +1,24 @@
+// kith's look for Dear ImGui panels: the paper (or night) palette, soft corners, DejaVu Sans when
+// the system has it (Debian's fonts-dejavu-core), else ImGui's built-in font. Also the legend
+// box drawn over the map, shared by the window and the windowless PNG path.
+// Call with the ImGui context current, from the thread that owns it.
+#pragma once
+#include <string>
+
+#include "viewer/scene/map_view.h"
+
+namespace kith {
+
+void apply_ui_style(bool dark);
+void load_ui_font(float pixels);
+
+// The title and colour legend in the top-left corner. Returns the tag value clicked, if any
+// (column, value) so the caller can select those items; column -1 when nothing was clicked.
+struct LegendClick {
+  int column = -1;
+  std::string value;
+};
+LegendClick draw_legend(const MapView& view, const std::string& title, const std::string& subtitle, bool interactive,
+                        float x = 12.f, float y = 12.f);
+
+}  // namespace kith

@@ -1,0 +1,570 @@
+#include "viewer/scene/map_view.h"
+
+#include <stb_image.h>
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <numeric>
+#include <random>
+
+#include "viewer/scene/picking.h"
+
+namespace kith {
+
+// ============================================================================ [options]
+
+std::string ViewOptions::IsValid() const {
+  if (!(point_size >= 0.f && point_size <= 64.f)) return "point size must be within 0..64 pixels";
+  if (!(fade >= 0.f && fade <= 1.f)) return "fade must be within 0..1";
+  if (card_limit < 0 || card_limit > Renderer::kAtlasSlots / 2) return "card limit must be within 0..32";
+  if (!(card_size >= 16.f && card_size <= 240.f)) return "card size must be within 16..240 pixels";
+  return "";
+}
+
+bool load_picture(const std::string& path, Picture* out) {
+  int w = 0, h = 0, channels = 0;
+  unsigned char* data = stbi_load(path.c_str(), &w, &h, &channels, 4);
+  if (!data) {
+    *out = Picture{};
+    return false;
+  }
+  out->width = w;
+  out->height = h;
+  out->rgba.assign(data, data + size_t(w) * h * 4);
+  stbi_image_free(data);
+  return true;
+}
+
+MapView::MapView(const Collection& collection, Renderer& renderer) : collection_(collection), renderer_(renderer) {
+  selection_.resize(collection.size());
+  judgment_count_.assign(collection.size(), 0);
+  slot_item_.assign(Renderer::kAtlasSlots, -1);
+  slot_used_.assign(Renderer::kAtlasSlots, -1);
+  if (collection.tags.empty()) options_.colour_by.kind = ColourKind::kPlain;
+  else options_.colour_by.tag_column = default_colour_column(collection);
+}
+
+int default_colour_column(const Collection& collection) {
+  int best = -1, best_distinct = 0;
+  int fallback = -1;
+  double fallback_repeat = -1.0;
+  for (size_t t = 0; t < collection.tags.size(); ++t) {
+    std::unordered_map<std::string, int> distinct;
+    for (const auto& v : collection.tags[t].values)
+      if (!v.empty()) ++distinct[v];
+    const int d = int(distinct.size());
+    if (d >= 2 && d <= 12 && (best < 0 || d < best_distinct)) best = int(t), best_distinct = d;
+    const double repeat = d > 0 ? double(collection.size()) / d : 0.0;
+    if (repeat > fallback_repeat) fallback = int(t), fallback_repeat = repeat;
+  }
+  return best >= 0 ? best : fallback;
+}
+
+void MapView::set_options(const ViewOptions& o) {
+  const bool colours = o.colour_by.kind != options_.colour_by.kind ||
+                       o.colour_by.tag_column != options_.colour_by.tag_column || o.dark != options_.dark;
+  options_ = o;
+  if (options_.colour_by.kind == ColourKind::kTag && options_.colour_by.tag_column == -1)
+    options_.colour_by.tag_column = default_colour_column(collection_);
+  if (options_.colour_by.kind == ColourKind::kTag &&
+      (options_.colour_by.tag_column < 0 || size_t(options_.colour_by.tag_column) >= collection_.tags.size()))
+    options_.colour_by.kind = ColourKind::kPlain;
+  palette_ = options_.dark ? Palette::night() : Palette::paper();
+  if (colours) dirty_colours_ = dirty_grid_ = dirty_lines_ = true;
+  dirty_points_ = true;
+}
+
+// ============================================================================ [map]
+
+void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
+  if (!s) return;
+  const bool first = !snapshot_;
+  snapshot_ = std::move(s);
+  const Points& p = snapshot_->positions;
+  const size_t n = std::min<size_t>(size_t(p.rows()), collection_.size());
+  positions_.resize(n);
+  for (size_t i = 0; i < n; ++i)
+    positions_[i] = glm::vec3(float(p(Eigen::Index(i), 0)), p.cols() > 1 ? float(p(Eigen::Index(i), 1)) : 0.f,
+                              p.cols() > 2 ? float(p(Eigen::Index(i), 2)) : 0.f);
+  if (drag_item_ >= 0 && size_t(drag_item_) < n) positions_[drag_item_] = drag_where_;
+  pinned_.assign(n, 0);
+  for (size_t i = 0; i < n && i < snapshot_->pinned.size(); ++i) pinned_[i] = snapshot_->pinned[i];
+  if (start_positions_.size() != n) start_positions_ = positions_;
+  update_bounds();
+  if (first) {
+    fit_all(false);
+  } else if (following_ && camera_.framing_changes() == framing_at_fit_ && drag_item_ < 0) {
+    // Until someone pans, zooms or focuses, the camera keeps the whole map in view as it grows
+    // out of its tiny start (or shrinks well inside the frame).
+    const bool outgrown = glm::any(glm::lessThan(lo_, fitted_lo_)) || glm::any(glm::greaterThan(hi_, fitted_hi_));
+    const bool shrunk = glm::length(hi_ - lo_) < 0.6f * glm::length(fitted_hi_ - fitted_lo_);
+    if (outgrown || shrunk) fit_all(true, false);
+  }
+  dirty_points_ = dirty_lines_ = true;
+  if (options_.colour_by.kind == ColourKind::kDisplacement) dirty_colours_ = true;
+  map_still_seconds_ = 0.f;
+}
+
+void MapView::note_frame_time(float seconds) {
+  if (options_.moving_budget == 0 || !(seconds > 0.f)) return;
+  smoothed_frame_ = smoothed_frame_ == 0.f ? seconds : 0.8f * smoothed_frame_ + 0.2f * seconds;
+  if (still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f) return;  // at rest: every item is drawn anyway
+  // Scale the sample toward the frame-time target: the drawing cost is roughly linear in it.
+  const float ratio = std::clamp(options_.target_frame_seconds / smoothed_frame_, 0.7f, 1.15f);
+  const size_t cap = std::min(options_.moving_budget, std::max<size_t>(positions_.size(), 1));
+  const size_t floor = std::min<size_t>(5000, cap);
+  budget_ = std::clamp(size_t(float(budget_ == 0 ? cap : budget_) * ratio), floor, cap);
+}
+
+bool MapView::pinned(int item) const { return item >= 0 && size_t(item) < pinned_.size() && pinned_[item]; }
+
+void MapView::set_judgments(std::vector<Judgment> judgments) {
+  judgments_ = std::move(judgments);
+  judgment_count_.assign(collection_.size(), 0);
+  for (const auto& j : judgments_) {
+    if (j.retracted) continue;
+    for (int32_t i : {j.anchor, j.nearer, j.farther})
+      if (i >= 0 && size_t(i) < judgment_count_.size()) ++judgment_count_[i];
+  }
+  dirty_lines_ = true;
+  if (options_.colour_by.kind == ColourKind::kJudgments) dirty_colours_ = true;
+}
+
+void MapView::update_bounds() {
+  if (positions_.empty()) return;
+  glm::vec3 lo(std::numeric_limits<float>::max()), hi(-std::numeric_limits<float>::max());
+  for (const auto& p : positions_) {
+    if (!std::isfinite(p.x) || !std::isfinite(p.y) || !std::isfinite(p.z)) continue;
+    lo = glm::min(lo, p);
+    hi = glm::max(hi, p);
+  }
+  if (lo.x > hi.x) return;
+  lo_ = lo;
+  hi_ = hi;
+  // Rebuild the floor only when the map has outgrown it or shrunk well inside it.
+  const float size = glm::length(hi - lo) + 1e-6f;
+  const float grid_size = glm::length(grid_hi_ - grid_lo_);
+  if (!have_bounds_ || glm::any(glm::lessThan(lo, grid_lo_)) || glm::any(glm::greaterThan(hi, grid_hi_)) ||
+      grid_size > 2.5f * size || lo.y < grid_floor_y_)
+    dirty_grid_ = true;
+  have_bounds_ = true;
+}
+
+// ============================================================================ [camera]
+
+void MapView::fit_all(bool smooth, bool by_person) {
+  if (by_person || framing_at_fit_ == camera_.framing_changes()) following_ = true;
+  framing_at_fit_ = camera_.framing_changes();
+  // A growing map is refitted (smoothly) as soon as it leaves the box framed now; the frame's own
+  // margin (6 %) keeps it on screen meanwhile.
+  fitted_lo_ = lo_;
+  fitted_hi_ = hi_;
+  if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
+  camera_.fit_points(positions_, smooth);
+}
+
+void MapView::set_centre_offset(float ndc_x) {
+  const float before = camera_.centre_offset();
+  camera_.set_centre_offset(ndc_x);
+  if (camera_.centre_offset() != before && following_ && camera_.framing_changes() == framing_at_fit_ && have_bounds_)
+    fit_all(true, false);
+}
+
+void MapView::focus_selection() {
+  if (selection_.empty()) return fit_all(true);
+  following_ = false;
+  glm::vec3 lo(std::numeric_limits<float>::max()), hi(-std::numeric_limits<float>::max());
+  for (int i : selection_.items())
+    if (size_t(i) < positions_.size()) {
+      lo = glm::min(lo, positions_[i]);
+      hi = glm::max(hi, positions_[i]);
+    }
+  // A lone item: frame a neighbourhood a tenth of the map across.
+  const glm::vec3 pad(std::max(glm::length(hi_ - lo_) * 0.05f, 1e-3f));
+  std::vector<glm::vec3> pts;
+  for (int i : selection_.items())
+    if (size_t(i) < positions_.size()) pts.push_back(positions_[i]);
+  pts.push_back(lo - pad);
+  pts.push_back(hi + pad);
+  camera_.fit_points(pts, true);
+}
+
+// ============================================================================ [pointing]
+
+float MapView::pick_radius() const {
+  return std::max(6.f, (options_.point_size > 0 ? options_.point_size : auto_point_size()) * 0.75f);
+}
+
+int MapView::item_at(const glm::vec2& pixel) const { return pick_item(camera_, positions_, pixel, pick_radius()); }
+
+void MapView::hover_at(const glm::vec2& pixel) {
+  const int h = item_at(pixel);
+  if (h != hovered_) {
+    hovered_ = h;
+    dirty_points_ = true;
+  }
+}
+
+void MapView::set_drag(int item, const glm::vec3& where) {
+  drag_item_ = item;
+  drag_where_ = where;
+  if (item >= 0 && size_t(item) < positions_.size()) positions_[item] = where;
+  dirty_points_ = dirty_lines_ = true;
+}
+
+void MapView::clear_drag() {
+  drag_item_ = -1;
+  dirty_points_ = dirty_lines_ = true;
+}
+
+// ============================================================================ [colour]
+
+std::string MapView::colour_title() const {
+  switch (options_.colour_by.kind) {
+    case ColourKind::kTag: return collection_.tags[options_.colour_by.tag_column].name;
+    case ColourKind::kDisplacement: return "moved since opening";
+    case ColourKind::kJudgments: return "judgments per item";
+    case ColourKind::kPlain: return "items";
+    case ColourKind::kMeasure:
+    case ColourKind::kGroup: return external_title_;
+  }
+  return "";
+}
+
+void MapView::set_measure(const std::string& title, std::vector<float> values) {
+  external_title_ = title;
+  external_measure_ = std::move(values);
+  ViewOptions o = options_;
+  o.colour_by.kind = ColourKind::kMeasure;
+  set_options(o);
+  dirty_colours_ = true;
+}
+
+void MapView::set_groups(const std::string& title, std::vector<int> groups, std::vector<std::string> names) {
+  external_title_ = title;
+  external_groups_ = std::move(groups);
+  external_group_names_ = std::move(names);
+  ViewOptions o = options_;
+  o.colour_by.kind = ColourKind::kGroup;
+  set_options(o);
+  dirty_colours_ = true;
+}
+
+Rgb MapView::colour_of(int item) const {
+  if (item < 0 || size_t(item) >= colours_.size()) return palette_.muted;
+  return colours_[item];
+}
+
+void MapView::rebuild_colours() {
+  const size_t n = collection_.size();
+  colours_.assign(n, palette_.category(0));
+  legend_.clear();
+  const ColourBy& by = options_.colour_by;
+  if (by.kind == ColourKind::kTag) {
+    const auto& values = collection_.tags[by.tag_column].values;
+    std::map<std::string, size_t> counts;
+    for (const auto& v : values) ++counts[v];
+    std::vector<std::pair<std::string, size_t>> order(counts.begin(), counts.end());
+    std::stable_sort(order.begin(), order.end(), [](const auto& a, const auto& b) { return a.second > b.second; });
+    // Eight distinguishable colours at most; the rest share the muted one as "other".
+    const size_t named = order.size() <= Palette::kCategorical.size() ? order.size() : Palette::kCategorical.size() - 1;
+    std::map<std::string, int> colour_index;
+    int next = 0;
+    for (size_t k = 0; k < order.size(); ++k)
+      colour_index[order[k].first] = (k < named && !order[k].first.empty()) ? next++ : -1;
+    size_t other = 0;
+    for (size_t k = 0; k < order.size(); ++k) {
+      const int ci = colour_index[order[k].first];
+      if (ci < 0) {
+        other += order[k].second;
+        continue;
+      }
+      legend_.push_back({order[k].first, palette_.category(ci), order[k].second, by.tag_column, order[k].first});
+    }
+    if (other) legend_.push_back({"other / none", palette_.muted, other, -1, ""});
+    for (size_t i = 0; i < n && i < values.size(); ++i) colours_[i] = palette_.category(colour_index[values[i]]);
+  } else if (by.kind == ColourKind::kDisplacement || by.kind == ColourKind::kJudgments) {
+    std::vector<float> m(n, 0.f);
+    for (size_t i = 0; i < n; ++i) {
+      if (by.kind == ColourKind::kJudgments)
+        m[i] = float(judgment_count_[i]);
+      else if (i < positions_.size() && i < start_positions_.size())
+        m[i] = glm::length(positions_[i] - start_positions_[i]);
+    }
+    const float top = std::max(*std::max_element(m.begin(), m.end()), 1e-6f);
+    for (size_t i = 0; i < n; ++i) colours_[i] = palette_.ramp(m[i] / top);
+    char buf[64];
+    for (float t : {0.f, 0.5f, 1.f}) {
+      std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
+      legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
+    }
+  } else if (by.kind == ColourKind::kMeasure && external_measure_.size() == n) {
+    float top = 1e-6f;
+    for (float v : external_measure_)
+      if (std::isfinite(v)) top = std::max(top, v);
+    for (size_t i = 0; i < n; ++i)
+      colours_[i] = std::isfinite(external_measure_[i]) ? palette_.ramp(external_measure_[i] / top) : palette_.muted;
+    char buf[64];
+    for (float t : {0.f, 0.5f, 1.f}) {
+      std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
+      legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
+    }
+  } else if (by.kind == ColourKind::kGroup && external_groups_.size() == n) {
+    std::vector<size_t> count(external_group_names_.size(), 0);
+    size_t none = 0;
+    for (size_t i = 0; i < n; ++i) {
+      const int g = external_groups_[i];
+      colours_[i] = palette_.category(g);  // -1: muted
+      if (g >= 0 && size_t(g) < count.size()) ++count[size_t(g)];
+      else ++none;
+    }
+    for (size_t g = 0; g < count.size(); ++g)
+      legend_.push_back({external_group_names_[g], palette_.category(int(g)), count[g], -1, ""});
+    if (none) legend_.push_back({"no group", palette_.muted, none, -1, ""});
+  } else {
+    legend_.push_back({"item", palette_.category(0), n, -1, ""});
+  }
+  dirty_colours_ = false;
+  dirty_points_ = true;
+}
+
+float MapView::auto_point_size() const {
+  const size_t n = collection_.size();
+  if (n <= 2000) return 10.f;
+  if (n <= 20000) return 7.f;
+  if (n <= 60000) return 5.f;
+  return 3.5f;
+}
+
+void MapView::rebuild_points() {
+  std::vector<PointVertex> v(positions_.size()), highlights;
+  const float size = options_.point_size > 0 ? options_.point_size : auto_point_size();
+  if (draw_order_.size() != positions_.size()) {
+    draw_order_.resize(positions_.size());
+    std::iota(draw_order_.begin(), draw_order_.end(), 0);
+    std::mt19937 rng(12345);
+    std::shuffle(draw_order_.begin(), draw_order_.end(), rng);
+  }
+  for (size_t k = 0; k < positions_.size(); ++k) {
+    const size_t i = size_t(draw_order_[k]);
+    const Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
+    uint32_t flags = 0;
+    if (selection_.contains(int(i))) flags |= kPointSelected;
+    if (i < pinned_.size() && pinned_[i]) flags |= kPointPinned;
+    if (int(i) == hovered_) flags |= kPointHovered;
+    if (int(i) == drag_item_) flags |= kPointDragged | kPointHovered;
+    const float s = (flags & kPointPinned) ? std::max(size, 7.f) : size;
+    v[k] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
+    if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[k]);
+  }
+  renderer_.set_points(v);
+  renderer_.set_highlights(highlights);
+  dirty_points_ = false;
+}
+
+void MapView::rebuild_grid() {
+  std::vector<LineVertex> g;
+  const glm::vec3 size = hi_ - lo_;
+  const float extent = std::max({size.x, size.z, 1e-7f}) * 1.3f;
+  // A round step: 1, 2 or 5 times a power of ten, about 12 cells across.
+  const float raw = extent / 12.f;
+  const float p10 = std::pow(10.f, std::floor(std::log10(raw)));
+  const float step = raw / p10 < 2.f ? 2.f * p10 : raw / p10 < 5.f ? 5.f * p10 : 10.f * p10;
+  const glm::vec3 centre = (lo_ + hi_) * 0.5f;
+  const float y = lo_.y - 0.04f * std::max(size.y, 1e-3f);
+  const int cells = int(std::ceil(extent / step / 2.f));
+  const float x0 = std::round(centre.x / step) * step, z0 = std::round(centre.z / step) * step;
+  const uint32_t colour = pack_rgba(palette_.faint.r, palette_.faint.g, palette_.faint.b, 1.f);
+  for (int k = -cells; k <= cells; ++k) {
+    const float x = x0 + k * step, z = z0 + k * step;
+    g.push_back({{x, y, z0 - cells * step}, colour});
+    g.push_back({{x, y, z0 + cells * step}, colour});
+    g.push_back({{x0 - cells * step, y, z}, colour});
+    g.push_back({{x0 + cells * step, y, z}, colour});
+  }
+  grid_lo_ = glm::vec3(x0 - cells * step, lo_.y - 1e-3f, z0 - cells * step) - glm::vec3(0, 0, 0);
+  grid_hi_ = glm::vec3(x0 + cells * step, hi_.y + 1e-3f, z0 + cells * step);
+  // The floor tracks the map's height too: allow growth upward without a rebuild.
+  grid_lo_.y = -std::numeric_limits<float>::max();
+  grid_hi_.y = std::numeric_limits<float>::max();
+  renderer_.set_grid(g);
+  grid_floor_y_ = y;
+  dirty_grid_ = false;
+}
+
+void MapView::rebuild_lines() {
+  std::vector<LineVertex> l;
+  const uint32_t nearer = pack_rgba(palette_.nearer.r, palette_.nearer.g, palette_.nearer.b, 0.9f);
+  const uint32_t farther = pack_rgba(palette_.farther.r, palette_.farther.g, palette_.farther.b, 0.55f);
+  const size_t n = positions_.size();
+  const size_t kMaxLines = 4000;
+  if (!selection_.empty()) {
+    for (const auto& j : judgments_) {
+      if (j.retracted || l.size() >= kMaxLines) continue;
+      if (!selection_.contains(j.anchor) && !selection_.contains(j.nearer) && !selection_.contains(j.farther)) continue;
+      if (size_t(j.anchor) >= n || size_t(j.nearer) >= n || size_t(j.farther) >= n || j.anchor < 0 || j.nearer < 0 ||
+          j.farther < 0)
+        continue;
+      l.push_back({positions_[j.anchor], nearer});
+      l.push_back({positions_[j.nearer], nearer});
+      l.push_back({positions_[j.anchor], farther});
+      l.push_back({positions_[j.farther], farther});
+    }
+  }
+  renderer_.set_lines(l);
+  dirty_lines_ = false;
+}
+
+// ============================================================================ [neighbours]
+
+namespace {
+template <typename Dist>
+std::vector<int> k_smallest(size_t n, int item, int k, Dist dist) {
+  std::vector<std::pair<double, int>> d;
+  d.reserve(n);
+  for (size_t i = 0; i < n; ++i)
+    if (int(i) != item) d.push_back({dist(i), int(i)});
+  const size_t kk = std::min<size_t>(size_t(std::max(k, 0)), d.size());
+  std::partial_sort(d.begin(), d.begin() + kk, d.end());
+  std::vector<int> out;
+  for (size_t i = 0; i < kk; ++i) out.push_back(d[i].second);
+  return out;
+}
+}  // namespace
+
+std::vector<int> MapView::nearest_in_features(int item, int k) const {
+  const Points& f = collection_.features;
+  if (item < 0 || item >= f.rows() || f.cols() == 0) return {};
+  return k_smallest(size_t(f.rows()), item, k, [&](size_t i) { return (f.row(Eigen::Index(i)) - f.row(item)).squaredNorm(); });
+}
+
+std::vector<int> MapView::nearest_in_map(int item, int k) const {
+  if (item < 0 || size_t(item) >= positions_.size()) return {};
+  const glm::vec3 p = positions_[item];
+  return k_smallest(positions_.size(), item, k, [&](size_t i) {
+    const glm::vec3 d = positions_[i] - p;
+    return double(glm::dot(d, d));
+  });
+}
+
+// ============================================================================ [cards]
+
+const Picture* MapView::picture(int item) {
+  if (collection_.pictures.empty() || size_t(item) >= collection_.pictures.size()) return nullptr;
+  auto it = pictures_.find(item);
+  if (it != pictures_.end()) return it->second->width > 0 ? it->second.get() : nullptr;
+  auto pic = std::make_shared<Picture>();
+  load_picture(collection_.pictures[item], pic.get());
+  pictures_[item] = pic;
+  if (pictures_.size() > 512) pictures_.clear();  // a bound on memory; pictures reload on demand
+  return pic->width > 0 ? pictures_[item].get() : nullptr;
+}
+
+void MapView::update_cards() {
+  std::vector<int> want;
+  auto add = [&](int i) {
+    if (i >= 0 && size_t(i) < positions_.size() && std::find(want.begin(), want.end(), i) == want.end() &&
+        int(want.size()) < options_.card_limit)
+      want.push_back(i);
+  };
+  if (options_.cards && !collection_.pictures.empty()) {
+    add(hovered_);
+    for (int i : selection_.items()) add(i);
+    if (options_.cards_near_centre && int(want.size()) < options_.card_limit) {
+      // The items nearest the point the camera looks at, when the view is close enough for
+      // cards not to pile up (fewer than ~60 items within the card radius of the target).
+      const glm::vec3 t = camera_.pose().target;
+      const float r = camera_.pose().distance * 0.35f;
+      std::vector<std::pair<float, int>> near;
+      for (size_t i = 0; i < positions_.size(); ++i) {
+        const glm::vec3 d = positions_[i] - t;
+        const float d2 = glm::dot(d, d);
+        if (d2 < r * r) near.push_back({d2, int(i)});
+      }
+      if (near.size() < 60) {
+        std::sort(near.begin(), near.end());
+        for (const auto& [d2, i] : near) add(i);
+      }
+    }
+  }
+  // At most two new pictures decoded per frame so a sweep of the mouse never stalls a frame.
+  int decodes = 2;
+  std::vector<CardSprite> sprites;
+  card_items_.clear();
+  const uint32_t frame = pack_rgba(palette_.card_frame.r, palette_.card_frame.g, palette_.card_frame.b, 1.f);
+  const uint32_t ink = pack_rgba(palette_.ink.r, palette_.ink.g, palette_.ink.b, 1.f);
+  for (int item : want) {
+    int slot = -1;
+    if (auto it = slot_of_.find(item); it != slot_of_.end()) {
+      slot = it->second;
+    } else {
+      if (decodes <= 0 && !pictures_.count(item)) continue;
+      if (!pictures_.count(item)) --decodes;
+      const Picture* pic = picture(item);
+      if (!pic) continue;
+      // The least recently used slot.
+      slot = int(std::min_element(slot_used_.begin(), slot_used_.end()) - slot_used_.begin());
+      if (slot_item_[slot] >= 0) slot_of_.erase(slot_item_[slot]);
+      slot_item_[slot] = item;
+      slot_of_[item] = slot;
+      renderer_.set_slot(slot, *pic);
+    }
+    slot_used_[slot] = frames_;
+    const bool strong = item == hovered_ || selection_.contains(item);
+    sprites.push_back({positions_[item], strong ? options_.card_size : options_.card_size * 0.72f, slot,
+                       strong ? ink : frame});
+    card_items_.push_back(item);
+  }
+  renderer_.set_cards(sprites);
+}
+
+// ============================================================================ [frame]
+
+FrameParams MapView::frame_params() const {
+  FrameParams f;
+  f.view = camera_.view();
+  f.projection = camera_.projection();
+  f.width = camera_.width();
+  f.height = camera_.height();
+  f.ground = glm::vec3(palette_.ground.r, palette_.ground.g, palette_.ground.b);
+  f.ink = glm::vec3(palette_.ink.r, palette_.ink.g, palette_.ink.b);
+  f.reference_distance = camera_.pose().distance;
+  f.point_scale = 1.f;
+  const float radius = std::max(glm::length(hi_ - lo_) * 0.5f, 1e-7f);
+  const float centre_depth = glm::dot((lo_ + hi_) * 0.5f - camera_.eye(), camera_.forward());
+  f.fade_near = centre_depth - radius * 0.8f;
+  f.fade_far = centre_depth + radius;
+  f.fade_amount = options_.fade;
+  f.grid = options_.grid;
+  f.lines = options_.lines;
+  f.cards = options_.cards;
+  f.point_budget = reduced_ ? budget_ : 0;
+  return f;
+}
+
+void MapView::frame(float dt, int width, int height) {
+  camera_.set_viewport(width, height);
+  if (auto_rotate && drag_item_ < 0) camera_.spin(rotate_speed * dt);
+  camera_.update(dt);
+  const CameraPose& p = camera_.pose();
+  const bool moved = p.yaw != last_pose_.yaw || p.pitch != last_pose_.pitch || p.distance != last_pose_.distance ||
+                     p.target != last_pose_.target;
+  last_pose_ = p;
+  still_seconds_ = moved ? 0.f : still_seconds_ + dt;
+  map_still_seconds_ += dt;
+  if (budget_ == 0 || budget_ > options_.moving_budget) budget_ = options_.moving_budget;
+  budget_ = std::min(budget_, std::max<size_t>(positions_.size(), 1));
+  const bool at_rest = still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f;
+  reduced_ = options_.moving_budget > 0 && positions_.size() > budget_ && !at_rest;
+  if (dirty_colours_) rebuild_colours();
+  if (dirty_grid_) rebuild_grid();
+  if (dirty_points_ || last_hovered_drawn_ != hovered_) rebuild_points();
+  if (dirty_lines_) rebuild_lines();
+  update_cards();
+  last_hovered_drawn_ = hovered_;
+  renderer_.draw(frame_params());
+  ++frames_;
+}
+
+}  // namespace kith

@@ -1,0 +1,192 @@
+// MapView: everything the map window shows, as logic without GL or GLFW: the current map
+// (from engine snapshots), the camera, the selection, hover and drag state, colouring and legend,
+// picture cards, judgment lines, the floor grid. It turns that state into renderer data
+// (viewer/renderer.h) and asks the renderer to draw; the window (viewer/app.h) and the windowless
+// path (viewer/offscreen_render.h) both drive one, and the tests drive one over MockRenderer.
+// Window (or render) thread only.
+#pragma once
+#include <cstdint>
+#include <memory>
+#include <string>
+#include <unordered_map>
+#include <vector>
+
+#include "solver/io/collection.h"
+#include "solver/live/commands.h"
+#include "solver/live/snapshot.h"
+#include "solver/base/judgment.h"
+#include "viewer/scene/camera.h"
+#include "viewer/scene/palette.h"
+#include "viewer/scene/renderer.h"
+#include "viewer/scene/selection.h"
+
+namespace kith {
+
+// kMeasure and kGroup colour by values given from outside (set_measure / set_groups), e.g. the
+// structure panel's suspect scores, displacement from the reference map and groups.
+enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain, kMeasure, kGroup };
+
+struct ColourBy {
+  ColourKind kind = ColourKind::kTag;  // (default: a tag column, if any)
+  int tag_column = -1;                 // -1: the column default_colour_column() picks (default: -1)
+};
+
+// The tag column that colours best by default: the one with the fewest distinct values among those
+// with 2 to 12 (a palette's worth); else the one whose values repeat most; -1 with no tag column.
+// A column of unique names colours nothing useful, so it is never the default when another exists.
+int default_colour_column(const Collection& collection);
+
+struct ViewOptions {
+  float point_size = 0.f;      // disc diameter in pixels at the target distance; 0 = by item count (default: 0)
+  float fade = 0.55f;          // how far the farthest items fade toward the ground, 0..1 (default: 0.55)
+  bool grid = true;            // faint floor grid (default: on)
+  bool lines = true;           // judgments of the selection (default: on)
+  bool cards = true;           // picture cards (default: on)
+  bool cards_near_centre = true;  // also cards for the items nearest the view's centre (default: on)
+  int card_limit = 12;         // most cards drawn at once, so the frame rate holds (default: 12)
+  float card_size = 96.f;      // card side in pixels (default: 96)
+  bool dark = false;           // night ground instead of paper (default: off)
+  // Level of detail: while the view or the map moves, draw at most this many items (a fixed
+  // random sample, so the picture keeps its shape), fewer when frames take longer than
+  // target_frame_seconds; every item once both rest. 0 = always all (default: 40000)
+  size_t moving_budget = 40000;
+  float target_frame_seconds = 1.f / 30.f;  // (default: 30 fps)
+  ColourBy colour_by;
+  std::string IsValid() const;  // "" when valid, else what is wrong
+};
+
+struct LegendEntry {
+  std::string label;
+  Rgb colour;
+  size_t count = 0;
+  int tag_column = -1;   // >= 0: a tag value (click selects those items)
+  std::string value;
+};
+
+class MapView {
+ public:
+  MapView(const Collection& collection, Renderer& renderer);
+
+  const Collection& collection() const { return collection_; }
+  const ViewOptions& options() const { return options_; }
+  void set_options(const ViewOptions& options);
+  const Palette& palette() const { return palette_; }
+
+  // ---- the map ---------------------------------------------------------------
+  void set_snapshot(std::shared_ptr<const Snapshot> snapshot);
+  const std::shared_ptr<const Snapshot>& snapshot() const { return snapshot_; }
+  const std::vector<glm::vec3>& positions() const { return positions_; }  // as shown (drag included)
+  bool pinned(int item) const;
+  void set_judgments(std::vector<Judgment> judgments);
+  const std::vector<Judgment>& judgments() const { return judgments_; }
+  glm::vec3 bounds_lo() const { return lo_; }
+  glm::vec3 bounds_hi() const { return hi_; }
+
+  // ---- camera ----------------------------------------------------------------
+  Camera& camera() { return camera_; }
+  const Camera& camera() const { return camera_; }
+  // Frames the whole map; `by_person` (F, the menu) also resumes following a growing map.
+  void fit_all(bool smooth = true, bool by_person = true);
+  // Camera::set_centre_offset; a view that follows the map reframes it when the offset changes.
+  void set_centre_offset(float ndc_x);
+  void focus_selection();
+  bool auto_rotate = false;
+  float rotate_speed = 0.12f;  // radians per second
+
+  // ---- pointing --------------------------------------------------------------
+  Selection& selection() { return selection_; }
+  const Selection& selection() const { return selection_; }
+  int hovered() const { return hovered_; }
+  void hover_at(const glm::vec2& pixel);  // sets hovered() to the item under the mouse or -1
+  int item_at(const glm::vec2& pixel) const;
+  float pick_radius() const;
+  // While dragging, the item is drawn at `where` at once (the engine follows a frame later).
+  void set_drag(int item, const glm::vec3& where);
+  void clear_drag();
+  int dragged() const { return drag_item_; }
+  void selection_changed() { dirty_points_ = dirty_lines_ = true; }
+
+  // ---- colour ----------------------------------------------------------------
+  const std::vector<LegendEntry>& legend() const { return legend_; }
+  Rgb colour_of(int item) const;
+  std::string colour_title() const;
+  // Colour by a measure (ramp from 0 to its largest value; NaN = muted) or by groups (-1 = muted,
+  // names[g] in the legend) and switch the colouring to it. N values each.
+  void set_measure(const std::string& title, std::vector<float> values);
+  void set_groups(const std::string& title, std::vector<int> groups, std::vector<std::string> names);
+
+  // ---- nearest lists for the selection panel -----------------------------------
+  std::vector<int> nearest_in_features(int item, int k) const;
+  std::vector<int> nearest_in_map(int item, int k) const;
+
+  // ---- cards -----------------------------------------------------------------
+  const std::vector<int>& card_items() const { return card_items_; }
+
+  // Advance the camera by dt, rebuild what changed, draw into a framebuffer of this size.
+  void frame(float dt, int width, int height);
+  FrameParams frame_params() const;
+  int frames_drawn() const { return frames_; }
+  bool reduced_detail() const { return reduced_; }  // the last frame drew a sample only
+  size_t detail_budget() const { return budget_; }
+  // The time the last whole frame took (window loop); adapts the level-of-detail budget.
+  void note_frame_time(float seconds);
+
+ private:
+  void rebuild_colours();
+  void rebuild_points();
+  void rebuild_grid();
+  void rebuild_lines();
+  void update_cards();
+  void update_bounds();
+  float auto_point_size() const;
+  const Picture* picture(int item);
+
+  const Collection& collection_;
+  Renderer& renderer_;
+  ViewOptions options_;
+  Palette palette_ = Palette::paper();
+  Camera camera_;
+  std::shared_ptr<const Snapshot> snapshot_;
+  std::vector<glm::vec3> positions_, start_positions_;
+  std::vector<uint8_t> pinned_;
+  std::vector<Judgment> judgments_;
+  std::vector<int> judgment_count_;
+  glm::vec3 lo_{-1.f}, hi_{1.f};
+  bool following_ = true;          // the camera keeps a growing map framed (until a pan/zoom/focus)
+  uint64_t framing_at_fit_ = 0;    // Camera::framing_changes() at the last fit
+  glm::vec3 fitted_lo_{0.f}, fitted_hi_{0.f};  // the box last framed
+  bool have_bounds_ = false;
+  glm::vec3 grid_lo_{0.f}, grid_hi_{0.f};
+  std::vector<Rgb> colours_;
+  std::string external_title_;
+  std::vector<float> external_measure_;
+  std::vector<int> external_groups_;
+  std::vector<std::string> external_group_names_;
+  std::vector<LegendEntry> legend_;
+  Selection selection_;
+  int hovered_ = -1;
+  int drag_item_ = -1;
+  glm::vec3 drag_where_{0.f};
+  std::vector<int> card_items_;
+  // Atlas slots: item -> slot, and per slot the item and the frame it was last used.
+  std::unordered_map<int, int> slot_of_;
+  std::vector<int> slot_item_;
+  std::vector<int> slot_used_;
+  std::unordered_map<int, std::shared_ptr<Picture>> pictures_;  // decoded (empty Picture if unreadable)
+  bool dirty_points_ = true, dirty_colours_ = true, dirty_grid_ = true, dirty_lines_ = true;
+  int frames_ = 0;
+  std::vector<int> draw_order_;   // a fixed shuffle of the items: any prefix is a fair sample
+  CameraPose last_pose_;
+  float still_seconds_ = 1e9f;
+  float map_still_seconds_ = 1e9f;
+  float smoothed_frame_ = 0.f;
+  size_t budget_ = 0;
+  bool reduced_ = false;
+  int last_hovered_drawn_ = -2;
+  float grid_floor_y_ = 0.f;
+};
+
+// Decodes a PNG/JPEG with stb_image; false (and an empty picture) if it cannot.
+bool load_picture(const std::string& path, Picture* out);
+
+}  // namespace kith

@@ -1,0 +1,261 @@
+#include "viewer/session/session_link.h"
+
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <nlohmann/json.hpp>
+
+namespace kith {
+
+namespace fs = std::filesystem;
+
+namespace {
+double now_seconds() {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch()).count();
+}
+
+bool writes_state(const CommandBody& body) {
+  return std::holds_alternative<cmd::AddJudgment>(body) || std::holds_alternative<cmd::RetractJudgment>(body) ||
+         std::holds_alternative<cmd::Pin>(body) || std::holds_alternative<cmd::Unpin>(body) ||
+         std::holds_alternative<cmd::SetBlend>(body) || std::holds_alternative<cmd::SetPerplexity>(body) ||
+         std::holds_alternative<cmd::SetTheta>(body);
+}
+
+// Judgments, pins and retractions are worth a file; a slider moved before anything else is not.
+bool worth_a_file(const CommandBody& body) {
+  return std::holds_alternative<cmd::AddJudgment>(body) || std::holds_alternative<cmd::RetractJudgment>(body) ||
+         std::holds_alternative<cmd::Pin>(body);
+}
+}  // namespace
+
+SessionLink::SessionLink(const std::string& path, bool read_only) : path_(path), read_only_(read_only) {
+  SessionOpenOptions o;
+  o.read_only = read_only;
+  store_ = SessionStore::open(path, o);
+  collection_ = store_->collection();
+  judgments_ = store_->judgments();
+  settings_ = store_->settings();
+}
+
+SessionLink::SessionLink(Collection collection, const MapParameters& parameters, const std::string& source)
+    : collection_(std::move(collection)), settings_(parameters), source_(source) {}
+
+SessionLink::~SessionLink() {
+  try {
+    if (store_) store_->flush_checkpoints();
+  } catch (const std::exception& e) {
+    std::fprintf(stderr, "kith: the last map checkpoint was not written: %s\n", e.what());
+  }
+}
+
+Points SessionLink::start() const {
+  if (!store_) return {};
+  const auto c = store_->last_checkpoint();
+  if (c && size_t(c->positions.rows()) == collection_.size()) return c->positions;
+  return {};
+}
+
+void SessionLink::post_pins(MapFeed& feed) const {
+  if (!store_) return;
+  for (const SessionPin& p : store_->pins()) feed.post(cmd::Pin{p.item, p.position});
+}
+
+std::string SessionLink::path_for(const std::string& source) {
+  const fs::path src(source);
+  std::string stem = src.stem().string();
+  if (stem.empty()) stem = "collection";
+  fs::path dir = src.parent_path().empty() ? fs::path(".") : src.parent_path();
+  if (::access(dir.c_str(), W_OK) != 0) {
+    const char* xdg = std::getenv("XDG_DATA_HOME");
+    const char* home = std::getenv("HOME");
+    dir = (xdg && *xdg ? fs::path(xdg) : fs::path(home ? home : ".") / ".local" / "share") / "kith" / "sessions";
+    std::error_code ec;
+    fs::create_directories(dir, ec);
+  }
+  fs::path candidate = dir / (stem + ".kith");
+  std::error_code ec;
+  for (int k = 2; fs::exists(candidate, ec) || fs::is_symlink(candidate, ec); ++k)
+    candidate = dir / (stem + "-" + std::to_string(k) + ".kith");
+  return candidate.string();
+}
+
+std::string SessionLink::ensure_store(const char* why) {
+  if (store_) return "";
+  if (read_only_) return "this session is open read-only: nothing can be saved";
+  if (source_.empty()) return "";  // a generated collection: kept in memory only
+  const std::string path = path_for(source_);
+  try {
+    SessionCreateOptions co;
+    co.judgments = judgments_;
+    store_ = SessionStore::create(path, collection_, settings_, co);
+    path_ = path;
+    judgments_ = store_->judgments();
+    std::fprintf(stderr, "kith: %s: started the session %s; everything from now on is saved there\n", why,
+                 path.c_str());
+    return "";
+  } catch (const std::exception& e) {
+    return std::string("could not start a session file for this collection: ") + e.what();
+  }
+}
+
+std::string SessionLink::record(CommandBody& body) {
+  if (!writes_state(body)) return "";
+  if (read_only_) {
+    if (std::holds_alternative<cmd::SetBlend>(body) || std::holds_alternative<cmd::SetPerplexity>(body) ||
+        std::holds_alternative<cmd::SetTheta>(body))
+      return "";  // trying settings out in a read-only window is fine; they are simply not kept
+    return last_error_ = "read-only session: judgments and pins cannot be saved (open it without --read-only)";
+  }
+  if (!store_ && worth_a_file(body)) {
+    if (std::string problem = ensure_store("your first judgment or pin"); !problem.empty()) return last_error_ = problem;
+  }
+  if (!store_) {
+    // A generated collection: kept in memory, with ids of its own so undo and retraction work.
+    if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
+      int64_t next = 1;
+      for (const Judgment& j : judgments_) next = std::max(next, j.id + 1);
+      a->judgment.id = next;
+      judgments_.push_back(a->judgment);
+    }
+    if (auto* r = std::get_if<cmd::RetractJudgment>(&body))
+      for (Judgment& j : judgments_)
+        if (j.id == r->judgment_id) j.retracted = r->retracted;
+    if (auto* b = std::get_if<cmd::SetBlend>(&body)) settings_.blend = b->blend;
+    if (auto* pp = std::get_if<cmd::SetPerplexity>(&body)) settings_.perplexity = pp->perplexity;
+    if (auto* t = std::get_if<cmd::SetTheta>(&body)) settings_.theta = t->theta;
+    return "";
+  }
+  try {
+    if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
+      a->judgment.id = store_->add_judgment(a->judgment);
+      judgments_.push_back(a->judgment);
+    } else if (auto* r = std::get_if<cmd::RetractJudgment>(&body)) {
+      store_->set_retracted(r->judgment_id, r->retracted);
+      for (Judgment& j : judgments_)
+        if (j.id == r->judgment_id) j.retracted = r->retracted;
+    } else if (auto* p = std::get_if<cmd::Pin>(&body)) {
+      std::vector<double> where = p->position;
+      if (where.empty() && last_ && p->item < last_->positions.rows())
+        for (Eigen::Index d = 0; d < last_->positions.cols(); ++d) where.push_back(last_->positions(p->item, d));
+      if (!where.empty()) store_->set_pin(p->item, where);
+    } else if (auto* u = std::get_if<cmd::Unpin>(&body)) {
+      store_->remove_pin(u->item);
+    } else {
+      if (auto* b = std::get_if<cmd::SetBlend>(&body)) settings_.blend = b->blend;
+      if (auto* pp = std::get_if<cmd::SetPerplexity>(&body)) settings_.perplexity = pp->perplexity;
+      if (auto* t = std::get_if<cmd::SetTheta>(&body)) settings_.theta = t->theta;
+      store_->set_settings(settings_);
+    }
+    ++writes_;
+    last_error_.clear();
+  } catch (const std::exception& e) {
+    // Not written, so not done: the window does not post it and shows this message.
+    last_error_ = "could not write to the session " + path_ + ": " + e.what();
+    std::fprintf(stderr, "kith: %s\n", last_error_.c_str());
+    return last_error_;
+  }
+  return "";
+}
+
+void SessionLink::apply_person_event(const std::string& detail) {
+  const nlohmann::json d = nlohmann::json::parse(detail, nullptr, false);
+  if (!d.is_object() || !d.contains("name") || !d["name"].is_string()) return;
+  const std::string name = d["name"];
+  const std::string colour = d.contains("colour") && d["colour"].is_string() ? d["colour"].get<std::string>() : "";
+  const std::string action = d.contains("action") && d["action"].is_string() ? d["action"].get<std::string>() : "add";
+  if (action == "rename" && d.contains("from") && d["from"].is_string()) {
+    for (const SessionPerson& p : store_->people())
+      if (p.name == d["from"].get<std::string>()) return store_->rename_person(p.id, name);
+  }
+  const int64_t id = store_->add_person(name, colour);  // an existing name: its id
+  if (!colour.empty()) store_->set_person_colour(id, colour);
+}
+
+std::string SessionLink::record_event(const std::string& kind, const std::string& detail) {
+  if (read_only_) return last_error_ = "read-only session: this cannot be saved (open it without --read-only)";
+  if (std::string problem = ensure_store("a person or an answer"); !problem.empty()) return last_error_ = problem;
+  if (!store_) return "";
+  try {
+    if (kind == "person") apply_person_event(detail);  // the people table follows the window's list
+    store_->add_event(kind, detail);
+    ++writes_;
+    last_error_.clear();
+    return "";
+  } catch (const std::exception& e) {
+    last_error_ = "could not write to the session " + path_ + ": " + e.what();
+    return last_error_;
+  }
+}
+
+std::unique_ptr<MapFeed> SessionLink::recording(MapFeed& inner) {
+  return std::make_unique<RecordingFeed>(inner, [this](CommandBody& body) { return record(body); });
+}
+
+WindowHooks SessionLink::hooks(WindowHooks base) {
+  WindowHooks h = base;
+  auto previous_snapshot = base.on_snapshot;
+  h.on_snapshot = [this, previous_snapshot](const std::shared_ptr<const Snapshot>& s) {
+    last_ = s;
+    const double now = now_seconds();
+    if (store_ && !read_only_ && now - last_checkpoint_ > 5.0) {
+      last_checkpoint_ = now;
+      store_->post_checkpoint(s->positions, s->iteration);
+    }
+    if (previous_snapshot) previous_snapshot(s);
+  };
+  h.record_event = [this](const std::string& kind, const std::string& detail) { return record_event(kind, detail); };
+  h.title_state = [this] { return title_state(); };
+  return h;
+}
+
+std::string SessionLink::title_state() const {
+  if (!store_) {
+    if (source_.empty()) return "not saved (a generated collection)";
+    return "not saved yet: your first judgment or pin starts a session file";
+  }
+  const std::string name = fs::path(path_).filename().string();
+  if (read_only_) return "session " + name + " (read-only)";
+  if (!last_error_.empty()) return "session " + name + " (NOT SAVED: " + last_error_ + ")";
+  return "session " + name + " (saved as you go)";
+}
+
+void SessionLink::final_checkpoint(const Snapshot& s) {
+  if (!store_ || read_only_) return;
+  try {
+    store_->write_checkpoint(s.positions, s.iteration);
+  } catch (const std::exception& e) {
+    std::fprintf(stderr, "kith: the last map checkpoint was not written: %s\n", e.what());
+  }
+}
+
+std::string SessionLink::save_as(const std::string& path) {
+  if (path.empty()) return "give a file name";
+  std::error_code ec;
+  if (fs::exists(path, ec)) return path + ": a file is already there; kith does not write over it";
+  try {
+    if (!store_) {
+      SessionCreateOptions co;
+      co.judgments = judgments_;
+      store_ = SessionStore::create(path, collection_, settings_, co);
+      judgments_ = store_->judgments();
+    } else {
+      if (last_) store_->write_checkpoint(last_->positions, last_->iteration);
+      store_->save_copy(path);
+      store_->flush_checkpoints();
+      auto next = SessionStore::open(path);
+      store_ = std::move(next);  // the old file is closed (and unlocked) here, complete
+    }
+    path_ = path;
+    read_only_ = false;
+    last_error_.clear();
+    return "";
+  } catch (const std::exception& e) {
+    return e.what();
+  }
+}
+
+}  // namespace kith
