@@ -59,15 +59,14 @@ inline std::vector<std::string> folder_listing(const std::string& dir) {
   return names;
 }
 
-// Runs the built kith (KITH_BINARY) with ARGUMENTS through the shell; stdout and stderr together.
+// Runs COMMAND through the shell; its stdout and stderr together.
 struct KithRun {
   int code = -1;       // exit code, -1 if it did not exit normally
   std::string output;
 };
-inline KithRun run_kith(const std::string& arguments) {
-  const std::string command = std::string(KITH_BINARY) + " " + arguments + " 2>&1";
+inline KithRun run_shell(const std::string& command) {
   KithRun r;
-  FILE* pipe = popen(command.c_str(), "r");
+  FILE* pipe = popen((command + " 2>&1").c_str(), "r");
   if (!pipe) return r;
   char buf[4096];
   size_t got;
@@ -76,5 +75,8 @@ inline KithRun run_kith(const std::string& arguments) {
   r.code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
   return r;
 }
+
+// Runs the built kith (KITH_BINARY) with ARGUMENTS.
+inline KithRun run_kith(const std::string& arguments) { return run_shell(std::string(KITH_BINARY) + " " + arguments); }
 
 }  // namespace kith::test
