@@ -1,5 +1,6 @@
 // See demo_trial.h.
 #include "solver/demo/demo_trial.h"
+#include "solver/measures/judgment_health.h"
 
 #include <cstdio>
 #include <memory>
@@ -50,14 +51,7 @@ bool DemoTrialOptions::IsValid(std::string* error) const {
 }
 
 double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets) {
-  if (triplets.empty()) return -1.0;
-  double s = 0.0;
-  for (const auto& t : triplets) {
-    const double dn = (y.row(t.anchor) - y.row(t.nearer)).squaredNorm();
-    const double df = (y.row(t.anchor) - y.row(t.farther)).squaredNorm();
-    s += dn < df ? 1.0 : dn == df ? 0.5 : 0.0;
-  }
-  return s / double(triplets.size());
+  return judgment_agreement(y, triplets);  // the one definition (solver/measures/judgment_health.h)
 }
 
 void set_trial_seed(uint64_t seed, DemoTrialOptions* trial, SimulatedPeopleOptions* people) {

@@ -35,6 +35,7 @@
 #include "solver/objective/blended_objective.h"
 #include "solver/features/feature_prep.h"
 #include "solver/measures/health.h"
+#include "solver/measures/judgment_health.h"
 #include "solver/objective/judgment_term.h"
 #include "solver/live/live_loop.h"
 #include "solver/objective/neighbour_term.h"
@@ -522,14 +523,7 @@ class EngineModel : public LiveModel {
     s.judgment_cost = costs.judgment;
     s.pin_cost = costs.pin;
     s.health.kl = current_factor_ == 1.0 ? costs.neighbour : -1.0;
-    size_t active = 0, agree = 0;
-    for (const Judgment& j : objective_.judgments()) {
-      if (j.retracted) continue;
-      ++active;
-      if ((y_.row(j.anchor) - y_.row(j.nearer)).squaredNorm() < (y_.row(j.anchor) - y_.row(j.farther)).squaredNorm())
-        ++agree;
-    }
-    s.health.judgment_agreement = active ? double(agree) / double(active) : -1.0;
+    s.health.judgment_agreement = judgment_agreement(y_, objective_.judgments());
     // Trustworthiness and neighbour recall now and then (every kHealthSeconds), on a fixed-seed
     // sample of at most kHealthSample items: about 40 ms of this thread at any N.
     const auto now = std::chrono::steady_clock::now();

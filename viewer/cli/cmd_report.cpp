@@ -2,6 +2,7 @@
 // with the health figures, the suspect list, the groups table, the neighbourhoods the map keeps
 // worst and pictures of the map. For ITEMS it fits a map itself (solver/fit.h). Main thread only.
 #include <cmath>
+#include <algorithm>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -13,6 +14,7 @@
 #include "solver/features/feature_prep.h"
 #include "solver/fit/fit.h"
 #include "solver/measures/health.h"
+#include "solver/measures/judgment_health.h"
 #include "solver/objective/judgment_term.h"
 #include "solver/measures/map_findings.h"
 #include "solver/objective/neighbour_term.h"
@@ -199,12 +201,7 @@ int cmd_report(const Args& args) {
     no.theta = fit.theta;
     kl = NeighbourTerm(fitted.p, no).evaluate(map, nullptr);
   }
-  size_t active = 0, agreeing = 0;
-  for (const Judgment& j : judgments) {
-    if (j.retracted) continue;
-    ++active;
-    if (tste_probability(map, j.anchor, j.nearer, j.farther, fit.dof) > 0.5) ++agreeing;
-  }
+  const double agreement = judgment_agreement(map, judgments);  // -1 when there are none
   std::optional<Displacement> moved;
   std::vector<std::string> moved_by;
   if (saved) {
@@ -242,9 +239,9 @@ int cmd_report(const Args& args) {
     c.figures.push_back({"map shown", saved ? "the session's last saved map (iteration " +
                                                   std::to_string(saved->iteration) + ")"
                                             : "fitted from the features (the session has no saved map)"});
+    const size_t active = size_t(std::count_if(judgments.begin(), judgments.end(), [](const Judgment& j) { return !j.retracted; }));
     c.figures.push_back({"judgments", std::to_string(active) + " active of " + std::to_string(judgments.size())});
-    if (active > 0)
-      c.figures.push_back({"judgment agreement", fixed(double(agreeing) / double(active), 4)});
+    if (agreement >= 0) c.figures.push_back({"judgment agreement", fixed(agreement, 4)});
   }
   if (health.sample < items.size())
     c.figures.push_back({"health measured on", std::to_string(health.sample) + " sampled items"});
