@@ -39,9 +39,10 @@ struct FakeWindow {
       posted.push_back(body);
       return "";
     };
-    l.record_event = [this](const std::string& kind, const std::string& detail) -> std::string {
+    l.record_event = [this](const SessionEvent& event) -> std::string {
       if (refuse_events) return "disk full";
-      events.emplace_back(kind, detail);
+      const EventRecord record = to_record(event);  // the stored form, as a session keeps it
+      events.emplace_back(record.kind, record.detail);
       return "";
     };
     l.snapshot = [this] { return std::shared_ptr<const Snapshot>(snapshot); };

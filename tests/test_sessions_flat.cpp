@@ -213,12 +213,12 @@ TEST_CASE("sessions: the window's Session menu saves as and exports, and never w
   feed->post(body);
   CHECK(std::get<kith::cmd::AddJudgment>(body).judgment.id > 0);
   CHECK(link.path() == dir + "/swatches.kith");
-  CHECK(link.record_event("cant_tell", R"({"anchor":"sw-1"})") == "");
+  CHECK(link.record_event(kith::event::CantTell{"Ines", 1000.0, {"pair", "sw-1", {"sw-2", "sw-3"}}}) == "");
   // People events keep the session's people table in step with the window's list.
-  CHECK(link.record_event("person", R"({"action":"add","name":"Tomasz","colour":"#D55E00"})") == "");
-  CHECK(link.record_event("person", R"({"action":"colour","name":"Ines","colour":"#0072B2"})") == "");
-  CHECK(link.record_event("person", R"({"action":"rename","from":"Tomasz","name":"Tom"})") == "");
-  CHECK(link.record_event("person", R"({"action":"rename","from":"Tom","name":"Ines"})") != "");  // taken
+  CHECK(link.record_event(kith::event::PersonAdded{"Tomasz", "#D55E00"}) == "");
+  CHECK(link.record_event(kith::event::PersonColoured{"Ines", "#0072B2"}) == "");
+  CHECK(link.record_event(kith::event::PersonRenamed{"Tomasz", "Tom"}) == "");
+  CHECK(link.record_event(kith::event::PersonRenamed{"Tom", "Ines"}) != "");  // taken
   {
     std::map<std::string, std::string> people;
     for (const auto& p : link.store()->people()) people[p.name] = p.colour;

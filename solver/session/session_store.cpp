@@ -1058,11 +1058,11 @@ int64_t SessionStore::add_event(const std::string& kind, const std::string& deta
   return sqlite3_last_insert_rowid(impl_->db.db);
 }
 
-std::vector<SessionEvent> SessionStore::events() const {
+std::vector<StoredEvent> SessionStore::events() const {
   std::lock_guard<std::mutex> lock(impl_->mutex);
-  std::vector<SessionEvent> out;
+  std::vector<StoredEvent> out;
   Stmt q(impl_->db, "SELECT event, time, kind, detail FROM events ORDER BY event");
-  while (q.step()) out.push_back(SessionEvent{q.i64(0), q.f64(1), q.text(2), q.text(3)});
+  while (q.step()) out.push_back(StoredEvent{q.i64(0), q.f64(1), q.text(2), q.text(3)});
   return out;
 }
 

@@ -81,9 +81,9 @@ struct SessionPin {
   double time = 0.0;             // seconds since the Unix epoch
 };
 
-// Something recorded that is not a judgment: a "can't tell" answer, a person added or renamed,
+// An event as stored (solver/asking/session_event.h builds them): a "can't tell" answer, a person added or renamed,
 // a re-asked question. `detail` is a JSON object as text.
-struct SessionEvent {
+struct StoredEvent {
   int64_t id = -1;
   double time = 0.0;  // seconds since the Unix epoch
   std::string kind;
@@ -160,7 +160,7 @@ class SessionStore {
 
   // ---- events: committed before these return; never deleted ----
   int64_t add_event(const std::string& kind, const std::string& detail_json);
-  std::vector<SessionEvent> events() const;  // in the order written
+  std::vector<StoredEvent> events() const;  // in the order written
 
   // A complete, consistent copy of the session at PATH (SQLite VACUUM INTO), for "save as".
   // Refuses (Kind::kExists) when PATH exists; this store stays the one being written.

@@ -5,7 +5,6 @@
 #include <algorithm>
 #include <cctype>
 #include <cstdio>
-#include <nlohmann/json.hpp>
 #include <sstream>
 
 namespace kith {
@@ -218,19 +217,17 @@ std::string AskingDesk::next_name() const {
   return flow_.people()[size_t((flow_.turn() + 1) % n)].name;
 }
 
-std::string AskingDesk::event(const std::string& kind, const std::string& detail) {
-  return links_.record_event ? links_.record_event(kind, detail) : std::string();
+std::string AskingDesk::record(const SessionEvent& e) {
+  return links_.record_event ? links_.record_event(e) : std::string();
 }
 
-std::string AskingDesk::question_json(const Question& q) const {
-  nlohmann::json j;
-  j["kind"] = q.kind == QuestionKind::kPair ? "pair" : "grid";
-  j["anchor"] = q.anchor >= 0 ? collection_.ids[size_t(q.anchor)] : "";
-  nlohmann::json c = nlohmann::json::array();
-  for (int32_t i : q.candidates) c.push_back(collection_.ids[size_t(i)]);
-  j["candidates"] = c;
-  if (q.reask) j["repeat_of"] = q.repeat_of;
-  return j.dump();
+AskedQuestion AskingDesk::asked(const Question& q) const {
+  AskedQuestion a;
+  a.kind = q.kind == QuestionKind::kPair ? "pair" : "grid";
+  a.anchor = q.anchor >= 0 ? collection_.ids[size_t(q.anchor)] : "";
+  for (int32_t i : q.candidates) a.candidates.push_back(collection_.ids[size_t(i)]);
+  if (q.reask) a.repeat_of = q.repeat_of;
+  return a;
 }
 
 // ---- people ----------------------------------------------------------------------
@@ -242,8 +239,7 @@ std::string AskingDesk::add_person(const std::string& raw, uint32_t colour) {
   if (name.empty()) return "a person needs a name (any name or a pseudonym)";
   for (const Person& p : flow_.people())
     if (p.name == name) return "'" + name + "' is already listed";
-  const std::string e =
-      event("person", nlohmann::json{{"action", "add"}, {"name", name}, {"colour", colour_hex(colour)}}.dump());
+  const std::string e = record(event::PersonAdded{name, colour_hex(colour)});
   if (!e.empty()) return e;
   flow_.add_person(name, colour);
   return "";
@@ -256,8 +252,7 @@ std::string AskingDesk::rename_person(int person, const std::string& raw) {
   if (name.empty()) return "a person needs a name";
   for (size_t p = 0; p < flow_.people().size(); ++p)
     if (int(p) != person && flow_.people()[p].name == name) return "'" + name + "' is already listed";
-  const std::string e = event(
-      "person", nlohmann::json{{"action", "rename"}, {"from", flow_.people()[size_t(person)].name}, {"name", name}}.dump());
+  const std::string e = record(event::PersonRenamed{flow_.people()[size_t(person)].name, name});
   if (!e.empty()) return e;
   flow_.rename_person(person, name);
   return "";
@@ -265,10 +260,7 @@ std::string AskingDesk::rename_person(int person, const std::string& raw) {
 
 std::string AskingDesk::set_colour(int person, uint32_t colour) {
   if (person < 0 || size_t(person) >= flow_.people().size()) return "no such person";
-  const std::string e = event("person", nlohmann::json{{"action", "colour"},
-                                                       {"name", flow_.people()[size_t(person)].name},
-                                                       {"colour", colour_hex(colour)}}
-                                            .dump());
+  const std::string e = record(event::PersonColoured{flow_.people()[size_t(person)].name, colour_hex(colour)});
   if (!e.empty()) return e;
   flow_.set_colour(person, colour);
   return "";
@@ -302,11 +294,7 @@ std::string AskingDesk::post_answer(std::vector<Judgment> judgments) {
   flow_.set_judgment_ids(ids);
   const Answer& a = flow_.answers().back();
   if (a.question.reask)
-    event("reask", nlohmann::json{{"repeat_of", a.question.repeat_of},
-                                  {"person", turn_name()},
-                                  {"question", nlohmann::json::parse(question_json(a.question))},
-                                  {"judgments", ids}}
-                       .dump());
+    record(event::Reasked{turn_name(), asked(a.question), ids});
   return "";
 }
 
@@ -323,10 +311,7 @@ std::string AskingDesk::answer_cant_tell() {
   if (q.anchor < 0) return "no question on screen yet";
   const std::string who = turn_name();
   const double t = links_.now ? links_.now() : 0.0;
-  nlohmann::json detail = nlohmann::json::parse(question_json(q));
-  detail["person"] = who;
-  detail["time"] = t;
-  if (const std::string e = event("cant_tell", detail.dump()); !e.empty()) return "not saved, ask again: " + e;
+  if (const std::string e = record(event::CantTell{who, t, asked(q)}); !e.empty()) return "not saved, ask again: " + e;
   flow_.answer_cant_tell(t);
   picks_.clear();
   return who + ": can't tell";
@@ -358,9 +343,7 @@ std::string AskingDesk::undo() {
   if (!last) return "nothing to undo";
   const std::string who = last->person >= 0 ? flow_.people()[size_t(last->person)].name : "";
   if (last->cant_tell) {
-    const std::string e = event("cant_tell_undone", nlohmann::json{{"person", who},
-                                                                   {"question", nlohmann::json::parse(question_json(last->question))}}
-                                                        .dump());
+    const std::string e = record(event::CantTellUndone{who, asked(last->question)});
     if (!e.empty()) return "undo not saved: " + e;
   }
   const std::vector<Judgment> js = flow_.undo();

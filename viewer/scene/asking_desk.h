@@ -24,6 +24,7 @@
 #include "solver/live/snapshot.h"
 #include "solver/asking/picker.h"
 #include "solver/asking/question_flow.h"
+#include "solver/asking/session_event.h"
 
 namespace kith {
 
@@ -86,7 +87,7 @@ struct DeskLinks {
   // the judgment's stored id), else why it was refused.
   std::function<std::string(CommandBody& body)> post;
   // WindowHooks::record_event: "" when written or when there is nowhere to write.
-  std::function<std::string(const std::string& kind, const std::string& detail)> record_event;
+  std::function<std::string(const SessionEvent& event)> record_event;
   std::function<std::shared_ptr<const Snapshot>()> snapshot;  // the map the picker reads
   std::function<std::vector<Judgment>()> judgments;           // judgments known to the window
   std::function<std::vector<int>()> selection;                // for "about the selection"
@@ -142,8 +143,8 @@ class AskingDesk {
   std::string answer_cant_tell();
   std::string answer_grid();
   std::string undo();
-  std::string event(const std::string& kind, const std::string& detail);
-  std::string question_json(const Question& q) const;
+  std::string record(const SessionEvent& event);
+  AskedQuestion asked(const Question& q) const;
 
   const Collection& collection_;
   DeskLinks links_;

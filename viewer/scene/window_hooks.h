@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "solver/asking/session_event.h"
 #include "solver/live/commands.h"
 #include "solver/live/snapshot.h"
 #include "viewer/scene/map_interaction.h"
@@ -26,11 +27,11 @@ struct WindowHooks {
   std::function<std::vector<std::string>()> panel_lines;           // panel_lines is set: its text lines
   std::function<void(const std::shared_ptr<const Snapshot>&)> on_snapshot;  // each new snapshot shown
   // Records something that is not a command to the engine (a "can't tell" answer, a person
-  // added, renamed or given a colour, a re-asked question) in the session, committed before it
-  // returns. `kind` is a short word ("cant_tell", "person", ...), `detail` a JSON object as text.
-  // Returns "" when written (or when there is no session to write to), else why it was not.
-  // Judgments, retractions and pins are not events: they go through MapFeed::prepare/post.
-  std::function<std::string(const std::string& kind, const std::string& detail)> record_event;
+  // added, renamed or given a colour, a re-asked question: solver/asking/session_event.h) in the
+  // session, committed before it returns. Returns "" when written (or when there is no session to
+  // write to), else why it was not. Judgments, retractions and pins are not events: they go
+  // through MapFeed::prepare/post.
+  std::function<std::string(const SessionEvent& event)> record_event;
   // Sessions (viewer/session_link.h, viewer/session_menu.h):
   std::function<std::string()> title_state;  // the saving state for the title bar (polled each second)
   std::function<void()> menus;               // more menus, drawn inside the main menu bar

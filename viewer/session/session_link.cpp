@@ -161,27 +161,28 @@ std::string SessionLink::record(CommandBody& body) {
   return "";
 }
 
-void SessionLink::apply_person_event(const std::string& detail) {
-  const nlohmann::json d = nlohmann::json::parse(detail, nullptr, false);
-  if (!d.is_object() || !d.contains("name") || !d["name"].is_string()) return;
-  const std::string name = d["name"];
-  const std::string colour = d.contains("colour") && d["colour"].is_string() ? d["colour"].get<std::string>() : "";
-  const std::string action = d.contains("action") && d["action"].is_string() ? d["action"].get<std::string>() : "add";
-  if (action == "rename" && d.contains("from") && d["from"].is_string()) {
+void SessionLink::apply_person_event(const SessionEvent& event) {
+  if (const auto* e = std::get_if<event::PersonRenamed>(&event)) {
     for (const SessionPerson& p : store_->people())
-      if (p.name == d["from"].get<std::string>()) return store_->rename_person(p.id, name);
+      if (p.name == e->from) return store_->rename_person(p.id, e->name);
+    store_->add_person(e->name, "");
+  } else if (const auto* e = std::get_if<event::PersonAdded>(&event)) {
+    const int64_t id = store_->add_person(e->name, e->colour);  // an existing name: its id
+    if (!e->colour.empty()) store_->set_person_colour(id, e->colour);
+  } else if (const auto* e = std::get_if<event::PersonColoured>(&event)) {
+    const int64_t id = store_->add_person(e->name, e->colour);
+    if (!e->colour.empty()) store_->set_person_colour(id, e->colour);
   }
-  const int64_t id = store_->add_person(name, colour);  // an existing name: its id
-  if (!colour.empty()) store_->set_person_colour(id, colour);
 }
 
-std::string SessionLink::record_event(const std::string& kind, const std::string& detail) {
+std::string SessionLink::record_event(const SessionEvent& event) {
   if (read_only_) return last_error_ = "read-only session: this cannot be saved (open it without --read-only)";
   if (std::string problem = ensure_store("a person or an answer"); !problem.empty()) return last_error_ = problem;
   if (!store_) return "";
   try {
-    if (kind == "person") apply_person_event(detail);  // the people table follows the window's list
-    store_->add_event(kind, detail);
+    apply_person_event(event);  // the people table follows the window's list
+    const EventRecord record = to_record(event);
+    store_->add_event(record.kind, record.detail);
     ++writes_;
     last_error_.clear();
     return "";
@@ -207,7 +208,7 @@ WindowHooks SessionLink::hooks(WindowHooks base) {
     }
     if (previous_snapshot) previous_snapshot(s);
   };
-  h.record_event = [this](const std::string& kind, const std::string& detail) { return record_event(kind, detail); };
+  h.record_event = [this](const SessionEvent& event) { return record_event(event); };
   h.title_state = [this] { return title_state(); };
   return h;
 }

@@ -16,6 +16,7 @@
 #include <string>
 #include <vector>
 
+#include "solver/asking/session_event.h"
 #include "solver/io/collection.h"
 #include "solver/live/commands.h"
 #include "solver/live/snapshot.h"
@@ -45,7 +46,7 @@ class SessionLink {
   // Hooks: map checkpoints every few seconds, record_event, and the title's saving state.
   WindowHooks hooks(WindowHooks base = {});
   // "" or a message; see WindowHooks::record_event.
-  std::string record_event(const std::string& kind, const std::string& detail);
+  std::string record_event(const SessionEvent& event);
   void final_checkpoint(const Snapshot& snapshot);
 
   // "Save as": a complete copy at PATH (never over an existing file), which then becomes the
@@ -65,9 +66,9 @@ class SessionLink {
  private:
   std::string record(CommandBody& body);
   std::string ensure_store(const char* why);
-  // A "person" event ({"action": "add"|"rename"|"colour", "name", "colour", "from"}) also updates
-  // the session's people table; throws SessionError (e.g. a rename to a name already taken).
-  void apply_person_event(const std::string& detail);
+  // A person event also updates the session's people table; throws SessionError (e.g. a rename
+  // to a name already taken).
+  void apply_person_event(const SessionEvent& event);
   std::unique_ptr<SessionStore> store_;
   Collection collection_;
   std::vector<Judgment> judgments_;
