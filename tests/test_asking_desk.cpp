@@ -1,4 +1,4 @@
-// The asking screens' logic without a window (viewer/asking_desk.h): key mapping, the own
+// The asking screens' logic without a window (viewer/scene/asking_desk.h): key mapping, the own
 // judgment's click sequence and typed line, answers going out through the post path with their
 // stored ids, refusals leaving the question on screen, undo as retraction, turns and people events.
 #define GLFW_INCLUDE_NONE

@@ -1,4 +1,4 @@
-// Block weights learned from triplets (solver/block_weights.h): the gradient against central
+// Block weights learned from triplets (solver/features/block_weights.h): the gradient against central
 // differences, planted features where only some blocks matter, the reweighting itself, bad input.
 #include <doctest/doctest.h>
 

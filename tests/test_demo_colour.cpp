@@ -1,4 +1,4 @@
-// Checks of solver/colour.h against published data and scikit-image.
+// Checks of solver/features/colour.h against published data and scikit-image.
 #include <doctest/doctest.h>
 
 #include <cmath>

@@ -1,4 +1,4 @@
-// Checks of solver/picture_descriptors.h: reading (8/16-bit, grey, alpha, broken files), invariances
+// Checks of solver/features/picture_descriptors.h: reading (8/16-bit, grey, alpha, broken files), invariances
 // of the blocks, the orientation histogram under rotation, and the block weighting.
 #include <doctest/doctest.h>
 #include <stb_image_write.h>

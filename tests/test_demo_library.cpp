@@ -1,4 +1,4 @@
-// Checks of the demo's sample library (solver/sample_library.h).
+// Checks of the demo's sample library (solver/demo/sample_library.h).
 #include <doctest/doctest.h>
 
 #include <filesystem>

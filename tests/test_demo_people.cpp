@@ -1,4 +1,4 @@
-// Checks of the simulated people (solver/simulated_people.h).
+// Checks of the simulated people (solver/demo/simulated_people.h).
 #include <doctest/doctest.h>
 
 #include <cmath>

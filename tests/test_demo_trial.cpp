@@ -1,4 +1,4 @@
-// The demo's measured story (solver/demo_trial.h): the simulated people answers 100 questions
+// The demo's measured story (solver/demo/demo_trial.h): the simulated people answers 100 questions
 // chosen by the most-informative picker, and the map's held-out agreement with the people's hidden
 // perceptual distance is compared with the features-only map and with a control run that takes the
 // same optimizer steps without the answers.

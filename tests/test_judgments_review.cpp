@@ -1,5 +1,5 @@
-// The judgment list and agreement figures as plain logic (solver/judgment_review.h) and the
-// Judgments panel's actions without a window (viewer/panel_judgments.h over MockRenderer): filtering,
+// The judgment list and agreement figures as plain logic (solver/measures/judgment_review.h) and the
+// Judgments panel's actions without a window (viewer/panels/panel_judgments.h over MockRenderer): filtering,
 // same-question consistency and cross-agreement against an obvious pairwise count, the strongly
 // violated list against the t-STE formula written out, retract / restore through the post path
 // (a refused post leaves the list unchanged), CSV import (all or none) and export round trip.

@@ -71,7 +71,7 @@ TEST_CASE("layout: the include check passes a clean tree and catches each kind o
       // a file outside a layer folder
       {"solver/loose.h", "#pragma once\n", "solver/loose.h:1: a source file belongs in a layer folder"},
       // an include of a file that does not exist (e.g. an old flat path)
-      {"solver/io/csv_table.h", "#include \"solver/points.h\"\n", "includes \"solver/points.h\", which does not exist"},
+      {"solver/io/csv_table.h", "#include \"solver/old/points.h\"\n", "includes \"solver/old/points.h\", which does not exist"},
   };
   int n = 0;
   for (const Case& c : cases) {

@@ -1,4 +1,4 @@
-// The flat 2-D layout (solver/flat_map.h) and `kith export --flat`, plus the --judgments paths of
+// The flat 2-D layout (solver/fit/flat_map.h) and `kith export --flat`, plus the --judgments paths of
 // kith new / kith judge --import / kith export: what goes in comes back out.
 #include <doctest/doctest.h>
 #include <sys/wait.h>

@@ -1,4 +1,4 @@
-// Picker: chooses the next question (solver/question_flow.h's Question) from the current map.
+// Picker: chooses the next question (solver/asking/question_flow.h's Question) from the current map.
 //   random:            anchor and candidates uniformly at random;
 //   most informative:  (adaptive triplets in the spirit of Tamuz et al. 2011) `anchors_scored`
 //                      anchors are tried, each the least-judged of a few random items; the one

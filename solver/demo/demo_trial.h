@@ -1,12 +1,12 @@
 // DemoTrial: the demo's story, measured headlessly and deterministically (one thread, fixed seeds):
-//   1. the features-only map: fit_map (solver/fit.h) on the features;
+//   1. the features-only map: fit_map (solver/fit/fit.h) on the features;
 //   2. agreement of that map with the hidden perceptual distance on held-out triplets
 //      (SimulatedPeople::truth_triplets, never asked);
-//   3. `answers` times: the picker (solver/picker.h, most informative by default) chooses a pair
+//   3. `answers` times: the picker (solver/asking/picker.h, most informative by default) chooses a pair
 //      question on the current map, the simulated people answers it, the answer joins the blended
 //      objective (KL + blend * t-STE) and the map takes `iterations_between` more steps;
 //      Every `reweight_every` answers from `reweight_from` on (and after the last) the answers also teach the features'
-//      metric: block weights are learned from all answers so far (solver/block_weights.h) and the
+//      metric: block weights are learned from all answers so far (solver/features/block_weights.h) and the
 //      t-SNE affinities are rebuilt from the reweighted features, so the whole map follows the
 //      people, not only the items it was asked about (learn_weights; on by default), and the map
 //      takes `regroup_iterations` steps with exaggerated affinities to regroup;

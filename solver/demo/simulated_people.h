@@ -2,7 +2,7 @@
 // perceptual distance, for the demo and for benchmarks of pickers and the blend.
 //
 // Hidden distance between two swatches i, j (in CIEDE2000 units):
-//   d(i, j) = dE00(base_i, base_j)                                  colour (solver/colour.h)
+//   d(i, j) = dE00(base_i, base_j)                                  colour (solver/features/colour.h)
 //           + pattern_weight * [pattern_i != pattern_j]             a different kind of pattern
 //           + scale_weight * |log2(period_i / period_j)|            a different scale, when both
 //                                                                   have a pattern

@@ -4,7 +4,7 @@
 // Reading (stb_image): 8- and 16-bit PNG, JPEG; grey, grey+alpha, RGB, RGBA. Pixels are taken as
 // sRGB, decoded to linear light (IEC 61966-2-1), composited over the background in linear light
 // (c = alpha c + (1 - alpha) background), then area-averaged to a working size (longest side
-// `working_size`, aspect kept) and converted to CIELAB (solver/colour.h). Embedded colour profiles
+// `working_size`, aspect kept) and converted to CIELAB (solver/features/colour.h). Embedded colour profiles
 // are ignored.
 //
 // Blocks (in this order; names in feature_names()):

@@ -1,4 +1,4 @@
-// Batch fit of a BlendedObjective: the shared optimization loop (run_schedule, solver/fit.h)
+// Batch fit of a BlendedObjective: the shared optimization loop (run_schedule, solver/fit/fit.h)
 // for a fixed number of iterations. Early exaggeration applies to
 // the neighbour term only; a judgments-only objective (no neighbour term) runs with the schedule's
 // momenta and learning rate, without exaggeration. Used by `kith fit`, the held-out agreement

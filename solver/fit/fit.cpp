@@ -125,7 +125,7 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
     r.summary = run_schedule(
         *term, [&term](double e) { term->set_exaggeration(e); }, r.map, loop, progress);
   } else {
-    // KL + blend x judgments (solver/blended_objective.h); throws JudgmentError (an
+    // KL + blend x judgments (solver/objective/blended_objective.h); throws JudgmentError (an
     // invalid_argument) for a judgment naming an unknown item or the same item twice.
     BlendedObjective blended(n, options.dims);
     blended.set_neighbour_term(term);

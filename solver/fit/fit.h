@@ -4,7 +4,7 @@
 //   (neighbours.h) -> calibrated P (affinities.h) -> PCA start (first column std 1e-4)
 //   -> run_schedule(NeighbourTerm) for `iterations` steps of the Schedule (schedule.h).
 // run_schedule is the loop itself and takes any ObjectiveTerm plus a hook that sets the
-// exaggeration, so the blended objective (solver/blended_objective.h) runs the same schedule.
+// exaggeration, so the blended objective (solver/objective/blended_objective.h) runs the same schedule.
 // Divergence (NaN, infinite or exploding coordinates) throws DivergenceError; the map is not
 // returned. Functions here may be called from any thread; they share no state.
 #pragma once

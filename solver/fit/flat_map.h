@@ -2,7 +2,7 @@
 // objective as the live map (t-SNE neighbour term + blend * t-STE judgments, pins held) in 2-D,
 // started from the 3-D map projected onto its own principal plane (PCA of the map's rows), with
 // no early exaggeration (the structure is already there). The neighbour term's P is rebuilt from
-// the features exactly as solver/fit.h does. Pure function; runs on the calling thread (plus the
+// the features exactly as solver/fit/fit.h does. Pure function; runs on the calling thread (plus the
 // objective's worker threads).
 #pragma once
 #include <cstdint>
@@ -22,7 +22,7 @@ struct FlatMapOptions : MapParameters {
 };
 
 // map3d: N x 3 (N x 2 is accepted and simply refined). Returns N x 2. Throws
-// std::invalid_argument on sizes that do not match, or DivergenceError (solver/fit.h).
+// std::invalid_argument on sizes that do not match, or DivergenceError (solver/fit/fit.h).
 Points flatten_map(const Collection& collection, const Points& map3d, const std::vector<Judgment>& judgments,
                    const std::vector<int32_t>& pinned, const FlatMapOptions& options = {});
 

@@ -1,4 +1,4 @@
-// Schedule: what the optimizer does at iteration `it`, shared by the batch fit (solver/fit.h) and
+// Schedule: what the optimizer does at iteration `it`, shared by the batch fit (solver/fit/fit.h) and
 // the live engine, so both run the same effective schedule as scikit-learn 1.2's TSNE.
 //
 //   it <  exaggeration_iterations: P x early_exaggeration (12), momentum 0.5

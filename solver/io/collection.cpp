@@ -1,5 +1,5 @@
-// Collection loading: CSV/TSV tables (solver/csv_table.h) and .npy arrays (solver/npy_file.h)
-// turned into ids, features, tags and pictures, with the column rules of solver/collection.h.
+// Collection loading: CSV/TSV tables (solver/io/csv_table.h) and .npy arrays (solver/io/npy_file.h)
+// turned into ids, features, tags and pictures, with the column rules of solver/io/collection.h.
 //
 // Index:
 //   [SECTION] Problem, LoadError, Collection

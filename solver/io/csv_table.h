@@ -44,7 +44,7 @@ class CsvTable {
 
 // Parses CSV/TSV text. `separator` ',' or '\t'; 0 chooses: '\t' for a .tsv/.tab source name,
 // ',' for .csv, else whichever of the two is more frequent in the first line. Throws LoadError
-// (solver/collection.h) for an empty file, an unclosed quote, text after a closing quote and
+// (solver/io/collection.h) for an empty file, an unclosed quote, text after a closing quote and
 // ragged rows.
 CsvTable parse_csv(std::string text, const std::string& source, char separator = 0);
 

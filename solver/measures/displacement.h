@@ -6,7 +6,7 @@
 // active judgments naming i (as anchor, nearer or farther), each one's pull on i is the t-STE
 // force it exerts on i at the current map, projected on i's direction of travel u_i:
 //   pull_j = -(d cost_j / d y_i) . u_i,   u_i = (current_i - aligned reference_i) / D_i
-// computed by the judgment term itself (solver/judgment_term.h) on that judgment alone. Positive
+// computed by the judgment term itself (solver/objective/judgment_term.h) on that judgment alone. Positive
 // pulls pushed the item the way it went; the largest come first. (When D_i = 0 the force's length
 // is used instead.) Pure functions; any thread.
 #pragma once

@@ -11,7 +11,7 @@
 // The ranking sorts by score, then by how strongly the neighbours agree on one other tag (the
 // weighted share of the most common other tag, `likely_share`), then by item index.
 //
-// score_suspects works on neighbour graphs the caller already has (solver/neighbours.h);
+// score_suspects works on neighbour graphs the caller already has (solver/features/neighbours.h);
 // find_suspects searches them itself with find_neighbours. Pure functions; any thread.
 #pragma once
 #include <cstdint>

@@ -1,4 +1,4 @@
-// The demo's measured claim over several seeds (solver/demo_trial.h): held-out agreement with
+// The demo's measured claim over several seeds (solver/demo/demo_trial.h): held-out agreement with
 // the simulated people's hidden distance, features only / after N answers / control without them,
 // with and without learned block weights. Prints a table and the medians.
 //   build/tests/bench_demo [--answers N] [--seeds S] [--lambda L] [--random-share R] [--rule informative|random]

@@ -1,4 +1,4 @@
-// Benchmark of the live engine (solver/engine.h), 3-D, Barnes-Hut above 1,500 items.
+// Benchmark of the live engine (solver/live/engine.h), 3-D, Barnes-Hut above 1,500 items.
 // For each N: set-up time (neighbours and P, on the worker), iterations per second with snapshots
 // on, the time from posting a drag target to the first snapshot that shows it (median, p95), and
 // the time until a new judgment against the current map is satisfied (median of a few).

@@ -1,4 +1,4 @@
-// Benchmark: the Judgments panel's work per refresh at 50,000 judgments (solver/judgment_review.h):
+// Benchmark: the Judgments panel's work per refresh at 50,000 judgments (solver/measures/judgment_review.h):
 // filtering, same-question figures, per-person agreement with the map and the strongly violated
 // list, each timed as the median of 15 runs. Prints a table (milliseconds).
 //   cmake --build build --target bench_judgment_review && build/tests/bench_judgment_review

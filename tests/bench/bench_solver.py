@@ -4,7 +4,7 @@ Usage (from the repository root, after building):
   /usr/bin/python3 tests/bench/bench_solver.py [--build build] [--skip-100k] [--skip-sklearn-10k]
 
 Same data, 1000 iterations, 3-D, dof = 2 (scikit-learn fixes dof = max(dims - 1, 1) = 2), perplexity
-30, theta/angle 0.5, learning rate 'auto' (the same step in both, see solver/schedule.h), PCA start.
+30, theta/angle 0.5, learning rate 'auto' (the same step in both, see solver/fit/schedule.h), PCA start.
 Data: digits (sklearn.datasets.load_digits, 1797 x 64); a 10,000 x 50 Gaussian mixture (10
 centres, numpy seed 0); a 100,000 x 50 mixture (kith only). Reported: wall time and peak memory
 (both from /usr/bin/time -v of each run), KL(P||Q) of each final map computed by kith with the

@@ -1,4 +1,4 @@
-// libFuzzer target for the CSV/TSV collection loader (solver/csv_table.cpp, solver/collection.cpp).
+// libFuzzer target for the CSV/TSV collection loader (solver/io/csv_table.cpp, solver/io/collection.cpp).
 // Any input must either load into a consistent collection or throw LoadError; anything else
 // (a crash, a sanitizer report, another exception, a broken invariant) is a finding.
 // Build and run: see DEVELOPERS.md ("Fuzzing").

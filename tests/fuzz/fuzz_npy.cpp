@@ -1,4 +1,4 @@
-// libFuzzer target for the .npy reader (solver/npy_file.cpp) through the collection loader.
+// libFuzzer target for the .npy reader (solver/io/npy_file.cpp) through the collection loader.
 // Any input must either load into finite features of the declared shape or throw LoadError.
 // Build and run: see DEVELOPERS.md ("Fuzzing").
 #include <cmath>

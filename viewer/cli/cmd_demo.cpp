@@ -1,9 +1,9 @@
-// kith demo: the sample library of an interior studio (solver/sample_library.h), features from
-// its pictures (solver/picture_descriptors.h), and a simulated people (solver/simulated_people.h)
+// kith demo: the sample library of an interior studio (solver/demo/sample_library.h), features from
+// its pictures (solver/features/picture_descriptors.h), and a simulated people (solver/demo/simulated_people.h)
 // answering the most informative questions.
 //   With a display: the live map in the window; K lets the people answer 10 questions (shift+K: 100).
 //   Without one (or when the window cannot open): the measured story, headless and repeatable
-//   (solver/demo_trial.h): pictures of the features-only map, the first question and the map
+//   (solver/demo/demo_trial.h): pictures of the features-only map, the first question and the map
 //   after the answers, and the held-out agreement with the people's hidden distance, printed.
 // Main thread only.
 #include <chrono>
@@ -159,7 +159,7 @@ struct LiveDemo {
   const DemoData& data;
   MapFeed& feed;
   SimulatedPeople people;
-  Picker picker{neighbourhood_picker()};  // as the headless run (solver/demo_trial.h)
+  Picker picker{neighbourhood_picker()};  // as the headless run (solver/demo/demo_trial.h)
   std::vector<Judgment> truth;       // held-out triplets of the hidden distance
   std::vector<Judgment> answers;
   double first_agreement = -1.0;     // of the features-only map, when the first answer came
@@ -177,7 +177,7 @@ struct LiveDemo {
   }
 
   // What the answers so far say about the feature blocks; the engine rebuilds the map's affinities
-  // from the reweighted features off its hot loop and regroups (solver/block_weights.h).
+  // from the reweighted features off its hot loop and regroups (solver/features/block_weights.h).
   void reweight() {
     if (!learn_weights || blocks.empty() || answers.size() < size_t(trial.reweight_from)) return;
     weights = learn_block_weights(data.collection.features, blocks, answers, trial.weights);

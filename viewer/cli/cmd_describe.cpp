@@ -1,4 +1,4 @@
-// kith describe: features computed from pictures (solver/picture_descriptors.h), written as a CSV
+// kith describe: features computed from pictures (solver/features/picture_descriptors.h), written as a CSV
 // that kith reads as a collection (id, picture, then one column per feature).
 #include <cstdio>
 #include <filesystem>

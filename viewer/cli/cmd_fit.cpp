@@ -1,4 +1,4 @@
-// kith fit: a map computed headlessly from a collection's features (solver/fit.h), written as a
+// kith fit: a map computed headlessly from a collection's features (solver/fit/fit.h), written as a
 // layout CSV or JSON, with a progress line on stderr and the map's health at the end.
 #include <unistd.h>
 

@@ -1,6 +1,6 @@
-// kith report ITEMS|SESSION -o report.html: a self-contained HTML page (viewer/report_page.h)
+// kith report ITEMS|SESSION -o report.html: a self-contained HTML page (viewer/cli/report_page.h)
 // with the health figures, the suspect list, the groups table, the neighbourhoods the map keeps
-// worst and pictures of the map. For ITEMS it fits a map itself (solver/fit.h). Main thread only.
+// worst and pictures of the map. For ITEMS it fits a map itself (solver/fit/fit.h). Main thread only.
 #include <cmath>
 #include <algorithm>
 #include <cstdio>

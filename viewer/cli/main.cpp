@@ -1,5 +1,5 @@
 // kith: arrange a collection so that things that feel alike sit together.
-// Entry point: dispatches to one subcommand (viewer/commands.h). `kith ITEMS` alone opens ITEMS.
+// Entry point: dispatches to one subcommand (viewer/cli/commands.h). `kith ITEMS` alone opens ITEMS.
 #include <cstdio>
 #include <cstring>
 #include <exception>

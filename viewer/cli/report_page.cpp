@@ -1,6 +1,7 @@
 // The HTML report page (see report_page.h).
 // [SECTION] text helpers  [SECTION] pictures  [SECTION] page
 #include "viewer/cli/report_page.h"
+#include "viewer/scene/palette.h"
 
 #include <stb_image_write.h>
 
@@ -89,18 +90,21 @@ std::string fmt(const char* format, double v) {
 
 // ==== [SECTION] pictures ====================================================
 
-using Rgb = std::array<uint8_t, 3>;
-// Okabe & Ito's colour-blind-safe palette (without black, kept for rings), then two quieter
-// colours of our own for collections with more tags; the rest share a neutral grey.
-const Rgb kPalette[] = {{0xE6, 0x9F, 0x00}, {0x56, 0xB4, 0xE9}, {0x00, 0x9E, 0x73}, {0xF0, 0xE4, 0x42},
-                        {0x00, 0x72, 0xB2}, {0xD5, 0x5E, 0x00}, {0xCC, 0x79, 0xA7}, {0x8C, 0x6D, 0x46},
-                        {0x6F, 0x7F, 0x9E}, {0x9C, 0xB8, 0x6A}};
-constexpr size_t kPaletteSize = sizeof kPalette / sizeof kPalette[0];
-const Rgb kOther = {0xB4, 0xB0, 0xA8};
-const Rgb kPaper = {0xFB, 0xF9, 0xF4};
-const Rgb kInk = {0x22, 0x22, 0x22};
+using Rgb8 = std::array<uint8_t, 3>;
+constexpr Rgb8 rgb8(uint32_t hex) { return {uint8_t(hex >> 16), uint8_t(hex >> 8), uint8_t(hex)}; }
+// The window's categorical colours (viewer/scene/palette.h), so a tag value or group has the same
+// colour here; the rest share a neutral grey.
+const std::array<Rgb8, Palette::kCategorical.size()> kPalette = [] {
+  std::array<Rgb8, Palette::kCategorical.size()> out{};
+  for (size_t k = 0; k < out.size(); ++k) out[k] = rgb8(Palette::kCategorical[k]);
+  return out;
+}();
+constexpr size_t kPaletteSize = Palette::kCategorical.size();
+const Rgb8 kOther = rgb8(Palette::kOther);
+const Rgb8 kPaper = {0xFB, 0xF9, 0xF4};
+const Rgb8 kInk = {0x22, 0x22, 0x22};
 
-std::string hex(const Rgb& c) {
+std::string hex(const Rgb8& c) {
   char buf[8];
   std::snprintf(buf, sizeof buf, "#%02x%02x%02x", c[0], c[1], c[2]);
   return buf;
@@ -112,7 +116,7 @@ class Raster {
     for (size_t i = 0; i < pixels_.size(); i += 3) std::copy(kPaper.begin(), kPaper.end(), pixels_.begin() + long(i));
   }
   // A disc with a soft one-pixel edge; `ring` > 0 draws only an annulus of that width.
-  void disc(double cx, double cy, double r, const Rgb& c, double ring = 0.0) {
+  void disc(double cx, double cy, double r, const Rgb8& c, double ring = 0.0) {
     const int x0 = std::max(0, int(std::floor(cx - r - 1))), x1 = std::min(size_ - 1, int(std::ceil(cx + r + 1)));
     const int y0 = std::max(0, int(std::floor(cy - r - 1))), y1 = std::min(size_ - 1, int(std::ceil(cy + r + 1)));
     for (int y = y0; y <= y1; ++y)
@@ -215,7 +219,7 @@ std::string report_html(const ReportContent& c) {
       if (!t.empty()) ++tag_count[t];
   std::vector<std::pair<std::string, size_t>> tag_order(tag_count.begin(), tag_count.end());
   std::stable_sort(tag_order.begin(), tag_order.end(), [](const auto& a, const auto& b) { return a.second > b.second; });
-  std::map<std::string, Rgb> tag_colour;
+  std::map<std::string, Rgb8> tag_colour;
   for (size_t i = 0; i < tag_order.size(); ++i) tag_colour[tag_order[i].first] = i < kPaletteSize ? kPalette[i] : kOther;
   const size_t ringed = c.suspects ? std::min(c.list_rows, c.suspects->ranking.size()) : 0;
 
@@ -272,7 +276,7 @@ std::string report_html(const ReportContent& c) {
     std::sort(order.begin(), order.end(), [&](size_t a, size_t b) { return d[a] < d[b]; });  // most moved on top
     for (size_t i : order) {
       const double t = std::sqrt(std::clamp(d[i] / top, 0.0, 1.0));
-      const Rgb col = {uint8_t(std::lround(0xE4 + (0x8A - 0xE4) * t)), uint8_t(std::lround(0xDF + (0x2E - 0xDF) * t)),
+      const Rgb8 col = {uint8_t(std::lround(0xE4 + (0x8A - 0xE4) * t)), uint8_t(std::lround(0xDF + (0x2E - 0xDF) * t)),
                        uint8_t(std::lround(0xD4 + (0x0E - 0xD4) * t))};
       pic.disc(px[i][0], px[i][1], r, col);
     }

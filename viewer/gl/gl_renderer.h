@@ -1,4 +1,4 @@
-// GlRenderer: the OpenGL 3.3 core backend of Renderer (viewer/renderer.h). Points are GL_POINTS
+// GlRenderer: the OpenGL 3.3 core backend of Renderer (viewer/scene/renderer.h). Points are GL_POINTS
 // with a round sprite (much faster than instanced quads on Mesa's llvmpipe), judgment lines and the
 // floor grid are GL_LINES, picture cards are point sprites sampling a 1024 x 1024 texture atlas.
 // Shaders are read at run time from shader_directory(). Works in a GLFW window or in the EGL

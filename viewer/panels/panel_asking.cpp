@@ -28,9 +28,6 @@ ImU32 colour32(const Rgb& c, float alpha = 1.f) {
   return ImGui::ColorConvertFloat4ToU32(ImVec4(c.r, c.g, c.b, alpha));
 }
 ImFont* font_or_current(ImFont* f) { return f ? f : ImGui::GetFont(); }
-
-// Okabe-Ito, in the order people are added.
-const uint32_t kPeopleColours[] = {0x0072B2, 0xD55E00, 0x009E73, 0xCC79A7, 0xE69F00, 0x56B4E9, 0xF0E442, 0x000000};
 }  // namespace
 
 void AskingPanel::load_fonts(float scale) {
@@ -274,7 +271,7 @@ void AskingPanel::draw_people(float top) {
   ImGui::SameLine();
   add |= ImGui::Button("add");
   if (add) {
-    const uint32_t colour = kPeopleColours[people.size() % (sizeof kPeopleColours / sizeof kPeopleColours[0])];
+    const uint32_t colour = Palette::person_colour(people.size());
     panel_message_ = desk_->add_person(new_name_, colour);
     if (panel_message_.empty()) new_name_[0] = 0;
   }

@@ -1,5 +1,5 @@
 // AskingPanel: the asking screens drawn with Dear ImGui over the live map, on an AskingDesk
-// (viewer/asking_desk.h, the logic). Pair screen: the anchor large in the middle, the two
+// (viewer/scene/asking_desk.h, the logic). Pair screen: the anchor large in the middle, the two
 // candidates either side; grid screen: the anchor and N numbered candidates; both in a band at
 // the bottom so the map above stays visible and moving, with the question's items ringed in it.
 // Whose turn it is is shown large at the top; the people panel (add, rename, colour, turn rule,

@@ -8,11 +8,11 @@
 //              clipped (ImGuiListClipper), so 50,000 judgments stay fast.
 //   Agreement  per person: agreement with the map (share of their active judgments the map
 //              satisfies), consistency on questions they answered again, agreement with other people
-//              on shared questions (solver/judgment_review.h, from the judgments alone); a chart of
+//              on shared questions (solver/measures/judgment_review.h, from the judgments alone); a chart of
 //              each person's agreement with the map over time (sampled every few seconds); the
 //              judgments the map gives a t-STE probability below a threshold, to discuss.
 //   Files      import judgments from CSV (none of a bad file unless "skip bad rows" is ticked; every
-//              bad row listed with its line and cause) and export them (solver/judgment_io.h).
+//              bad row listed with its line and cause) and export them (solver/io/judgment_io.h).
 // The actions are plain methods, so tests drive them without a window (draw() needs ImGui).
 // Window thread only.
 #pragma once

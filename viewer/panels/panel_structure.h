@@ -1,5 +1,5 @@
 // StructurePanel: the window's "Structure" panel (key S): suspects, groups and neighbour
-// comparison for the map as it is now (solver/map_findings.h).
+// comparison for the map as it is now (solver/measures/map_findings.h).
 //   Suspects: ranked list; choosing one flies the camera to it, selects it with its map
 //     neighbours (so their picture cards show side by side) and lists its neighbours' tags in
 //     the features and in the map; the map can be coloured by suspect score.
@@ -7,8 +7,8 @@
 //     members; colour by group.
 //   Neighbours: for the selected item, its nearest in the features and in the map side by side
 //     with ranks, gained and lost; the items whose neighbourhoods the map keeps worst.
-//   Moved: fits the judgment-free reference map from the features alone (solver/fit.h, default
-//     options, on a helper thread), aligns it with the map now (solver/displacement.h) and lists
+//   Moved: fits the judgment-free reference map from the features alone (solver/fit/fit.h, default
+//     options, on a helper thread), aligns it with the map now (solver/measures/displacement.h) and lists
 //     the most moved items, colours by displacement, and names the judgments that pulled the
 //     selected item most.
 // The work runs on a helper thread over copies of the features, the snapshot's positions and the

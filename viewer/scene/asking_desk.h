@@ -1,5 +1,5 @@
 // AskingDesk: the logic behind the asking screens, with no GL or ImGui, so tests drive it
-// directly. It owns the question flow (solver/question_flow.h) and the picker (solver/picker.h),
+// directly. It owns the question flow (solver/asking/question_flow.h) and the picker (solver/asking/picker.h),
 // maps keys to answers, and sends every answer through the window's post path:
 //   an answer's judgments are posted one by one through links.post (which writes them to the
 //   session first and gives each its stored id); if any is refused, the ones already posted are

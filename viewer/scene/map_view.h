@@ -1,8 +1,8 @@
 // MapView: everything the map window shows, as logic without GL or GLFW: the current map
 // (from engine snapshots), the camera, the selection, hover and drag state, colouring and legend,
 // picture cards, judgment lines, the floor grid. It turns that state into renderer data
-// (viewer/renderer.h) and asks the renderer to draw; the window (viewer/app.h) and the windowless
-// path (viewer/offscreen_render.h) both drive one, and the tests drive one over MockRenderer.
+// (viewer/scene/renderer.h) and asks the renderer to draw; the window (viewer/window/app.h) and the windowless
+// path (viewer/window/offscreen_render.h) both drive one, and the tests drive one over MockRenderer.
 // Window (or render) thread only.
 #pragma once
 #include <cstdint>

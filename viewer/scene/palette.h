@@ -1,8 +1,11 @@
-// Palette: kith's colours. A light, paper-like ground by default (a dark one as an option) and the
-// published Okabe-Ito colour-blind-safe categorical colours, reordered so the first ones read well
-// on paper (yellow and black come last). Pure data; any thread.
+// Palette: kith's colours, the one table for the window, its pictures, the HTML report and the
+// people list, so a tag value has the same colour everywhere. A light, paper-like ground by
+// default (a dark one as an option); categorical colours from the published Okabe-Ito
+// colour-blind-safe set plus three quieter ones of our own, ordered so the first ones read well
+// on paper (yellow comes last; black is the ink, not a category). Pure data; any thread.
 #pragma once
 #include <array>
+#include <cstddef>
 #include <cstdint>
 
 namespace kith {
@@ -25,15 +28,20 @@ struct Palette {
   Rgb card_frame;  // frame around picture cards
   bool dark = false;
 
-  // Okabe-Ito: blue, orange, bluish green, vermillion, reddish purple, sky blue, yellow, black.
-  static constexpr std::array<uint32_t, 8> kCategorical = {0x0072B2, 0xE69F00, 0x009E73, 0xD55E00,
-                                                           0xCC79A7, 0x56B4E9, 0xF0E442, 0x000000};
+  // Okabe-Ito blue, orange, bluish green, vermillion, reddish purple, sky blue; then umber, slate
+  // and sage of our own; Okabe-Ito yellow last.
+  static constexpr std::array<uint32_t, 10> kCategorical = {0x0072B2, 0xE69F00, 0x009E73, 0xD55E00, 0xCC79A7,
+                                                            0x56B4E9, 0x8C6D46, 0x6F7F9E, 0x9CB86A, 0xF0E442};
+  static constexpr uint32_t kOther = 0xB4B0A8;  // values past the table, in pictures and the report
   Rgb category(int k) const {
     if (k < 0) return muted;
-    const int n = int(kCategorical.size());
-    Rgb c = rgb_hex(kCategorical[k % n]);
-    if (dark && k % n == n - 1) c = {0.85f, 0.85f, 0.85f};  // black on a dark ground: light grey
-    return c;
+    return rgb_hex(kCategorical[size_t(k) % kCategorical.size()]);
+  }
+  // People's colours, in the order they are added: the categorical table with vermillion second,
+  // so the first two people differ most.
+  static uint32_t person_colour(size_t k) {
+    static constexpr std::array<int, 10> order = {0, 3, 2, 4, 1, 5, 6, 7, 8, 9};
+    return kCategorical[size_t(order[k % order.size()])];
   }
   // A sequential ramp for measures (0..1): from the paper's pale blue-grey to deep blue, then
   // vermillion at the top end, so high values stand out on either ground.

@@ -32,7 +32,7 @@ struct WindowHooks {
   // write to), else why it was not. Judgments, retractions and pins are not events: they go
   // through MapFeed::prepare/post.
   std::function<std::string(const SessionEvent& event)> record_event;
-  // Sessions (viewer/session_link.h, viewer/session_menu.h):
+  // Sessions (viewer/session/session_link.h, viewer/window/session_menu.h):
   std::function<std::string()> title_state;  // the saving state for the title bar (polled each second)
   std::function<void()> menus;               // more menus, drawn inside the main menu bar
   std::function<void()> windows;             // more windows, drawn once per frame

@@ -1,7 +1,7 @@
 // Exports of a map and its judgments, shared by `kith export` (from a session file) and the
 // window's Session menu (from the live map): layouts (CSV or JSON: id, x, y[, z], tags, group,
 // suspect score), judgments (CSV, people as names, codes or left out), and the flat 2-D layout
-// (solver/flat_map.h). Every output goes through a temporary file and a rename, and no export
+// (solver/fit/flat_map.h). Every output goes through a temporary file and a rename, and no export
 // ever writes over a session (or any SQLite file). Main thread (or any one thread).
 #pragma once
 #include <cstdint>
@@ -21,7 +21,7 @@ namespace kith {
 std::string check_export_target(const std::string& out, const std::string& session);
 
 // Writes the layout of `map` (N x 2 or N x 3) to OUT: JSON when it ends in .json, else CSV.
-// Groups come from solver/groups.h, suspect scores from solver/suspects.h over `tag_column`
+// Groups come from solver/measures/groups.h, suspect scores from solver/measures/suspects.h over `tag_column`
 // (default: the first tag column). Returns "" or a message; notes go to stderr.
 std::string export_layout(const Collection& collection, const Points& map, uint64_t iteration,
                           const std::string& out, const std::string& tag_column, const std::string& session);
@@ -34,7 +34,7 @@ std::string export_judgments(std::vector<Judgment> judgments, const Collection& 
 // at (items - 1) / 3 so that small collections still have enough neighbours).
 FlatMapOptions flat_options(const SessionSettings& settings, size_t items);
 
-// Flattens `map` to 2-D with solver/flat_map.h and writes it like export_layout (CSV or JSON).
+// Flattens `map` to 2-D with solver/fit/flat_map.h and writes it like export_layout (CSV or JSON).
 // `agreement` (may be null) receives the share of non-retracted judgments the flat map satisfies.
 std::string export_flat(const Collection& collection, const Points& map, const std::vector<Judgment>& judgments,
                         const std::vector<int32_t>& pinned, const FlatMapOptions& options, const std::string& out,

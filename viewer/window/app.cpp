@@ -1023,9 +1023,8 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       links.selection = [&app] { return app.view->selection().items(); };
       links.now = [] { return std::chrono::duration<double>(std::chrono::system_clock::now().time_since_epoch()).count(); };
       app.asking = std::make_unique<AskingPanel>(collection, *app.view, std::move(links), app.index_of_id);
-      const uint32_t colours[] = {0x0072B2, 0xD55E00, 0x009E73, 0xCC79A7, 0xE69F00, 0x56B4E9};
       for (const std::string& name : options.people)
-        if (const std::string e = app.asking->desk().add_person(name, colours[app.asking->desk().flow().people().size() % 6]);
+        if (const std::string e = app.asking->desk().add_person(name, Palette::person_colour(app.asking->desk().flow().people().size()));
             !e.empty())
           std::fprintf(stderr, "kith open: --people: %s\n", e.c_str());
     }

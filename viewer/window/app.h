@@ -31,13 +31,13 @@ struct WindowOptions {
   double blend = 1.0, perplexity = 30.0, theta = 0.5;
   // Test and benchmark hooks (hidden options of kith open):
   int frames = 0;                // quit after this many frames; 0 = until the window closes (default: 0)
-  std::string script;            // replayable input events (viewer/input_script.h) (default: none)
+  std::string script;            // replayable input events (viewer/window/input_script.h) (default: none)
   std::string screenshot;        // PNG of the last frame (default: none)
   std::string fps_report;        // JSON with frame-time figures at the end (default: none)
   std::string IsValid() const;
 };
 
-// The hooks every window gets unless told otherwise: teach through solver/teach.h when built in.
+// The hooks every window gets unless told otherwise: teach through solver/asking/teach.h when built in.
 WindowHooks default_window_hooks();
 
 // Runs the window until closed (or options.frames). Returns a kith exit code; prints problems.
