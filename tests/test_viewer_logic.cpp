@@ -532,17 +532,28 @@ TEST_CASE("viewer scene: level of detail draws a sample while the view moves, ev
 
 namespace kith {
 namespace {
-TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow and grows back") {
-  const Collection c = synthetic_collection(60000, 3);
-  MockRenderer renderer;
-  StillFeed feed(c.ids, rough_positions(c));
-  MapView view(c, renderer);
-  view.set_snapshot(feed.latest());
-  auto moving_frame = [&](float seconds) {
+// A still map of `n` items in a MapView over the mock renderer; moving_frame turns the camera,
+// draws one frame and reports how long it took.
+struct MovingScene {
+  explicit MovingScene(size_t n)
+      : c(synthetic_collection(n, 3)), feed(c.ids, rough_positions(c)), view(c, renderer) {
+    view.set_snapshot(feed.latest());
+  }
+  void moving_frame(float seconds) {
     view.camera().orbit(5, 0);
     view.frame(1.f / 60, 800, 600);
     view.note_frame_time(seconds);
-  };
+  }
+  const Collection c;
+  MockRenderer renderer;
+  StillFeed feed;
+  MapView view;
+};
+
+TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow and grows back") {
+  MovingScene scene(60000);
+  MapView& view = scene.view;
+  auto moving_frame = [&](float seconds) { scene.moving_frame(seconds); };
   moving_frame(0.02f);
   REQUIRE(view.reduced_detail());
   CHECK(view.detail_budget() == 40000);
@@ -550,24 +561,13 @@ TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow
   CHECK(view.detail_budget() == 5000);                // down to the floor
   for (int k = 0; k < 80; ++k) moving_frame(0.01f);  // 100 fps: room to spare
   CHECK(view.detail_budget() == 40000);               // back up to the cap, never beyond
-  CHECK(renderer.last_frame.point_budget == 40000);
+  CHECK(scene.renderer.last_frame.point_budget == 40000);
 }
-}  // namespace
-}  // namespace kith
 
-namespace kith {
-namespace {
 TEST_CASE("viewer scene: below the cap, slow frames still thin the moving view, fast frames draw all") {
-  const Collection c = synthetic_collection(12000, 3);
-  MockRenderer renderer;
-  StillFeed feed(c.ids, rough_positions(c));
-  MapView view(c, renderer);
-  view.set_snapshot(feed.latest());
-  auto moving_frame = [&](float seconds) {
-    view.camera().orbit(5, 0);
-    view.frame(1.f / 60, 800, 600);
-    view.note_frame_time(seconds);
-  };
+  MovingScene scene(12000);
+  MapView& view = scene.view;
+  auto moving_frame = [&](float seconds) { scene.moving_frame(seconds); };
   moving_frame(0.01f);
   CHECK_FALSE(view.reduced_detail());  // 12,000 fit the budget
   for (int k = 0; k < 40; ++k) moving_frame(0.2f);

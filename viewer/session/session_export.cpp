@@ -158,12 +158,11 @@ std::string export_judgments(std::vector<Judgment> judgments, const Collection& 
 
 FlatMapOptions flat_options(const SessionSettings& settings, size_t items) {
   FlatMapOptions fo;
-  fo.perplexity = std::min(settings.perplexity, std::max(1.0, double(items > 0 ? items - 1 : 0) / 3.0));
-  fo.blend = settings.blend;
-  fo.theta = settings.theta;
-  fo.dof = settings.dof;
-  fo.learning_rate = settings.learning_rate;
-  fo.seed = settings.seed;
+  const int64_t steps = fo.iterations;  // the flat map's own number of steps
+  static_cast<MapParameters&>(fo) = settings;
+  fo.iterations = steps;
+  // A 2-D refinement of a settled map needs fewer neighbours than the 3-D one may use.
+  fo.perplexity = std::min(settings.perplexity_for(items), std::max(1.0, double(items > 0 ? items - 1 : 0) / 3.0));
   return fo;
 }
 
