@@ -49,9 +49,9 @@ std::string judgment_problem(const Judgment& j, size_t n) {
         m << roles[a].name << " and " << roles[b].name << " are the same item (" << roles[a].item << ")";
         return m.str();
       }
-  if (!(j.weight > 0.0) || !std::isfinite(j.weight)) {
+  if (!(j.weight > 0.0) || !(j.weight <= kMaxJudgmentWeight)) {
     std::ostringstream m;
-    m << "weight must be a positive number, got " << j.weight;
+    m << "weight must be a number above 0 and at most " << kMaxJudgmentWeight << ", got " << j.weight;
     return m.str();
   }
   return "";

@@ -17,6 +17,13 @@ enum class JudgmentKind : int {
 const char* to_string(JudgmentKind kind);
 bool judgment_kind_from_string(const std::string& text, JudgmentKind* kind);
 
+// A judgment's weight scales its term in the objective; past this one judgment would outweigh a
+// thousand others, which no person means.
+constexpr double kMaxJudgmentWeight = 1000.0;
+// Judgment times: seconds since 1970-01-01T00:00:00Z, after it and before 10000-01-01 (so every
+// time kith writes reads back as an ISO 8601 date). 0 means "not given".
+constexpr double kLatestJudgmentTime = 253402300800.0;  // 10000-01-01T00:00:00Z
+
 struct Judgment {
   int64_t id = -1;          // stable id in the session (-1: not stored yet)
   int32_t anchor = -1;      // item indices
@@ -25,7 +32,7 @@ struct Judgment {
   std::string person;       // who made it; may be a pseudonym or empty
   double time = 0.0;        // seconds since the Unix epoch
   JudgmentKind kind = JudgmentKind::kOwn;
-  double weight = 1.0;      // > 0
+  double weight = 1.0;      // above 0, at most kMaxJudgmentWeight
   bool retracted = false;   // kept in the record, ignored by the objective
 };
 

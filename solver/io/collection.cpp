@@ -8,6 +8,7 @@
 //   [SECTION] Ids, pictures, warnings
 //   [SECTION] Loaders
 #include "solver/io/collection.h"
+#include "solver/io/text_fields.h"
 
 #include <algorithm>
 #include <cctype>
@@ -271,10 +272,13 @@ std::vector<std::string> read_ids(const CsvTable& t, const std::vector<std::stri
   std::unordered_map<std::string_view, size_t> seen;
   seen.reserve(rows);
   for (size_t r = 0; r < rows; ++r) {
-    const std::string_view v = t.field(r, id);
-    if (trim(v).empty()) {
+    const std::string_view raw_id = t.field(r, id);
+    if (trim(raw_id).empty()) {
       fail(t.source, t.line(r), long(id + 1), "expected an id in column " + in_quotes(names[id]) + ", found an empty field");
     }
+    // kith's CSV writer puts an apostrophe before an id a spreadsheet would run as a formula
+    // (solver/io/text_fields.h); reading it back takes it away, as the judgments reader does.
+    const std::string_view v = is_neutralized(raw_id) ? raw_id.substr(1) : raw_id;
     const auto [it, fresh] = seen.emplace(v, r);
     if (!fresh) {
       fail(t.source, t.line(r), long(id + 1),

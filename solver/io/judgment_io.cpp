@@ -39,8 +39,9 @@ std::string trim(const std::string& s) {
 // One RFC 4180 record starting at `pos`; advances `pos` and `line` past it. Returns false with
 // *error set on an unterminated quote.
 bool next_record(const std::string& text, size_t& pos, long& line, std::vector<std::string>& fields,
-                 std::string* error) {
+                 std::vector<bool>& quoted_fields, std::string* error) {
   fields.assign(1, std::string());
+  quoted_fields.assign(1, false);
   bool quoted = false;
   while (pos < text.size()) {
     const char c = text[pos];
@@ -61,10 +62,16 @@ bool next_record(const std::string& text, size_t& pos, long& line, std::vector<s
     }
     if (c == '"') {
       quoted = true;
+      quoted_fields.back() = true;
     } else if (c == ',') {
       fields.emplace_back();
+      quoted_fields.push_back(false);
+    } else if (c == '\r' && (pos + 1 >= text.size() || text[pos + 1] != '\n')) {
+      ++pos;  // a lone CR ends the line too
+      ++line;
+      return true;
     } else if (c == '\r') {
-      // part of a line ending
+      // CR of CRLF
     } else if (c == '\n') {
       ++pos;
       ++line;
@@ -163,14 +170,16 @@ JudgmentReadResult parse_judgments_csv(const std::string& text, const std::strin
 
   int where[kColumns];
   for (int c = 0; c < kColumns; ++c) where[c] = c;  // positional unless a header says otherwise
-  size_t pos = 0;
+  // A UTF-8 byte order mark is exactly EF BB BF at the start.
+  size_t pos = text.compare(0, 3, "\xEF\xBB\xBF") == 0 ? 3 : 0;
   long line = 1;
   bool first = true;
   std::vector<std::string> fields;
+  std::vector<bool> quoted_fields;  // a quoted field keeps its spaces
   while (pos < text.size()) {
     const long row_line = line;
     std::string error;
-    if (!next_record(text, pos, line, fields, &error)) {
+    if (!next_record(text, pos, line, fields, quoted_fields, &error)) {
       report(row_line, 0, error);
       ++result.bad_rows;
       break;
@@ -178,7 +187,6 @@ JudgmentReadResult parse_judgments_csv(const std::string& text, const std::strin
     if (is_blank(fields)) continue;
     if (first) {
       first = false;
-      if (row_line == 1 && fields.size() >= 3 && !fields[0].empty() && fields[0][0] == '\xEF') fields[0] = fields[0].substr(3);  // UTF-8 BOM
       bool header = false;
       for (const auto& f : fields)
         for (const char* name : kColumnNames)
@@ -217,8 +225,14 @@ JudgmentReadResult parse_judgments_csv(const std::string& text, const std::strin
     ++result.rows;
     const size_t problems_before = result.problems.size();
     bool bad = false;
-    auto field = [&](int c) -> std::string {
-      return where[c] >= 0 && size_t(where[c]) < fields.size() ? trim(fields[size_t(where[c])]) : std::string();
+    // Ids are compared exactly as written, as the collection loader keeps them (no trimming);
+    // the other fields are trimmed.
+    auto exact = [&](int c) -> std::string {
+      return where[c] >= 0 && size_t(where[c]) < fields.size() ? fields[size_t(where[c])] : std::string();
+    };
+    auto field = [&](int c) {
+      const bool quoted = where[c] >= 0 && size_t(where[c]) < quoted_fields.size() && quoted_fields[size_t(where[c])];
+      return quoted ? exact(c) : trim(exact(c));
     };
     int max_col = 0;
     for (int c = 0; c < kColumns; ++c) max_col = std::max(max_col, where[c] + 1);
@@ -236,26 +250,34 @@ JudgmentReadResult parse_judgments_csv(const std::string& text, const std::strin
     j.kind = JudgmentKind::kImport;
     int32_t* roles[3] = {&j.anchor, &j.nearer, &j.farther};
     for (int c : {kAnchor, kNearer, kFarther}) {
-      const std::string id = field(c);
+      const std::string id = unneutralized(exact(c));
       const long col = long(where[c] + 1);
-      if (id.empty()) {
+      if (trim(id).empty()) {
         report(row_line, col, std::string(kColumnNames[c]) + " is empty");
         bad = true;
         continue;
       }
       auto it = index.find(id);
       if (it == index.end()) {
-        report(row_line, col, std::string(kColumnNames[c]) + " '" + id + "' is not an item of the collection");
+        const bool spaced = trim(id) != id && index.count(trim(id));
+        report(row_line, col, std::string(kColumnNames[c]) + " '" + id + "' is not an item of the collection" +
+                                  (spaced ? " (ids are compared exactly: the spaces around it are part of it)" : ""));
         bad = true;
         continue;
       }
       *roles[c] = it->second;
     }
-    j.person = field(kPerson);
-    if (!field(kTime).empty() && !parse_time(field(kTime), &j.time)) {
-      report(row_line, long(where[kTime] + 1),
-             "time '" + field(kTime) + "' is neither seconds since 1970 nor an ISO 8601 time like 2026-12-01T21:54:23Z");
-      bad = true;
+    j.person = unneutralized(field(kPerson));
+    if (!field(kTime).empty()) {
+      if (!parse_time(field(kTime), &j.time)) {
+        report(row_line, long(where[kTime] + 1),
+               "time '" + field(kTime) + "' is neither seconds since 1970 nor an ISO 8601 time like 2026-12-01T21:54:23Z");
+        bad = true;
+      } else if (!(j.time > 0.0 && j.time < kLatestJudgmentTime)) {
+        report(row_line, long(where[kTime] + 1),
+               "time '" + field(kTime) + "' is outside 1970-01-01 .. 9999-12-31 (leave it empty for the time of import)");
+        bad = true;
+      }
     }
     if (!field(kKind).empty() && !judgment_kind_from_string(lower(field(kKind)), &j.kind)) {
       report(row_line, long(where[kKind] + 1), "kind '" + field(kKind) + "' is not one of own, pair, grid, drag, import");
@@ -265,8 +287,9 @@ JudgmentReadResult parse_judgments_csv(const std::string& text, const std::strin
       char* end = nullptr;
       const std::string w = field(kWeight);
       j.weight = std::strtod(w.c_str(), &end);
-      if (!end || *end != '\0' || !(j.weight > 0) || !std::isfinite(j.weight)) {
-        report(row_line, long(where[kWeight] + 1), "weight '" + w + "' is not a positive number");
+      if (!end || *end != '\0' || !(j.weight > 0) || !(j.weight <= kMaxJudgmentWeight)) {
+        report(row_line, long(where[kWeight] + 1),
+               "weight '" + w + "' is not a number above 0 and at most " + std::to_string(int(kMaxJudgmentWeight)));
         bad = true;
       }
     }

@@ -2,10 +2,38 @@
 #include "solver/io/text_fields.h"
 
 #include <cstdio>
+#include <cstdlib>
 
 namespace kith {
 
-std::string csv_field(const std::string& text) {
+namespace {
+
+bool formula_start(char c) { return c == '=' || c == '+' || c == '-' || c == '@' || c == '\t' || c == '\r'; }
+
+bool plain_number(const std::string& text) {
+  if (text.empty()) return false;
+  char* end = nullptr;
+  std::strtod(text.c_str(), &end);
+  return end == text.c_str() + text.size();
+}
+
+}  // namespace
+
+// The text starts with apostrophes and then a formula character.
+bool is_neutralized(std::string_view text) {
+  size_t k = 0;
+  while (k < text.size() && text[k] == '\'') ++k;
+  return k > 0 && k < text.size() && formula_start(text[k]);
+}
+
+std::string unneutralized(const std::string& field) {
+  return is_neutralized(field) ? field.substr(1) : field;
+}
+
+std::string csv_field(const std::string& raw_text, bool raw) {
+  std::string text = raw_text;
+  if (!raw && !text.empty() && ((formula_start(text[0]) && !plain_number(text)) || is_neutralized(text)))
+    text.insert(text.begin(), '\'');
   const bool plain = text.find_first_of(",\"\r\n") == std::string::npos &&
                      (text.empty() || (text.front() != ' ' && text.back() != ' '));
   if (plain) return text;
