@@ -2,6 +2,10 @@
 // never passes the read position), so no per-field allocation.
 #include "solver/io/csv_table.h"
 
+#include <unistd.h>
+
+#include <fcntl.h>
+
 #include <algorithm>
 #include <cctype>
 #include <cerrno>
@@ -162,24 +166,56 @@ CsvTable parse_csv(std::string text, const std::string& source, char separator) 
   return table;
 }
 
+namespace {
+
+const char* file_kind(mode_t mode) {
+  if (S_ISDIR(mode)) return "a folder";
+  if (S_ISCHR(mode)) return "a character device";
+  if (S_ISBLK(mode)) return "a block device";
+  if (S_ISFIFO(mode)) return "a pipe (FIFO)";
+  if (S_ISSOCK(mode)) return "a socket";
+  return "not a regular file";
+}
+
+std::string gigabytes(double bytes) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.1f GB", bytes / 1e9);
+  return buf;
+}
+
+}  // namespace
+
 std::string read_file(const std::string& path) {
+  // O_NONBLOCK: opening a FIFO must not wait for a writer; it is refused below anyway.
+  const int fd = ::open(path.c_str(), O_RDONLY | O_NONBLOCK | O_CLOEXEC);
+  if (fd < 0) throw LoadError(Problem{path, 0, 0, std::string("cannot open: ") + std::strerror(errno)});
   struct stat st {};
-  if (::stat(path.c_str(), &st) == 0 && S_ISDIR(st.st_mode)) {
-    throw LoadError(Problem{path, 0, 0, "expected a file, found a folder"});
+  if (::fstat(fd, &st) != 0 || !S_ISREG(st.st_mode)) {
+    const std::string what = ::fstat(fd, &st) != 0 ? std::string(std::strerror(errno)) : std::string(file_kind(st.st_mode));
+    ::close(fd);
+    throw LoadError(Problem{path, 0, 0, "expected a regular file, found " + what});
   }
-  std::FILE* f = std::fopen(path.c_str(), "rb");
-  if (!f) throw LoadError(Problem{path, 0, 0, std::string("cannot open: ") + std::strerror(errno)});
-  std::string data;
-  if (S_ISREG(st.st_mode) && st.st_size > 0) {  // read straight into place
-    data.resize(size_t(st.st_size));
-    data.resize(std::fread(data.data(), 1, data.size(), f));
+  // Bounded: the whole file is held in memory, so it must fit with room to spare.
+  const double pages = double(::sysconf(_SC_PHYS_PAGES)), page = double(::sysconf(_SC_PAGESIZE));
+  const double limit = pages > 0 && page > 0 ? 0.5 * pages * page : 8e9;
+  if (double(st.st_size) > limit) {
+    ::close(fd);
+    throw LoadError(Problem{path, 0, 0, "the file is " + gigabytes(double(st.st_size)) + "; reading it needs more than half of this machine's " +
+                                            gigabytes(2 * limit) + " of memory"});
   }
-  char buf[1 << 16];
-  size_t got;
-  while ((got = std::fread(buf, 1, sizeof buf, f)) > 0) data.append(buf, got);  // grew meanwhile, or a pipe
-  const bool bad = std::ferror(f);
-  std::fclose(f);
-  if (bad) throw LoadError(Problem{path, 0, 0, "cannot read the whole file"});
+  std::string data(size_t(st.st_size), '\0');
+  size_t done = 0;
+  while (done < data.size()) {
+    const ssize_t got = ::read(fd, data.data() + done, data.size() - done);
+    if (got < 0 && errno == EINTR) continue;
+    if (got <= 0) break;  // shrank meanwhile: keep what is there
+    done += size_t(got);
+  }
+  const int read_errno = errno;
+  ::close(fd);
+  if (done < data.size() && read_errno != 0 && read_errno != EAGAIN)
+    throw LoadError(Problem{path, 0, 0, std::string("cannot read the whole file: ") + std::strerror(read_errno)});
+  data.resize(done);
   return data;
 }
 

@@ -9,6 +9,7 @@
 #include <sstream>
 #include <unordered_map>
 
+#include "solver/io/csv_table.h"
 #include "solver/io/text_fields.h"
 
 namespace kith {
@@ -317,15 +318,15 @@ JudgmentReadResult parse_judgments_csv(const std::string& text, const std::strin
 
 JudgmentReadResult read_judgments_csv(const std::string& path, const std::vector<std::string>& ids,
                                       const JudgmentReadOptions& options) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) {
+  std::string text;
+  try {
+    text = read_file(path);  // regular files only, bounded (solver/io/csv_table.h)
+  } catch (const LoadError& e) {
     JudgmentReadResult r;
-    r.problems.push_back({path, 0, 0, "cannot open the judgments file"});
+    r.problems.push_back({path, 0, 0, "cannot read the judgments file: " + e.problem().message});
     return r;
   }
-  std::ostringstream text;
-  text << in.rdbuf();
-  return parse_judgments_csv(text.str(), path, ids, options);
+  return parse_judgments_csv(text, path, ids, options);
 }
 
 std::string format_judgments_csv(const std::vector<Judgment>& judgments, const std::vector<std::string>& ids,
