@@ -19,18 +19,47 @@ Pca fit_pca(const Points& x, int m) {
   Pca p;
   p.mean = x.colwise().mean();
   const Eigen::MatrixXd centred = x.rowwise() - p.mean;
-  const Eigen::MatrixXd cov = (centred.transpose() * centred) / double(n);
-  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(cov);
-  if (es.info() != Eigen::Success) throw std::runtime_error("PCA: eigen decomposition failed");
   p.axes.resize(f, m);
   p.variances.resize(m);
-  for (int c = 0; c < m; ++c) {  // eigenvalues come in increasing order
-    Eigen::VectorXd v = es.eigenvectors().col(f - 1 - c);
+  // Sign convention: each axis has its largest component positive (so a seed gives one map).
+  auto set_axis = [&p](int c, Eigen::VectorXd v, double variance) {
     Eigen::Index big;
     v.cwiseAbs().maxCoeff(&big);
     if (v(big) < 0) v = -v;
     p.axes.col(c) = v;
-    p.variances(c) = std::max(0.0, es.eigenvalues()(f - 1 - c));
+    p.variances(c) = std::max(0.0, variance);
+  };
+  if (f <= n) {
+    // Covariance C = Xc^T Xc / N (F x F): O(N F^2) to form, O(F^3) to decompose.
+    const Eigen::MatrixXd cov = (centred.transpose() * centred) / double(n);
+    Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(cov);
+    if (es.info() != Eigen::Success) throw std::runtime_error("PCA: eigen decomposition failed");
+    for (int c = 0; c < m; ++c)  // eigenvalues come in increasing order
+      set_axis(c, es.eigenvectors().col(f - 1 - c), es.eigenvalues()(f - 1 - c));
+  } else {
+    // Wide data: the Gram matrix G = Xc Xc^T / N (N x N) has the same nonzero eigenvalues; an
+    // eigenvector u of G with eigenvalue l gives the axis Xc^T u / sqrt(N l). O(N^2 F + N^3), so
+    // 300 x 6,000 costs a 300 x 300 decomposition instead of a 6,000 x 6,000 one.
+    const Eigen::MatrixXd gram = (centred * centred.transpose()) / double(n);
+    Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(gram);
+    if (es.info() != Eigen::Success) throw std::runtime_error("PCA: eigen decomposition failed");
+    for (int c = 0; c < m; ++c) {
+      const Eigen::Index k = n - 1 - c;
+      const double variance = c < n ? es.eigenvalues()(std::max<Eigen::Index>(k, 0)) : 0.0;
+      Eigen::VectorXd v = Eigen::VectorXd::Zero(f);
+      if (k >= 0 && variance > 1e-300) v = centred.transpose() * es.eigenvectors().col(k) / std::sqrt(double(n) * variance);
+      if (!(v.squaredNorm() > 0.5)) {
+        // No variance left along this axis (m > rank): any unit vector orthogonal to the others.
+        for (Eigen::Index e = 0; e < f && !(v.squaredNorm() > 0.5); ++e) {
+          Eigen::VectorXd t = Eigen::VectorXd::Unit(f, e);
+          for (int q = 0; q < c; ++q) t -= p.axes.col(q).dot(t) * p.axes.col(q);
+          if (t.norm() > 1e-6) v = t / t.norm();
+        }
+        set_axis(c, v, 0.0);
+        continue;
+      }
+      set_axis(c, v.normalized(), variance);
+    }
   }
   return p;
 }
