@@ -97,7 +97,7 @@ bool ends_with_ci(std::string_view s, std::string_view suffix) {
 
 // ==== [SECTION] Cells: numbers and text =====================================================
 
-enum Cell : unsigned char { kNumber, kNonFinite, kText, kEmpty };
+enum Cell : unsigned char { kNumber, kNonFinite, kText, kEmpty, kTooLarge };
 
 std::string_view trim(std::string_view s) {
   while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
@@ -122,7 +122,8 @@ Cell parse_cell(std::string_view raw, double* value) {
     return std::isfinite(*value) ? kNumber : kNonFinite;
   }
   if (ec != std::errc()) return kText;
-  return std::isfinite(*value) ? kNumber : kNonFinite;
+  if (!std::isfinite(*value)) return kNonFinite;
+  return std::abs(*value) <= kMaxFeatureMagnitude ? kNumber : kTooLarge;
 }
 
 struct ColumnStats {
@@ -387,10 +388,13 @@ Collection load_table(std::string data, const std::string& name, const LoadOptio
       if (kind != kNumber) {
         const std::string& col = names[j];
         const std::string_view raw = t.field(r, j);
-        std::string what = kind == kEmpty ? "expected a number in feature column " + in_quotes(col) + ", found an empty field"
-                           : kind == kText ? "expected a number in feature column " + in_quotes(col) + ", found " + in_quotes(raw)
-                                           : "expected a finite number in feature column " + in_quotes(col) + ", found " +
-                                                 in_quotes(trim(raw));
+        std::string what =
+            kind == kEmpty      ? "expected a number in feature column " + in_quotes(col) + ", found an empty field"
+            : kind == kText     ? "expected a number in feature column " + in_quotes(col) + ", found " + in_quotes(raw)
+            : kind == kTooLarge ? "expected a number of at most 1e100 in size in feature column " + in_quotes(col) +
+                                      ", found " + in_quotes(trim(raw)) + " (distances between such numbers overflow)"
+                                : "expected a finite number in feature column " + in_quotes(col) + ", found " +
+                                      in_quotes(trim(raw));
         fail(name, t.line(r), long(j + 1), what);
       }
       c.features(Eigen::Index(r), Eigen::Index(f)) = cells.values[k];

@@ -25,6 +25,10 @@ struct Problem {
   std::string str() const;
 };
 
+// Features larger than this in size are refused: squared distances over many columns would
+// overflow double's range (1e308) long before, e.g., 1e300.
+constexpr double kMaxFeatureMagnitude = 1e100;
+
 class LoadError : public std::runtime_error {
  public:
   explicit LoadError(Problem problem);

@@ -323,7 +323,9 @@ JudgmentReadResult read_judgments_csv(const std::string& path, const std::vector
     text = read_file(path);  // regular files only, bounded (solver/io/csv_table.h)
   } catch (const LoadError& e) {
     JudgmentReadResult r;
-    r.problems.push_back({path, 0, 0, "cannot read the judgments file: " + e.problem().message});
+    const std::string& why = e.problem().message;
+    r.problems.push_back({path, 0, 0, why.rfind("cannot open", 0) == 0 ? "cannot open the judgments file"
+                                                                       : "cannot read the judgments file: " + why});
     return r;
   }
   return parse_judgments_csv(text, path, ids, options);

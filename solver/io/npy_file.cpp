@@ -245,6 +245,11 @@ Points parse_npy(std::string_view b, const std::string& source) {
       fail(data_begin + k * item_size, "expected a finite number at [" + std::to_string(r) + ", " + std::to_string(c) +
                                            "], found " + (std::isnan(v) ? "nan" : v > 0 ? "inf" : "-inf"));
     }
+    if (std::abs(v) > kMaxFeatureMagnitude) {
+      const uint64_t r = k / cols, c = k % cols;
+      fail(data_begin + k * item_size, "expected a number of at most 1e100 in size at [" + std::to_string(r) + ", " +
+                                           std::to_string(c) + "] (distances between such numbers overflow)");
+    }
     dst[k] = v;
   }
   return out;

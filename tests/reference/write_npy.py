@@ -28,7 +28,9 @@ def save(name, array, version=None, expect_ok=True):
 save("f8_v1.npy", rng.normal(size=(7, 5)) * 1e3, version=(1, 0))
 save("f4_v2.npy", rng.normal(size=(4, 3)).astype(np.float32), version=(2, 0))
 save("f8_v3_1d.npy", rng.uniform(-1, 1, size=6), version=(3, 0))
-save("f8_default.npy", np.array([[1e-300, -0.0], [5e-324, 1.7976931348623157e308], [3.0, 4.5]]))
+save("f8_default.npy", np.array([[1e-300, -0.0], [5e-324, 1e100], [3.0, 4.5]]))
+# Features larger than 1e100 in size are refused: squared distances would overflow.
+save("f8_huge.npy", np.array([[1.0, 2.0], [3.0, 1.7976931348623157e308]]), expect_ok=False)
 # np.save writes a C-ordered copy of a transposed view too; check the plain path of that.
 save("f8_transposed_copy.npy", np.ascontiguousarray(rng.normal(size=(3, 4)).T))
 save("f8_fortran.npy", np.asfortranarray(rng.normal(size=(3, 4))), expect_ok=False)
