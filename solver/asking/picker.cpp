@@ -5,6 +5,9 @@
 #include <numeric>
 #include <stdexcept>
 
+#include "solver/base/portable_random.h"
+#include "solver/base/portable_math.h"
+
 namespace kith {
 
 struct Response;  // below
@@ -29,8 +32,8 @@ namespace {
 
 double entropy(double p) {
   double h = 0.0;
-  if (p > 1e-300) h -= p * std::log(p);
-  if (1.0 - p > 1e-300) h -= (1.0 - p) * std::log(1.0 - p);
+  if (p > 1e-300) h -= p * pm::log(p);
+  if (1.0 - p > 1e-300) h -= (1.0 - p) * pm::log(1.0 - p);
   return h;
 }
 
@@ -70,7 +73,7 @@ struct AnchorPosterior {
   size_t size() const { return w.size(); }
 };
 
-inline double log_kernel(double d2, double alpha) { return -0.5 * (alpha + 1.0) * std::log1p(d2 / alpha); }
+inline double log_kernel(double d2, double alpha) { return -0.5 * (alpha + 1.0) * pm::log1p(d2 / alpha); }
 
 }  // namespace
 // How the picker predicts an answer: "b" with probability sigma(g(x,b) - g(x,c)) for an anchor at x,
@@ -106,7 +109,7 @@ AnchorPosterior anchor_posterior(const Points& y, int32_t anchor, const std::vec
     for (int32_t i = 0; i < int32_t(n); ++i)
       if (i != anchor) places.push_back(i);
   } else {
-    std::uniform_int_distribution<int32_t> item(0, int32_t(n) - 1);
+    auto item = [n](std::mt19937_64& g) { return int32_t(below(g, uint64_t(n))); };
     while (int(places.size()) < global + 1) {
       const int32_t i = item(rng);
       if (i != anchor) places.push_back(i);
@@ -116,9 +119,9 @@ AnchorPosterior anchor_posterior(const Points& y, int32_t anchor, const std::vec
   post.x.resize(S * size_t(d));
   for (size_t s = 0; s < places.size(); ++s)
     for (Eigen::Index k = 0; k < d; ++k) post.x[s * size_t(d) + size_t(k)] = y(places[s], k);
-  std::normal_distribution<double> jitter(0.0, local_scale > 0 ? local_scale : 1.0);
+  const double jitter_sd = local_scale > 0 ? local_scale : 1.0;
   for (size_t s = places.size(); s < S; ++s)
-    for (Eigen::Index k = 0; k < d; ++k) post.x[s * size_t(d) + size_t(k)] = y(anchor, k) + jitter(rng);
+    for (Eigen::Index k = 0; k < d; ++k) post.x[s * size_t(d) + size_t(k)] = y(anchor, k) + normal(rng, 0.0, jitter_sd);
   std::vector<double> loglik(S, 0.0);
   if (judgments)
     for (const Judgment& j : *judgments) {
@@ -130,13 +133,13 @@ AnchorPosterior anchor_posterior(const Points& y, int32_t anchor, const std::vec
         const double lf = r.g(d2_rows(at(j.anchor), at(j.farther), d));
         // log p = -softplus(lf - ln)
         const double z = lf - ln;
-        loglik[s] -= j.weight * (z > 0 ? z + std::log1p(std::exp(-z)) : std::log1p(std::exp(z)));
+        loglik[s] -= j.weight * (z > 0 ? z + pm::log1p(pm::exp(-z)) : pm::log1p(pm::exp(z)));
       }
     }
   const double top = *std::max_element(loglik.begin(), loglik.end());
   post.w.resize(S);
   double total = 0.0;
-  for (size_t s = 0; s < S; ++s) total += (post.w[s] = std::exp(loglik[s] - top));
+  for (size_t s = 0; s < S; ++s) total += (post.w[s] = pm::exp(loglik[s] - top));
   for (auto& w : post.w) w /= total;
   return post;
 }
@@ -160,7 +163,7 @@ AnchorPosterior thin_posterior(const AnchorPosterior& post, int keep, size_t d, 
     return out;
   }
   const double step = 1.0 / keep;
-  double u = std::uniform_real_distribution<double>(0.0, step)(rng), cum = 0.0;
+  double u = step * uniform01(rng), cum = 0.0;
   for (size_t s = 0; s < post.size() && int(out.size()) < keep; ++s) {
     cum += post.w[s];
     while (u < cum && int(out.size()) < keep) {
@@ -185,7 +188,7 @@ double calibrate_beta(const Points& y, const std::vector<Judgment>* judgments, s
         active.push_back(&j);
   auto dist = [&](int32_t a, int32_t b) { return std::sqrt(d2_rows(y.data() + Eigen::Index(a) * d, y.data() + Eigen::Index(b) * d, d)); };
   if (active.size() < 10) {
-    std::uniform_int_distribution<int32_t> item(0, int32_t(n) - 1);
+    auto item = [n](std::mt19937_64& g) { return int32_t(below(g, uint64_t(n))); };
     std::vector<double> pd;
     for (int t = 0; t < 101; ++t) pd.push_back(dist(item(rng), item(rng)));
     std::nth_element(pd.begin(), pd.begin() + 50, pd.end());
@@ -193,7 +196,7 @@ double calibrate_beta(const Points& y, const std::vector<Judgment>* judgments, s
   }
   std::vector<double> delta;  // d(a,f) - d(a,n): positive where the map agrees
   const size_t m = std::min<size_t>(active.size(), 1000);
-  std::uniform_int_distribution<size_t> pick(0, active.size() - 1);
+  auto pick = [&active](std::mt19937_64& g) { return size_t(below(g, active.size())); };
   for (size_t t = 0; t < m; ++t) {
     const Judgment& j = active.size() <= 1000 ? *active[t] : *active[pick(rng)];
     delta.push_back(dist(j.anchor, j.farther) - dist(j.anchor, j.nearer));
@@ -208,7 +211,7 @@ double calibrate_beta(const Points& y, const std::vector<Judgment>* judgments, s
   for (int it = 0; it < 30; ++it) {
     double grad = 0.0, hess = 0.0;
     for (double x : delta) {
-      const double s = 1.0 / (1.0 + std::exp(-beta * x));
+      const double s = 1.0 / (1.0 + pm::exp(-beta * x));
       grad += x * (1.0 - s);
       hess += x * x * s * (1.0 - s);
     }
@@ -242,7 +245,7 @@ std::vector<double> pair_information(const Points& y, const AnchorPosterior& pos
       const size_t at = c * L + l;
       // g <= 0 for both responses; kept above -600 so that exp(g) stays a normal number.
       logk[at] = std::max(r.g(d2_rows(post.x.data() + live[l] * size_t(d), y.data() + Eigen::Index(cand[c]) * d, d)), -600.0);
-      k[at] = std::exp(logk[at]);
+      k[at] = pm::exp(logk[at]);
       kl[at] = k[at] * logk[at];
     }
   std::vector<double> info(C * C, 0.0);
@@ -253,7 +256,7 @@ std::vector<double> pair_information(const Points& y, const AnchorPosterior& pos
       for (size_t l = 0; l < L; ++l) {
         const double s = kb[l] + kc[l];
         pbar += w[l] * kb[l] / s;
-        hbar += w[l] * (std::log(s) - (klb[l] + klc[l]) / s);
+        hbar += w[l] * (pm::log(s) - (klb[l] + klc[l]) / s);
       }
       const double v = entropy(pbar / wsum) - hbar / wsum;
       info[b * C + c] = info[c * C + b] = std::max(v, 0.0);
@@ -288,8 +291,8 @@ int32_t Picker::choose_anchor(const PickerInput& in, const std::vector<int>& cou
     if (i >= 0 && size_t(i) < n) pool.push_back(i);
   const bool all = pool.empty();
   auto draw = [&]() -> int32_t {
-    if (all) return int32_t(std::uniform_int_distribution<size_t>(0, n - 1)(rng_));
-    return pool[std::uniform_int_distribution<size_t>(0, pool.size() - 1)(rng_)];
+    if (all) return int32_t(below(rng_, n));
+    return pool[below(rng_, pool.size())];
   };
   if (options_.rule == PickerRule::kRandom || counts.empty()) return draw();
   int32_t best = draw();
@@ -314,7 +317,7 @@ std::vector<int32_t> Picker::candidates(const PickerInput& in, int32_t anchor, i
   }
   if (in.features && in.features->rows() == n && in.features->cols() > 0)
     for (int32_t i : nearest_rows(*in.features, anchor, options_.feature_candidates)) out.push_back(i);
-  std::uniform_int_distribution<int32_t> item(0, n - 1);
+  auto item = [n](std::mt19937_64& g) { return int32_t(below(g, uint64_t(n))); };
   const int extra = std::max(options_.random_candidates, want - int(out.size()));
   for (int t = 0, tries = 0; t < extra && tries < 20 * extra; ++tries) {
     const int32_t i = item(rng_);
@@ -354,13 +357,13 @@ Question Picker::next(const PickerInput& in, QuestionKind kind, int grid_size, i
 
   const bool random_now = options_.rule == PickerRule::kRandom ||
                           (options_.random_share > 0 &&
-                           std::uniform_real_distribution<double>(0.0, 1.0)(rng_) < options_.random_share);
+                           uniform01(rng_) < options_.random_share);
   if (random_now) {
     const PickerRule rule = options_.rule;
     options_.rule = PickerRule::kRandom;
     q.anchor = choose_anchor(in, {});
     options_.rule = rule;
-    std::uniform_int_distribution<int32_t> item(0, n - 1);
+    auto item = [n](std::mt19937_64& g) { return int32_t(below(g, uint64_t(n))); };
     while (int(q.candidates.size()) < size) {
       const int32_t i = item(rng_);
       if (i != q.anchor && std::find(q.candidates.begin(), q.candidates.end(), i) == q.candidates.end())
@@ -411,7 +414,7 @@ Question Picker::next(const PickerInput& in, QuestionKind kind, int grid_size, i
     for (size_t c : chosen) q.candidates.push_back(cand[c]);
   }
   // Show candidates in no telling order.
-  std::shuffle(q.candidates.begin(), q.candidates.end(), rng_);
+  shuffle(q.candidates.begin(), q.candidates.end(), rng_);
   return q;
 }
 

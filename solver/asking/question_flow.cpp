@@ -5,6 +5,8 @@
 #include <map>
 #include <stdexcept>
 
+#include "solver/base/portable_random.h"
+
 namespace kith {
 
 bool QuestionFlowOptions::IsValid(std::string* error) const {
@@ -72,14 +74,13 @@ Question QuestionFlow::next_question() {
   for (size_t i = 0; i < answers_.size(); ++i)
     if (!answers_[i].undone && !answers_[i].question.reask && answers_[i].question.kind == options_.kind)
       earlier.push_back(i);
-  std::uniform_real_distribution<double> unit(0.0, 1.0);
-  if (!earlier.empty() && unit(rng_) < options_.reask_rate) {
-    const size_t pick = earlier[std::uniform_int_distribution<size_t>(0, earlier.size() - 1)(rng_)];
+  if (!earlier.empty() && uniform01(rng_) < options_.reask_rate) {
+    const size_t pick = earlier[below(rng_, earlier.size())];
     Question q = answers_[pick].question;
     q.reask = true;
     q.repeat_of = int64_t(pick);
     // Shuffle the candidates so a repeat does not show the same sides or grid places.
-    std::shuffle(q.candidates.begin(), q.candidates.end(), rng_);
+    shuffle(q.candidates.begin(), q.candidates.end(), rng_);
     return q;
   }
   Question q = source_(options_.kind, options_.grid_size, options_.grid_choose);

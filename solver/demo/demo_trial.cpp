@@ -2,6 +2,7 @@
 #include "solver/demo/demo_trial.h"
 #include "solver/measures/judgment_health.h"
 
+#include <algorithm>
 #include <cstdio>
 #include <memory>
 #include <stdexcept>
@@ -19,11 +20,11 @@
 
 namespace kith {
 
-PickerOptions neighbourhood_picker() {
+PickerOptions demo_picker() {
   PickerOptions o;
-  o.near_candidates = 24;
+  o.near_candidates = 4;
   o.feature_candidates = 8;
-  o.random_candidates = 8;
+  o.random_candidates = 28;
   o.anchors_scored = 1;
   o.scored_places = 0;
   o.local_share = 0.0;
@@ -38,6 +39,9 @@ bool DemoTrialOptions::IsValid(std::string* error) const {
     return false;
   };
   if (answers < 0) return fail("answers must be >= 0");
+  if (grid_size < 3 || grid_choose < 1 || grid_choose >= grid_size)
+    return fail("a grid needs at least 3 candidates and 1 <= choose < candidates");
+  if (local_k < 1) return fail("local_k must be >= 1");
   if (fit_iterations < 1 || iterations_between < 0 || settle_iterations < 0) return fail("iterations must be >= 0");
   if (!(blend >= 0.0)) return fail("blend must be >= 0");
   if (heldout_triplets < 10) return fail("at least 10 held-out triplets are needed");
@@ -64,12 +68,48 @@ void set_trial_seed(uint64_t seed, DemoTrialOptions* trial, SimulatedPeopleOptio
   if (people) people->seed = 7 + shift;
 }
 
+std::vector<int32_t> hidden_neighbours(const SimulatedPeople& people, int k) {
+  const int32_t n = int32_t(people.size());
+  if (k < 1 || k >= n) throw std::invalid_argument("hidden_neighbours: k must be in 1 .. N-1");
+  std::vector<int32_t> out(size_t(n) * size_t(k));
+  std::vector<std::pair<double, int32_t>> row(size_t(n - 1));
+  for (int32_t i = 0; i < n; ++i) {
+    size_t at = 0;
+    for (int32_t j = 0; j < n; ++j)
+      if (j != i) row[at++] = {people.distance(i, j), j};
+    std::partial_sort(row.begin(), row.begin() + k, row.end());
+    for (int c = 0; c < k; ++c) out[size_t(i) * size_t(k) + size_t(c)] = row[size_t(c)].second;
+  }
+  return out;
+}
+
+double local_agreement(const Points& y, const std::vector<int32_t>& hidden, int k) {
+  const Eigen::Index n = y.rows();
+  if (k < 1 || hidden.size() != size_t(n) * size_t(k)) throw std::invalid_argument("local_agreement: shapes differ");
+  std::vector<std::pair<double, int32_t>> row(size_t(n - 1));
+  double total = 0.0;
+  for (Eigen::Index i = 0; i < n; ++i) {
+    size_t at = 0;
+    for (Eigen::Index j = 0; j < n; ++j)
+      if (j != i) row[at++] = {(y.row(i) - y.row(j)).squaredNorm(), int32_t(j)};
+    std::partial_sort(row.begin(), row.begin() + k, row.end());
+    int shared = 0;
+    for (int c = 0; c < k; ++c)
+      for (int h = 0; h < k; ++h)
+        if (row[size_t(c)].second == hidden[size_t(i) * size_t(k) + size_t(h)]) ++shared;
+    total += double(shared) / double(k);
+  }
+  return total / double(n);
+}
+
 std::string DemoTrialResult::BriefReport() const {
-  char buf[320];
+  char buf[420];
   std::snprintf(buf, sizeof buf,
-                "held-out agreement with the hidden distance: %.3f features only -> %.3f after %zu answers "
-                "(control without answers %.3f; %zu held-out triplets)",
-                agreement_before, agreement_after, answers.size(), agreement_control, heldout);
+                "held-out agreement with the hidden distance: %.3f features only -> %.3f after %d answers (%zu "
+                "judgments; control without answers %.3f; %zu held-out triplets); local 10-NN %.3f -> %.3f "
+                "(control %.3f)",
+                agreement_before, agreement_after, answered, judgments.size(), agreement_control, heldout,
+                local_before, local_after, local_control);
   std::string out = buf;
   if (!blocks.empty() && !weights.weights.empty())
     out += "; block weights learned from the answers: " + weights.report(blocks);
@@ -88,6 +128,8 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
   DemoTrialResult r;
   const auto heldout = people.truth_triplets(options.heldout_triplets, 0, options.heldout_gap, options.heldout_seed);
   r.heldout = heldout.size();
+  const int local_k = std::min<int>(options.local_k, int(people.size()) - 1);
+  const std::vector<int32_t> hidden = hidden_neighbours(people, local_k);
 
   FitOptions fo;
   fo.perplexity = options.perplexity;
@@ -97,6 +139,7 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
   FitResult fit = fit_map(features, fo);
   r.features_only_map = fit.map;
   r.agreement_before = triplet_agreement(fit.map, heldout);
+  r.local_before = local_agreement(fit.map, hidden, local_k);
 
   const size_t n = size_t(features.rows());
   NeighbourTermOptions no;
@@ -105,9 +148,9 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
   // replays exactly the same stretches.
   std::vector<std::pair<int, double>> stretches;
   auto continue_map = [&](BlendedObjective& objective, NeighbourTerm& term, Points& y, int64_t* at, int steps,
-                          double exaggeration, bool record) {
+                          double exaggeration, std::vector<std::pair<int, double>>* record) {
     if (steps <= 0) return;
-    if (record) stretches.push_back({steps, exaggeration});
+    if (record) record->push_back({steps, exaggeration});
     LoopOptions loop;
     loop.first = *at;
     loop.iterations = steps;
@@ -125,15 +168,18 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
     if (r.blocks.empty() && features.cols() == descriptor_size())
       for (const auto& b : descriptor_blocks()) r.blocks.push_back({b.name, b.begin, b.size});
   }
+  FeaturePrepOptions prep;
+  prep.standardize = fo.standardize;
+  prep.max_dims = fo.pca_dims;
   Points picker_features = fit.features;
-  auto reweight = [&](NeighbourTerm& term) {
-    r.weights = learn_block_weights(features, r.blocks, r.answers, options.weights);
-    FeaturePrepOptions prep;
-    prep.standardize = fo.standardize;
-    prep.max_dims = fo.pca_dims;
-    picker_features = prepare_features(apply_block_weights(features, r.blocks, r.weights.weights), prep);
-    term.set_affinities(std::make_shared<SparseAffinities>(
-        joint_affinities_for(picker_features, fo.perplexity_for(n), {fo.seed, fo.threads})));
+  // Weights from the judgments so far; the prepared reweighted features and their affinities.
+  auto relearn = [&](BlockWeightsResult* weights, Points* prepared) {
+    *weights = learn_block_weights(features, r.blocks, r.judgments, options.weights);
+    *prepared = prepare_features(apply_block_weights(features, r.blocks, weights->weights), prep);
+    return std::make_shared<SparseAffinities>(joint_affinities_for(*prepared, fo.perplexity_for(n), {fo.seed, fo.threads}));
+  };
+  auto relearning_due_at_end = [&](int answered) {
+    return !r.blocks.empty() && answered >= options.reweight_from && answered % options.reweight_every != 0;
   };
 
   auto term = std::make_shared<NeighbourTerm>(fit.p, no);
@@ -142,46 +188,106 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
   objective.set_blend(options.blend);
   Points y = fit.map;
   int64_t at = options.fit_iterations;
+  // The control: the same stretches without answers, the features as given; it catches up with the
+  // answered map's stretches whenever it is measured.
+  auto control_term = std::make_shared<NeighbourTerm>(fit.p, no);
+  BlendedObjective control(n, int(fit.map.cols()));
+  control.set_neighbour_term(control_term);
+  Points yc = fit.map;
+  int64_t at_c = options.fit_iterations;
+  size_t control_done = 0;
+  auto catch_up_control = [&] {
+    for (; control_done < stretches.size(); ++control_done)
+      continue_map(control, *control_term, yc, &at_c, stretches[control_done].first, stretches[control_done].second,
+                   nullptr);
+  };
+
+  // Finishes copies of the answered map and of the control as step 4 does, and measures them.
+  auto measure_branch = [&](int answered) {
+    TrialPoint point;
+    point.answered = answered;
+    point.judgments = r.judgments.size();
+    std::vector<std::pair<int, double>> finish;
+    Points yb = y;
+    int64_t at_b = at;
+    auto branch_term = std::make_shared<NeighbourTerm>(fit.p, no);
+    branch_term->set_affinities(term->affinities());
+    BlendedObjective branch(n, int(fit.map.cols()));
+    branch.set_neighbour_term(branch_term);
+    branch.set_blend(options.blend);
+    branch.set_judgments(r.judgments);
+    if (relearning_due_at_end(answered)) {
+      BlockWeightsResult w;
+      Points prepared;
+      branch_term->set_affinities(relearn(&w, &prepared));
+      continue_map(branch, *branch_term, yb, &at_b, options.regroup_iterations, options.regroup_exaggeration, &finish);
+    }
+    continue_map(branch, *branch_term, yb, &at_b, options.settle_iterations, 1.0, &finish);
+    point.agreement = triplet_agreement(yb, heldout);
+    point.local = local_agreement(yb, hidden, local_k);
+    if (options.control) {
+      catch_up_control();
+      Points ycb = yc;
+      int64_t at_cb = at_c;
+      auto cterm = std::make_shared<NeighbourTerm>(fit.p, no);
+      BlendedObjective cbranch(n, int(fit.map.cols()));
+      cbranch.set_neighbour_term(cterm);
+      for (const auto& [steps, exaggeration] : finish) continue_map(cbranch, *cterm, ycb, &at_cb, steps, exaggeration, nullptr);
+      point.agreement_control = triplet_agreement(ycb, heldout);
+      point.local_control = local_agreement(ycb, hidden, local_k);
+    }
+    r.curve.push_back(point);
+  };
+  std::vector<int> checkpoints = options.checkpoints;
+  std::sort(checkpoints.begin(), checkpoints.end());
+  size_t next_checkpoint = 0;
+  while (next_checkpoint < checkpoints.size() && checkpoints[next_checkpoint] <= 0) ++next_checkpoint;
+
   Picker picker(options.picker);
   for (int q = 0; q < options.answers; ++q) {
     PickerInput in;
     in.map = &y;
     in.features = &picker_features;
-    in.judgments = &r.answers;
-    const Question question = picker.pair(in);
+    in.judgments = &r.judgments;
+    const bool grid = options.question == QuestionKind::kGrid;
+    const Question question = grid ? picker.grid(in, options.grid_size, options.grid_choose) : picker.pair(in);
     if (question.anchor < 0 || question.candidates.size() < 2) break;
     if (q == 0) r.first_question = question;
-    Judgment j = people.answer(question.anchor, question.candidates[0], question.candidates[1]);
-    j.id = int64_t(r.answers.size());
-    r.answers.push_back(j);
-    objective.add_judgment(j);
-    if (!r.blocks.empty() && q + 1 >= options.reweight_from && (q + 1) % options.reweight_every == 0) {
-      reweight(*term);
-      continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, true);
+    std::vector<Judgment> given;
+    if (grid && int(question.candidates.size()) > options.grid_choose)
+      given = people.answer_grid(question.anchor, question.candidates, options.grid_choose);
+    else
+      given = {people.answer(question.anchor, question.candidates[0], question.candidates[1])};
+    for (Judgment& j : given) {
+      j.id = int64_t(r.judgments.size());
+      r.judgments.push_back(j);
+      objective.add_judgment(j);
     }
-    continue_map(objective, *term, y, &at, options.iterations_between, 1.0, true);
+    r.answered = q + 1;
+    if (!r.blocks.empty() && q + 1 >= options.reweight_from && (q + 1) % options.reweight_every == 0) {
+      term->set_affinities(relearn(&r.weights, &picker_features));
+      continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, &stretches);
+    }
+    continue_map(objective, *term, y, &at, options.iterations_between, 1.0, &stretches);
     if (progress) progress(q + 1, options.answers);
+    for (; next_checkpoint < checkpoints.size() && checkpoints[next_checkpoint] == q + 1; ++next_checkpoint)
+      measure_branch(q + 1);
   }
-  if (!r.blocks.empty() && r.answers.size() >= size_t(options.reweight_from) &&
-      r.answers.size() % size_t(options.reweight_every) != 0) {
-    reweight(*term);
-    continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, true);
+  if (relearning_due_at_end(r.answered)) {
+    term->set_affinities(relearn(&r.weights, &picker_features));
+    continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, &stretches);
   }
-  continue_map(objective, *term, y, &at, options.settle_iterations, 1.0, true);
+  continue_map(objective, *term, y, &at, options.settle_iterations, 1.0, &stretches);
   r.final_map = y;
   r.agreement_after = triplet_agreement(y, heldout);
-  r.answers_satisfied = r.answers.empty() ? -1.0 : triplet_agreement(y, r.answers);
+  r.local_after = local_agreement(y, hidden, local_k);
+  r.answers_satisfied = r.judgments.empty() ? -1.0 : triplet_agreement(y, r.judgments);
 
-  if (options.control) {  // the same stretches of steps, no answers, the features as given
-    auto control_term = std::make_shared<NeighbourTerm>(fit.p, no);
-    BlendedObjective control(n, int(fit.map.cols()));
-    control.set_neighbour_term(control_term);
-    Points yc = fit.map;
-    int64_t at_c = options.fit_iterations;
-    for (const auto& [steps, exaggeration] : stretches)
-      continue_map(control, *control_term, yc, &at_c, steps, exaggeration, false);
+  if (options.control) {
+    catch_up_control();
     r.control_map = yc;
     r.agreement_control = triplet_agreement(yc, heldout);
+    r.local_control = local_agreement(yc, hidden, local_k);
   }
   return r;
 }

@@ -1,16 +1,23 @@
-// DemoTrial: the demo's story, measured headlessly and deterministically (one thread, fixed seeds):
+// DemoTrial: the demo's story, measured headlessly and deterministically (fixed seeds; the same
+// bits for any thread count and on every x86-64 machine, see solver/base/portable_math.h):
 //   1. the features-only map: fit_map (solver/fit/fit.h) on the features;
 //   2. agreement of that map with the hidden perceptual distance on held-out triplets
-//      (SimulatedPeople::truth_triplets, never asked);
-//   3. `answers` times: the picker (solver/asking/picker.h, most informative by default) chooses a pair
-//      question on the current map, the simulated people answers it, the answer joins the blended
+//      (SimulatedPeople::truth_triplets, never asked), and the local measure: of each item's 10
+//      nearest by the hidden distance, the share among its 10 nearest in the map;
+//   3. `answers` times: the picker (solver/asking/picker.h, most informative by default) chooses a
+//      question on the current map -- a grid (anchor + grid_size candidates, pick grid_choose,
+//      as the window asks; grid_choose x (grid_size - grid_choose) judgments per answer) or a
+//      pair (one judgment) -- the simulated people answers it, the judgments join the blended
 //      objective (KL + blend * t-STE) and the map takes `iterations_between` more steps;
 //      Every `reweight_every` answers from `reweight_from` on (and after the last) the answers also teach the features'
 //      metric: block weights are learned from all answers so far (solver/features/block_weights.h) and the
 //      t-SNE affinities are rebuilt from the reweighted features, so the whole map follows the
 //      people, not only the items it was asked about (learn_weights; on by default), and the map
 //      takes `regroup_iterations` steps with exaggerated affinities to regroup;
-//   4. `settle_iterations` more steps, then the same held-out agreement again.
+//   4. `settle_iterations` more steps, then the same measures again.
+// At each of `checkpoints` (numbers of answers) a copy of the map is finished as in 4 (relearning
+// first when due, then settling) and measured, and so is the control, which gives the curve of
+// agreement against answers from one run.
 // A control run takes exactly the same stretches of steps (and exaggerations) without the answers, so the change can be told
 // apart from the effect of merely optimizing longer. `kith demo` with no display and the tests use
 // it; the window uses the live engine instead. Any thread; nothing shared.
@@ -29,21 +36,27 @@
 
 namespace kith {
 
-// The most informative rule with the settings the demo uses: candidates mostly from the anchor's
-// neighbourhood in the map and the features, the t-STE answer model, one anchor per question.
-// Refining where items sit among their neighbours is what people judging colour answers best;
-// the picker's own defaults (tuned on the planted-map benchmark, mostly long-range candidates)
-// gave +0.017 over the control after 100 answers where these give about +0.04.
-PickerOptions neighbourhood_picker();
+// The most informative rule with the settings the demo uses: candidates from the anchor's
+// neighbourhood in the map (4) and the features (8) and from anywhere (28), the t-STE answer
+// model, one anchor per question. With grid questions (seed 42, 100 answers, blend 5) these gave
+// 0.729 held-out agreement where the earlier neighbourhood settings (24 nearest in the map, 8
+// random) gave 0.704: with noisy people, a grid of near neighbours asks mostly what they cannot
+// tell apart (tests/bench/RESULTS-demo.md).
+PickerOptions demo_picker();
 
 struct DemoTrialOptions {
   int answers = 100;               // questions the people answers (default: 100)
+  QuestionKind question = QuestionKind::kGrid;     // grid or pair questions (default: grid)
+  int grid_size = QuestionFlowOptions{}.grid_size;      // N candidates in a grid (default: as the window, 8)
+  int grid_choose = QuestionFlowOptions{}.grid_choose;  // K picked (default: as the window, 2)
+  std::vector<int> checkpoints;    // answers after which the curve is measured (default: none)
+  int local_k = 10;                // neighbours of the local measure (default: 10)
   int fit_iterations = 750;        // steps of the features-only map (default: 750)
   int iterations_between = 10;     // steps after each answer (default: 10)
   int settle_iterations = 300;     // steps after the last answer (default: 300)
   double blend = 5.0;              // weight of the judgments (default: 5; see the README's demo section)
   double perplexity = 30.0;        // (default: 30)
-  PickerOptions picker = neighbourhood_picker();  // (default: most informative, neighbourhood settings)
+  PickerOptions picker = demo_picker();  // (default: most informative, the demo's settings)
   size_t heldout_triplets = 3000;  // held-out truth triplets (default: 3000)
   double heldout_gap = 3.0;        // least |d(a,b) - d(a,c)| of a held-out triplet, CIEDE2000 units (default: 3)
   uint64_t heldout_seed = 1234;    // (default: 1234)
@@ -63,15 +76,26 @@ struct DemoTrialOptions {
   bool IsValid(std::string* error) const;
 };
 
+// One point of the curve: the map finished after `answered` answers, and the control.
+struct TrialPoint {
+  int answered = 0;
+  size_t judgments = 0;
+  double agreement = -1.0, agreement_control = -1.0;  // held-out triplets
+  double local = -1.0, local_control = -1.0;          // the local measure
+};
+
 struct DemoTrialResult {
   Points features_only_map;          // after step 1
   Points final_map;                  // after step 4
   Points control_map;                // the control (empty if not run)
-  std::vector<Judgment> answers;     // in the order given
+  int answered = 0;                  // questions answered
+  std::vector<Judgment> judgments;   // the answers' judgments, in the order given
   Question first_question;           // what was asked first (for the README's picture)
   double agreement_before = -1.0;    // held-out agreement of the features-only map
   double agreement_after = -1.0;     // ... of the final map
   double agreement_control = -1.0;   // ... of the control map (-1 if not run)
+  double local_before = -1.0, local_after = -1.0, local_control = -1.0;  // the local measure
+  std::vector<TrialPoint> curve;     // at the checkpoints, in order
   double answers_satisfied = -1.0;   // fraction of the people's answers the final map satisfies
   size_t heldout = 0;                // number of held-out triplets
   std::vector<ColumnBlock> blocks;   // the blocks reweighted (empty if the weights were not learned)
@@ -82,6 +106,11 @@ struct DemoTrialResult {
 
 // Fraction of the triplets the map satisfies (a tie counts one half).
 double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets);
+
+// Each item's k nearest by the hidden distance (ties by index), row-major n x k.
+std::vector<int32_t> hidden_neighbours(const SimulatedPeople& people, int k);
+// The local measure: mean over items of |hidden k nearest ∩ k nearest in the map| / k.
+double local_agreement(const Points& y, const std::vector<int32_t>& hidden, int k);
 
 // Every seed of a run from one number: the map's, the held-out triplets', the picker's and the
 // people's. Seed 42 gives the defaults above (and SimulatedPeopleOptions' seed 7).

@@ -11,15 +11,19 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "solver/base/portable_math.h"
+
+
 namespace kith {
 namespace {
 
 namespace fs = std::filesystem;
 constexpr double kPi = 3.14159265358979323846;
-constexpr const char* kStampVersion = "kith sample library v1";
+constexpr const char* kStampVersion = "kith sample library v2";
 
 // splitmix64: a small, fully specified generator, so the library is the same on every platform
-// (the distributions of <random> are not specified bit for bit).
+// (the distributions of <random> are not specified bit for bit); sines and cosines come from
+// solver/base/portable_math.h for the same reason (libm's differ between CPUs in the last bit).
 struct Rng {
   uint64_t s;
   uint64_t next() {
@@ -92,7 +96,7 @@ Lab into_gamut(Lab lab) {
   return lab;
 }
 
-double square_wave(double u) { return std::clamp(0.5 + 2.0 * std::sin(2.0 * kPi * u), 0.0, 1.0); }
+double square_wave(double u) { return std::clamp(0.5 + 2.0 * pm::sin(2.0 * kPi * u), 0.0, 1.0); }
 
 // Mixing factor towards the accent colour at (x, y), in [0, 1].
 double pattern_value(const Swatch& s, double x, double y, uint64_t seed) {
@@ -102,7 +106,7 @@ double pattern_value(const Swatch& s, double x, double y, uint64_t seed) {
       return 0.0;
     case SwatchPattern::kStripes: {
       const double t = s.angle * kPi / 180.0;
-      return square_wave((x * std::cos(t) + y * std::sin(t)) / p);
+      return square_wave((x * pm::cos(t) + y * pm::sin(t)) / p);
     }
     case SwatchPattern::kChecks:
       return 0.5 * (square_wave(x / p) + square_wave(y / p));
@@ -110,7 +114,7 @@ double pattern_value(const Swatch& s, double x, double y, uint64_t seed) {
       const double row = std::floor(y / p);
       const double ox = std::fmod(row, 2.0) == 0.0 ? 0.0 : 0.5 * p;
       const double cx = (std::floor((x - ox) / p) + 0.5) * p + ox, cy = (row + 0.5) * p;
-      const double d = std::hypot(x - cx, y - cy);
+      const double d = pm::hypot(x - cx, y - cy);
       return std::clamp(0.28 * p - d + 0.5, 0.0, 1.0);
     }
     case SwatchPattern::kSpeckle: {
@@ -123,7 +127,7 @@ double pattern_value(const Swatch& s, double x, double y, uint64_t seed) {
       const int64_t cx = int64_t(std::floor(x / w)), cy = int64_t(std::floor(y / w));
       const bool warp = ((cx + cy) & 1) == 0;
       const double shade = warp ? hash01(seed, cx, -1) : hash01(seed, -1, cy);
-      const double along = warp ? std::sin(2 * kPi * (y / w) * 0.5) : std::sin(2 * kPi * (x / w) * 0.5);
+      const double along = warp ? pm::sin(2 * kPi * (y / w) * 0.5) : pm::sin(2 * kPi * (x / w) * 0.5);
       return std::clamp(0.25 + 0.6 * shade + 0.15 * along * along, 0.0, 1.0);
     }
   }
@@ -200,7 +204,7 @@ std::vector<Swatch> make_swatches(const SampleLibraryOptions& options) {
     const HueRange& hr = line.hues[size_t(rng.index(int(line.hues.size())))];
     const double h = std::fmod(rng.range(hr.lo, hr.hi), 360.0) * kPi / 180.0;
     const double c = rng.range(line.c_lo, line.c_hi);
-    s.base = into_gamut({rng.range(line.l_lo, line.l_hi), c * std::cos(h), c * std::sin(h)});
+    s.base = into_gamut({rng.range(line.l_lo, line.l_hi), c * pm::cos(h), c * pm::sin(h)});
     double total = 0.0;
     for (const auto& ps : line.patterns) total += ps.weight;
     double pick = rng.uniform() * total;
@@ -221,8 +225,8 @@ std::vector<Swatch> make_swatches(const SampleLibraryOptions& options) {
     const double dl = (s.base.L > 55.0 ? -1.0 : 1.0) * s.contrast * 45.0;
     const double turn = rng.range(-0.25, 0.25);
     const double k = 1.0 - 0.3 * s.contrast;
-    s.accent = into_gamut({s.base.L + dl, k * (s.base.a * std::cos(turn) - s.base.b * std::sin(turn)),
-                           k * (s.base.a * std::sin(turn) + s.base.b * std::cos(turn))});
+    s.accent = into_gamut({s.base.L + dl, k * (s.base.a * pm::cos(turn) - s.base.b * pm::sin(turn)),
+                           k * (s.base.a * pm::sin(turn) + s.base.b * pm::cos(turn))});
     out.push_back(std::move(s));
   }
   return out;

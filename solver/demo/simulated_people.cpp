@@ -6,7 +6,13 @@
 #include <numeric>
 #include <stdexcept>
 
+#include "solver/base/portable_math.h"
+#include "solver/base/portable_random.h"
+
 namespace kith {
+namespace {
+constexpr double kInvLn2 = 1.4426950408889634;  // log2 x = ln x / ln 2
+}  // namespace
 
 std::vector<PerceptualItem> perceptual_items(const std::vector<Swatch>& swatches) {
   std::vector<PerceptualItem> out;
@@ -43,7 +49,7 @@ double SimulatedPeople::distance(int32_t i, int32_t j) const {
   const auto& y = items_[size_t(j)];
   double d = ciede2000(x.colour, y.colour);
   if (x.pattern != y.pattern) d += options_.distance.pattern_weight;
-  if (x.pattern != 0 && y.pattern != 0) d += options_.distance.scale_weight * std::abs(std::log2(x.period / y.period));
+  if (x.pattern != 0 && y.pattern != 0) d += options_.distance.scale_weight * std::abs(pm::log(x.period / y.period)) * kInvLn2;
   return d;
 }
 
@@ -57,9 +63,8 @@ double SimulatedPeople::perceived(int member, int32_t i, int32_t j) const {
 Judgment SimulatedPeople::answer(int32_t anchor, int32_t b, int32_t c, int member) {
   if (member < 0) member = int(turn_++ % options_.members.size());
   const SimulatedPerson& m = options_.members[size_t(member)];
-  std::normal_distribution<double> noise(0.0, 1.0);
-  const double db = perceived(member, anchor, b) + m.noise * noise(rng_);
-  const double dc = perceived(member, anchor, c) + m.noise * noise(rng_);
+  const double db = perceived(member, anchor, b) + m.noise * normal(rng_);
+  const double dc = perceived(member, anchor, c) + m.noise * normal(rng_);
   Judgment j;
   j.anchor = anchor;
   j.nearer = db <= dc ? b : c;
@@ -69,28 +74,55 @@ Judgment SimulatedPeople::answer(int32_t anchor, int32_t b, int32_t c, int membe
   return j;
 }
 
+std::vector<Judgment> SimulatedPeople::answer_grid(int32_t anchor, const std::vector<int32_t>& candidates, int choose,
+                                                   int member) {
+  const int n = int(candidates.size());
+  if (choose < 1 || choose >= n) throw std::invalid_argument("a grid needs 1 <= choose < candidates");
+  if (member < 0) member = int(turn_++ % options_.members.size());
+  const SimulatedPerson& m = options_.members[size_t(member)];
+  std::vector<double> seen(static_cast<size_t>(n));
+  for (int c = 0; c < n; ++c) seen[size_t(c)] = perceived(member, anchor, candidates[size_t(c)]) + m.noise * normal(rng_);
+  std::vector<int> order(static_cast<size_t>(n));
+  std::iota(order.begin(), order.end(), 0);
+  std::stable_sort(order.begin(), order.end(), [&](int a, int b) { return seen[size_t(a)] < seen[size_t(b)]; });
+  std::vector<char> picked(static_cast<size_t>(n), 0);
+  for (int k = 0; k < choose; ++k) picked[size_t(order[size_t(k)])] = 1;
+  std::vector<Judgment> out;
+  for (int k = 0; k < choose; ++k)
+    for (int u = 0; u < n; ++u) {
+      if (picked[size_t(u)]) continue;
+      Judgment j;
+      j.anchor = anchor;
+      j.nearer = candidates[size_t(order[size_t(k)])];
+      j.farther = candidates[size_t(u)];
+      j.person = m.name;
+      j.kind = JudgmentKind::kGrid;
+      out.push_back(j);
+    }
+  return out;
+}
+
 std::vector<Judgment> SimulatedPeople::truth_triplets(size_t count, size_t neighbourhood, double min_gap,
                                                      uint64_t seed) const {
   std::mt19937_64 rng(seed);
   const int32_t n = int32_t(items_.size());
   std::vector<Judgment> out;
   if (n < 3) return out;
-  std::uniform_int_distribution<int32_t> any(0, n - 1);
+  auto any = [&rng, n] { return int32_t(below(rng, uint64_t(n))); };
   std::vector<int32_t> order(static_cast<size_t>(n));
   std::vector<double> d(static_cast<size_t>(n));
   const size_t k = neighbourhood == 0 ? size_t(n - 1) : std::min(neighbourhood, size_t(n - 1));
   for (size_t tries = 0; out.size() < count && tries < 100 * count; ++tries) {
-    const int32_t a = any(rng);
+    const int32_t a = any();
     if (neighbourhood > 0) {
       for (int32_t i = 0; i < n; ++i) d[size_t(i)] = i == a ? -1.0 : distance(a, i);
       std::iota(order.begin(), order.end(), 0);
       std::partial_sort(order.begin(), order.begin() + long(k) + 1, order.end(),
                         [&](int32_t x, int32_t y) { return d[size_t(x)] < d[size_t(y)]; });
     }
-    std::uniform_int_distribution<size_t> pick(0, k - 1);
     // order[0] is the anchor itself when a neighbourhood is used
-    const int32_t b = neighbourhood > 0 ? order[1 + pick(rng)] : any(rng);
-    const int32_t c = neighbourhood > 0 ? order[1 + pick(rng)] : any(rng);
+    const int32_t b = neighbourhood > 0 ? order[1 + below(rng, k)] : any();
+    const int32_t c = neighbourhood > 0 ? order[1 + below(rng, k)] : any();
     if (b == a || c == a || b == c) continue;
     const double db = distance(a, b), dc = distance(a, c);
     if (std::abs(db - dc) < min_gap) continue;

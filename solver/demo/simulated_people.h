@@ -7,7 +7,8 @@
 //           + scale_weight * |log2(period_i / period_j)|            a different scale, when both
 //                                                                   have a pattern
 // Each member answers like a Thurstone observer: they perceive d(a, b) + e_b and d(a, c) + e_c,
-// e ~ Normal(0, noise^2), and choose the nearer. The contrarian member perceives a distance of
+// e ~ Normal(0, noise^2) (drawn by solver/base/portable_random.h, the same on every machine), and
+// choose the nearer; in a grid they pick the K of N candidates they perceive nearest. The contrarian member perceives a distance of
 // their own instead: lightness and pattern only (2 |dL*| + pattern term), blind to hue and chroma,
 // so they disagree with the others systematically, not at random.
 // One SimulatedPeople is used from one thread (it owns its random generator); distance() is const.
@@ -63,6 +64,12 @@ class SimulatedPeople {
   // Member `member` answers (anchor; b vs c); member < 0 takes turns. Returns a pair judgment
   // naming the member, weight 1, time 0 (the caller stamps it).
   Judgment answer(int32_t anchor, int32_t b, int32_t c, int member = -1);
+  // A grid question: member `member` (< 0 takes turns) perceives the distance from the anchor to
+  // each candidate (with its own noise on each) and picks the `choose` nearest; every picked c and
+  // unpicked u give (anchor, c, u), as the window's grid does (solver/question_flow.h): choose x
+  // (N - choose) grid judgments naming the member.
+  std::vector<Judgment> answer_grid(int32_t anchor, const std::vector<int32_t>& candidates, int choose,
+                                    int member = -1);
 
   // `count` triplets stated by the hidden distance itself (nearer first), for measuring a map's
   // agreement with it: anchor uniform; b and c drawn from the anchor's `neighbourhood` nearest

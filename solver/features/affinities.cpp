@@ -6,6 +6,7 @@
 // exponentiating; p(j|i) is unchanged by the shift and nothing underflows to an all-zero row.
 #include "solver/features/affinities.h"
 
+#include "solver/base/portable_math.h"
 #include "solver/base/map_parameters.h"
 
 #include <algorithm>
@@ -33,14 +34,14 @@ double calibrate_row(const double* d2, size_t k, const AffinityOptions& o, doubl
     double sum = 0.0, dsum = 0.0;
     for (size_t c = 0; c < k; ++c) {
       const double shifted = d2[c] - dmin;
-      const double e = std::exp(-beta * shifted);
+      const double e = pm::exp(-beta * shifted);
       p[c] = e;
       sum += e;
       dsum += shifted * e;
     }
     // H = log(sum) + beta * E[d - dmin]   (nats)
-    const double entropy = std::log(sum) + beta * dsum / sum;
-    const double perplexity = std::exp(entropy);
+    const double entropy = pm::log(sum) + beta * dsum / sum;
+    const double perplexity = pm::exp(entropy);
     for (size_t c = 0; c < k; ++c) p[c] /= sum;
     if (std::abs(perplexity - o.perplexity) <= o.tolerance) break;
     if (perplexity > o.perplexity) {  // too flat: sharpen

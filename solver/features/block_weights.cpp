@@ -5,6 +5,8 @@
 #include <cstdio>
 #include <stdexcept>
 
+#include "solver/base/portable_math.h"
+
 namespace kith {
 
 bool BlockWeightOptions::IsValid(std::string* error) const {
@@ -35,7 +37,7 @@ std::vector<double> block_weights_from(const std::vector<double>& u) {
   for (double v : u) top = std::max(top, v);
   std::vector<double> w(u.size());
   double sum = 0.0;
-  for (size_t b = 0; b < u.size(); ++b) sum += (w[b] = std::exp(u[b] - top));
+  for (size_t b = 0; b < u.size(); ++b) sum += (w[b] = pm::exp(u[b] - top));
   for (double& v : w) v *= double(u.size()) / sum;
   return w;
 }
@@ -82,9 +84,9 @@ double block_weight_loss(const Points& features, const std::vector<ColumnBlock>&
       sf += w[b] * af[b];
     }
     // log k(s) = -e log(1 + s/a); p = 1 / (1 + k_f/k_n), -log p = log(1 + exp(log k_f - log k_n)).
-    const double z = -e * (std::log1p(sf / a) - std::log1p(sn / a));
-    const double nlp = z > 0 ? z + std::log1p(std::exp(-z)) : std::log1p(std::exp(z));
-    const double q = 1.0 / (1.0 + std::exp(-z));  // 1 - p
+    const double z = -e * (pm::log1p(sf / a) - pm::log1p(sn / a));
+    const double nlp = z > 0 ? z + pm::log1p(pm::exp(-z)) : pm::log1p(pm::exp(z));
+    const double q = 1.0 / (1.0 + pm::exp(-z));  // 1 - p
     loss += j.weight * nlp;
     total += j.weight;
     if (grad) {
@@ -97,7 +99,7 @@ double block_weight_loss(const Points& features, const std::vector<ColumnBlock>&
     for (double& v : g) v /= total;
   }
   for (size_t b = 0; b < nb; ++b) {
-    const double lw = std::log(w[b]);
+    const double lw = pm::log(w[b]);
     loss += options.lambda * lw * lw;
     g[b] += 2.0 * options.lambda * lw / w[b];
   }

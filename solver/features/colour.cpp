@@ -4,6 +4,9 @@
 #include <algorithm>
 #include <cmath>
 
+#include "solver/base/portable_math.h"
+
+
 namespace kith {
 namespace {
 
@@ -18,8 +21,14 @@ constexpr double kWhiteZ = 0.0193 + 0.1192 + 0.9505;  // 1.0890
 
 constexpr double kDelta = 6.0 / 29.0;
 
+// x^7 by products in a fixed order (libm's pow differs between its builds in the last bit).
+inline double seventh_power(double x) {
+  const double x2 = x * x, x4 = x2 * x2;
+  return x4 * x2 * x;
+}
+
 double lab_f(double t) {
-  return t > kDelta * kDelta * kDelta ? std::cbrt(t) : t / (3.0 * kDelta * kDelta) + 4.0 / 29.0;
+  return t > kDelta * kDelta * kDelta ? pm::cbrt(t) : t / (3.0 * kDelta * kDelta) + 4.0 / 29.0;
 }
 double lab_f_inverse(double f) { return f > kDelta ? f * f * f : 3.0 * kDelta * kDelta * (f - 4.0 / 29.0); }
 
@@ -51,9 +60,9 @@ const Inverse& inverse() {
 
 Xyz d65_white() { return {kWhiteX, kWhiteY, kWhiteZ}; }
 
-double srgb_decode(double c) { return c <= 0.04045 ? c / 12.92 : std::pow((c + 0.055) / 1.055, 2.4); }
+double srgb_decode(double c) { return c <= 0.04045 ? c / 12.92 : pm::pow((c + 0.055) / 1.055, 2.4); }
 
-double srgb_encode(double v) { return v <= 0.0031308 ? 12.92 * v : 1.055 * std::pow(v, 1.0 / 2.4) - 0.055; }
+double srgb_encode(double v) { return v <= 0.0031308 ? 12.92 * v : 1.055 * pm::pow(v, 1.0 / 2.4) - 0.055; }
 
 Xyz linear_rgb_to_xyz(double r, double g, double b) {
   return {kM[0][0] * r + kM[0][1] * g + kM[0][2] * b, kM[1][0] * r + kM[1][1] * g + kM[1][2] * b,
@@ -96,16 +105,16 @@ void lab_to_srgb(const Lab& lab, double* r, double* g, double* b, bool* in_gamut
 }
 
 double ciede2000(const Lab& x, const Lab& y, const Ciede2000Weights& w) {
-  const double c1 = std::hypot(x.a, x.b), c2 = std::hypot(y.a, y.b);
+  const double c1 = pm::hypot(x.a, x.b), c2 = pm::hypot(y.a, y.b);
   const double cbar = 0.5 * (c1 + c2);
-  const double cbar7 = std::pow(cbar, 7.0);
+  const double cbar7 = seventh_power(cbar);
   const double p25_7 = 6103515625.0;  // 25^7
   const double g = 0.5 * (1.0 - std::sqrt(cbar7 / (cbar7 + p25_7)));
   const double a1 = (1.0 + g) * x.a, a2 = (1.0 + g) * y.a;
-  const double cp1 = std::hypot(a1, x.b), cp2 = std::hypot(a2, y.b);
+  const double cp1 = pm::hypot(a1, x.b), cp2 = pm::hypot(a2, y.b);
   auto hue = [](double b, double a) {
     if (a == 0.0 && b == 0.0) return 0.0;
-    double h = std::atan2(b, a) / kDeg;
+    double h = pm::atan2(b, a) / kDeg;
     return h < 0.0 ? h + 360.0 : h;
   };
   const double hp1 = hue(x.b, a1), hp2 = hue(y.b, a2);
@@ -118,7 +127,7 @@ double ciede2000(const Lab& x, const Lab& y, const Ciede2000Weights& w) {
     if (dh > 180.0) dh -= 360.0;
     else if (dh < -180.0) dh += 360.0;
   }
-  const double dH = 2.0 * std::sqrt(cp1 * cp2) * std::sin(0.5 * dh * kDeg);
+  const double dH = 2.0 * std::sqrt(cp1 * cp2) * pm::sin(0.5 * dh * kDeg);
 
   const double lbar = 0.5 * (x.L + y.L);
   const double cpbar = 0.5 * (cp1 + cp2);
@@ -128,16 +137,16 @@ double ciede2000(const Lab& x, const Lab& y, const Ciede2000Weights& w) {
     else if (hp1 + hp2 < 360.0) hbar = 0.5 * (hp1 + hp2 + 360.0);
     else hbar = 0.5 * (hp1 + hp2 - 360.0);
   }
-  const double t = 1.0 - 0.17 * std::cos((hbar - 30.0) * kDeg) + 0.24 * std::cos(2.0 * hbar * kDeg) +
-                   0.32 * std::cos((3.0 * hbar + 6.0) * kDeg) - 0.20 * std::cos((4.0 * hbar - 63.0) * kDeg);
-  const double dtheta = 30.0 * std::exp(-std::pow((hbar - 275.0) / 25.0, 2.0));
-  const double cpbar7 = std::pow(cpbar, 7.0);
+  const double t = 1.0 - 0.17 * pm::cos((hbar - 30.0) * kDeg) + 0.24 * pm::cos(2.0 * hbar * kDeg) +
+                   0.32 * pm::cos((3.0 * hbar + 6.0) * kDeg) - 0.20 * pm::cos((4.0 * hbar - 63.0) * kDeg);
+  const double dtheta = 30.0 * pm::exp(-((hbar - 275.0) / 25.0) * ((hbar - 275.0) / 25.0));
+  const double cpbar7 = seventh_power(cpbar);
   const double rc = 2.0 * std::sqrt(cpbar7 / (cpbar7 + p25_7));
   const double l50 = (lbar - 50.0) * (lbar - 50.0);
   const double sl = 1.0 + 0.015 * l50 / std::sqrt(20.0 + l50);
   const double sc = 1.0 + 0.045 * cpbar;
   const double sh = 1.0 + 0.015 * cpbar * t;
-  const double rt = -std::sin(2.0 * dtheta * kDeg) * rc;
+  const double rt = -pm::sin(2.0 * dtheta * kDeg) * rc;
 
   const double tl = dl / (w.kL * sl), tc = dc / (w.kC * sc), th = dH / (w.kH * sh);
   return std::sqrt(std::max(0.0, tl * tl + tc * tc + th * th + rt * tc * th));

@@ -6,9 +6,23 @@
 #include <random>
 #include <stdexcept>
 
+#include "solver/base/portable_random.h"
 #include "solver/features/feature_prep.h"
 
 namespace kith {
+namespace {
+
+// Eigen's matrix product cuts its work into blocks sized by the CPU's caches, read at run time,
+// and how a block's edge rows are summed differs from its inner ones: the covariance of the same
+// features came out different in the last bits on a CPU with another cache size, and the map
+// then differed. Fixed sizes, set once before main (so before any thread multiplies), give every
+// machine the same blocks. The values are common ones (32 KB L1, 1 MB L2, 8 MB L3).
+[[maybe_unused]] const bool kFixedEigenBlocking = [] {
+  Eigen::setCpuCacheSizes(32 * 1024, 1024 * 1024, 8 * 1024 * 1024);
+  return true;
+}();
+
+}  // namespace
 
 Points Pca::project(const Points& x) const { return (x.rowwise() - mean) * axes; }
 
@@ -99,9 +113,8 @@ Points pca_start(const Points& x, int dims, double first_std, uint64_t seed) {
   const double sd = std::sqrt((c0.array() - c0.mean()).square().mean());
   if (sd > 0) y *= first_std / sd;
   std::mt19937_64 rng(seed);
-  std::normal_distribution<double> noise(0.0, first_std);
   for (Eigen::Index i = 0; i < y.rows(); ++i)
-    for (int c = m; c < dims; ++c) y(i, c) = noise(rng);
+    for (int c = m; c < dims; ++c) y(i, c) = normal(rng, 0.0, first_std);
   return y;
 }
 

@@ -10,6 +10,7 @@
 #include <memory>
 #include <thread>
 
+#include "solver/base/portable_math.h"
 #include "solver/features/colour.h"
 
 namespace kith {
@@ -173,11 +174,11 @@ void texture(const LabImage& im, double* energy, double* orientation) {
       for (int x = 1; x + 1 < w; ++x) {
         const double gx = 0.5 * (g[size_t(y) * w + x + 1] - g[size_t(y) * w + x - 1]);
         const double gy = 0.5 * (g[size_t(y + 1) * w + x] - g[size_t(y - 1) * w + x]);
-        const double m = std::hypot(gx, gy);
+        const double m = pm::hypot(gx, gy);
         ++count;
         if (m == 0.0) continue;
         total += m;
-        double theta = std::atan2(gy, gx);
+        double theta = pm::atan2(gy, gx);
         if (theta < 0) theta += kPi;
         double t = theta / (kPi / kOrientationBins);  // bin centres at integers, cyclic
         const int lo = int(std::floor(t));

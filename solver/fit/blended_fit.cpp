@@ -4,6 +4,7 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "solver/base/portable_random.h"
 #include "solver/fit/fit.h"
 
 namespace kith {
@@ -26,9 +27,8 @@ std::string BlendedFitSummary::report() const {
 
 Points random_start(size_t n, int dims, uint64_t seed, double scale) {
   std::mt19937_64 rng(seed);
-  std::normal_distribution<double> g(0.0, scale);
   Points y(Eigen::Index(n), dims);
-  for (Eigen::Index i = 0; i < y.size(); ++i) y.data()[i] = g(rng);
+  for (Eigen::Index i = 0; i < y.size(); ++i) y.data()[i] = normal(rng, 0.0, scale);
   return y;
 }
 

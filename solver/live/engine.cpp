@@ -31,6 +31,7 @@
 #include <stdexcept>
 #include <unordered_set>
 
+#include "solver/base/portable_random.h"
 #include "solver/features/affinities.h"
 #include "solver/objective/blended_objective.h"
 #include "solver/features/feature_prep.h"
@@ -163,9 +164,8 @@ class EngineModel : public LiveModel {
     if (has_features_) return pca_start(*prepared_, options_.dims, 1e-4, options_.seed);
     // Judgments-only collection: a small seeded Gaussian start.
     std::mt19937_64 rng(options_.seed);
-    std::normal_distribution<double> gauss(0.0, 1e-4);
     Points y(Eigen::Index(n), options_.dims);
-    for (Eigen::Index i = 0; i < y.size(); ++i) y.data()[i] = gauss(rng);
+    for (Eigen::Index i = 0; i < y.size(); ++i) y.data()[i] = normal(rng, 0.0, 1e-4);
     return y;
   }
 
@@ -448,7 +448,7 @@ class EngineModel : public LiveModel {
     // A little seeded jitter, so that new items with the same neighbours do not coincide (the
     // kernel's gradient between two coincident points is zero: they would never separate).
     std::mt19937_64 rng(options_.seed + uint64_t(n_old));
-    std::normal_distribution<double> gauss(0.0, 1e-3 * std::max(radius, 1e-6));
+    const double spread = 1e-3 * std::max(radius, 1e-6);
     y_.conservativeResize(n_old + m, dims);
     for (Eigen::Index i = 0; i < m; ++i) {
       Eigen::RowVectorXd at = Eigen::RowVectorXd::Zero(dims);
@@ -458,7 +458,7 @@ class EngineModel : public LiveModel {
         w += pj;
       }
       at = w > 0 ? Eigen::RowVectorXd(at / w) : Eigen::RowVectorXd(centre);
-      for (Eigen::Index d = 0; d < dims; ++d) at(d) += gauss(rng);
+      for (Eigen::Index d = 0; d < dims; ++d) at(d) += normal(rng, 0.0, spread);
       y_.row(n_old + i) = at;
       ids_.push_back(new_ids[size_t(i)]);
     }

@@ -6,6 +6,8 @@
 #include <random>
 #include <stdexcept>
 
+#include "solver/base/portable_random.h"
+
 namespace kith {
 
 double judgment_satisfied(const Points& y, const Judgment& j) {
@@ -59,7 +61,7 @@ HeldOutResult heldout_agreement(const std::vector<Judgment>& judgments, const Fi
   std::vector<size_t> order(active.size());
   std::iota(order.begin(), order.end(), 0);
   std::mt19937_64 rng(options.seed);
-  std::shuffle(order.begin(), order.end(), rng);
+  shuffle(order.begin(), order.end(), rng);
   double pooled = 0.0;
   for (int f = 0; f < options.folds; ++f) {
     std::vector<Judgment> train, test;

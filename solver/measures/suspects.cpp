@@ -8,6 +8,8 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "solver/base/portable_math.h"
+
 namespace kith {
 
 const char* to_string(SuspectSpace space) {
@@ -66,7 +68,7 @@ SpaceScore score_one(const std::vector<std::string>& tags, const NeighbourGraph&
     if (j < 0 || size_t(j) == i) continue;
     const std::string& t = tags[size_t(j)];
     if (t.empty()) continue;
-    const double w = h2 > 0.0 ? std::exp(-std::max(0.0, d2[r]) / h2) : 1.0;
+    const double w = h2 > 0.0 ? pm::exp(-std::max(0.0, d2[r]) / h2) : 1.0;
     total += w;
     if (t != own) {
       differ += w;

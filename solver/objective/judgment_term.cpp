@@ -3,7 +3,9 @@
 #include <algorithm>
 #include <cmath>
 #include <sstream>
-#include <thread>
+
+#include "solver/base/parallel.h"
+#include "solver/base/portable_math.h"
 
 namespace kith {
 
@@ -36,10 +38,10 @@ void validate_judgments(const std::vector<Judgment>& judgments, size_t n) {
 namespace {
 
 // log K(d2) = -(alpha+1)/2 log(1 + d2/alpha)
-inline double log_kernel(double d2, double alpha) { return -0.5 * (alpha + 1.0) * std::log1p(d2 / alpha); }
+inline double log_kernel(double d2, double alpha) { return -0.5 * (alpha + 1.0) * pm::log1p(d2 / alpha); }
 
 // log(1 + exp(x)) without overflow.
-inline double softplus(double x) { return x > 0 ? x + std::log1p(std::exp(-x)) : std::log1p(std::exp(x)); }
+inline double softplus(double x) { return x > 0 ? x + pm::log1p(pm::exp(-x)) : pm::log1p(pm::exp(x)); }
 
 inline double squared_distance(const Points& y, int32_t i, int32_t j) {
   const double* a = y.data() + Eigen::Index(i) * y.cols();
@@ -64,7 +66,7 @@ void evaluate_range(const Points& y, const std::vector<Judgment>& js, size_t beg
     const double x = log_kernel(d2f, alpha) - log_kernel(d2n, alpha);
     total += j.weight * softplus(x);
     if (!g) continue;
-    const double one_minus_p = 1.0 / (1.0 + std::exp(-x));  // K_af / (K_an + K_af)
+    const double one_minus_p = 1.0 / (1.0 + pm::exp(-x));  // K_af / (K_an + K_af)
     const double sn = j.weight * one_minus_p * c / (1.0 + d2n / alpha);
     const double sf = j.weight * one_minus_p * c / (1.0 + d2f / alpha);
     const double* ya = y.data() + Eigen::Index(j.anchor) * d;
@@ -88,7 +90,7 @@ void evaluate_range(const Points& y, const std::vector<Judgment>& js, size_t beg
 
 double tste_probability(const Points& y, int32_t a, int32_t n, int32_t f, double alpha) {
   const double x = log_kernel(squared_distance(y, a, f), alpha) - log_kernel(squared_distance(y, a, n), alpha);
-  return 1.0 / (1.0 + std::exp(x));
+  return 1.0 / (1.0 + pm::exp(x));
 }
 
 JudgmentTerm::JudgmentTerm(size_t n, JudgmentTermOptions options) : n_(n), options_(options) {
@@ -109,30 +111,28 @@ double JudgmentTerm::evaluate(const Points& y, Points* gradient) {
     throw std::invalid_argument("judgment term: map has " + std::to_string(y.rows()) + " rows, expected " +
                                 std::to_string(n_));
   if (gradient) gradient->setZero(y.rows(), y.cols());
-  int threads = options_.threads == 0 ? int(std::max(1u, std::thread::hardware_concurrency())) : options_.threads;
   const size_t m = judgments_.size();
-  // Below a few thousand judgments a thread costs more than it saves.
-  threads = int(std::min<size_t>(size_t(threads), std::max<size_t>(1, m / 4096)));
-  if (threads <= 1) {
+  // Fixed chunks of judgments, each with its own cost and gradient, added in chunk order: the
+  // chunks depend on the number of judgments only, so any thread count gives the same bits. Below
+  // a few thousand judgments one chunk (a thread costs more than it saves).
+  constexpr size_t kChunk = 4096, kMostChunks = 16;
+  const size_t chunks = std::min(kMostChunks, std::max<size_t>(1, m / kChunk));
+  if (chunks == 1) {
     double cost = 0.0;
     evaluate_range(y, judgments_, 0, m, options_.alpha, &cost, gradient);
     return cost;
   }
-  std::vector<double> costs(size_t(threads), 0.0);
-  std::vector<Points> grads(static_cast<size_t>(threads), Points());
-  std::vector<std::thread> pool;
-  for (int t = 0; t < threads; ++t) {
-    if (gradient) grads[size_t(t)].setZero(y.rows(), y.cols());
-    const size_t b = m * size_t(t) / size_t(threads), e = m * size_t(t + 1) / size_t(threads);
-    pool.emplace_back([&, t, b, e] {
-      evaluate_range(y, judgments_, b, e, options_.alpha, &costs[size_t(t)], gradient ? &grads[size_t(t)] : nullptr);
-    });
-  }
-  for (auto& th : pool) th.join();
+  std::vector<double> costs(chunks, 0.0);
+  std::vector<Points> grads(chunks);
+  parallel_for(chunks, options_.threads, [&](size_t c) {
+    if (gradient) grads[c].setZero(y.rows(), y.cols());
+    evaluate_range(y, judgments_, m * c / chunks, m * (c + 1) / chunks, options_.alpha, &costs[c],
+                   gradient ? &grads[c] : nullptr);
+  });
   double cost = 0.0;
-  for (int t = 0; t < threads; ++t) {
-    cost += costs[size_t(t)];
-    if (gradient) *gradient += grads[size_t(t)];
+  for (size_t c = 0; c < chunks; ++c) {
+    cost += costs[c];
+    if (gradient) *gradient += grads[c];
   }
   return cost;
 }

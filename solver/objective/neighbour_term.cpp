@@ -17,11 +17,13 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdint>
+#include <cstdlib>
 #include <cstring>
 #include <immintrin.h>
 #include <stdexcept>
 #include <vector>
 
+#include "solver/base/portable_math.h"
 #include "solver/base/parallel.h"
 
 namespace kith {
@@ -42,14 +44,16 @@ inline T kernel_w(T t, T half_exponent) {
     (void)half_exponent;
     return t * std::sqrt(t);
   } else {
-    return std::pow(t, half_exponent);
+    return T(pm::pow(double(t), double(half_exponent)));  // libm's pow differs between CPUs
   }
 }
 
 constexpr size_t kRowChunk = 512;
 
+// The AVX2 paths are used where the CPU has them; KITH_NO_AVX2 set (to anything) in the environment
+// takes the plain ones, so a test can show both give the same bits on one machine.
 bool have_avx2() {
-  static const bool yes = __builtin_cpu_supports("avx2");
+  static const bool yes = __builtin_cpu_supports("avx2") && std::getenv("KITH_NO_AVX2") == nullptr;
   return yes;
 }
 
@@ -413,7 +417,7 @@ struct NeighbourTerm::Impl {
     p = std::move(np);
     double s = 0.0;
     for (double v : p->val)
-      if (v > 0) s += v * std::log(v);
+      if (v > 0) s += v * pm::log(v);
     p_log_p = s;
   }
 
@@ -539,6 +543,7 @@ NeighbourTerm::NeighbourTerm(std::shared_ptr<const SparseAffinities> p, Neighbou
 NeighbourTerm::~NeighbourTerm() = default;
 
 void NeighbourTerm::set_affinities(std::shared_ptr<const SparseAffinities> p) { impl_->set_p(std::move(p)); }
+std::shared_ptr<const SparseAffinities> NeighbourTerm::affinities() const { return impl_->p; }
 void NeighbourTerm::set_exaggeration(double factor) { impl_->exaggeration = factor; }
 void NeighbourTerm::set_theta(double theta) { impl_->options.theta = theta; }
 const NeighbourTermOptions& NeighbourTerm::options() const { return impl_->options; }
@@ -559,7 +564,7 @@ double NeighbourTerm::evaluate(const Points& y, Points* gradient) {
     default: z = m.repel<Kernel::kGeneral>(y); break;
   }
   // -sum p log w = (dof+1)/2 sum p log(1 + d^2/dof)
-  const double cost = e * (m.p_log_p + std::log(e)) + e * 0.5 * (dof + 1.0) * p_log_t + std::log(z);
+  const double cost = e * (m.p_log_p + pm::log(e)) + e * 0.5 * (dof + 1.0) * p_log_t + pm::log(z);
   if (gradient) {
     const double c = 2.0 * (dof + 1.0) / dof;
     gradient->resize(y.rows(), y.cols());

@@ -29,6 +29,7 @@ class NeighbourTerm : public ObjectiveTerm {
   double evaluate(const Points& y, Points* gradient) override;
 
   void set_affinities(std::shared_ptr<const SparseAffinities> p);  // e.g. after a perplexity change
+  std::shared_ptr<const SparseAffinities> affinities() const;       // the P in use
   void set_exaggeration(double factor);                            // default 1
   void set_theta(double theta);
   const NeighbourTermOptions& options() const;

@@ -46,6 +46,9 @@ const char* kHelp =
     "\n"
     "options:\n"
     "  --answers N       answers in the headless run (default: 100)\n"
+    "  --questions grid|pairs  grid: which 2 of 8 swatches are most like the one shown (12\n"
+    "                    judgments an answer, as the window asks); pairs: which of 2 (one\n"
+    "                    judgment) (default: grid)\n"
     "  --blend B         weight of the answers against the features (default: 5)\n"
     "  --weights on|off  the answers also teach how much each block of picture features\n"
     "                    (colour, texture, layout) matters, and the map is rebuilt from the\n"
@@ -113,8 +116,13 @@ int run_headless(const DemoData& d, DemoTrialOptions trial, uint64_t seed, const
   SimulatedPeopleOptions po;
   set_trial_seed(seed, &trial, &po);
   SimulatedPeople people(d.perceptual, po);
-  std::printf("features-only map, then %d answers from the simulated people (most informative questions)...\n",
-              trial.answers);
+  if (trial.question == QuestionKind::kGrid)
+    std::printf("features-only map, then %d answers from the simulated people (most informative grid questions: "
+                "%d candidates, pick %d, so %d judgments an answer)...\n",
+                trial.answers, trial.grid_size, trial.grid_choose, trial.grid_choose * (trial.grid_size - trial.grid_choose));
+  else
+    std::printf("features-only map, then %d answers from the simulated people (most informative pair questions)...\n",
+                trial.answers);
   const DemoTrialResult r = run_demo_trial(d.collection.features, people, trial, [](int done, int total) {
     if (done % 20 == 0 || done == total) std::printf("  %d of %d answers\n", done, total), std::fflush(stdout);
   });
@@ -133,15 +141,20 @@ int run_headless(const DemoData& d, DemoTrialOptions trial, uint64_t seed, const
   std::string problem = render_map_png(d.collection, r.features_only_map, ro, before);
   if (problem.empty() && r.first_question.anchor >= 0) {
     RenderOptions rq = ro;
-    rq.selected = {r.first_question.anchor, r.first_question.candidates[0], r.first_question.candidates[1]};
-    rq.title = "Is " + d.collection.ids[size_t(r.first_question.anchor)] + " more like " +
-               d.collection.ids[size_t(r.first_question.candidates[0])] + " or " +
-               d.collection.ids[size_t(r.first_question.candidates[1])] + "?";
+    const Question& fq = r.first_question;
+    rq.selected = {fq.anchor};
+    for (int32_t c : fq.candidates) rq.selected.push_back(c);
+    if (fq.candidates.size() == 2)
+      rq.title = "Is " + d.collection.ids[size_t(fq.anchor)] + " more like " + d.collection.ids[size_t(fq.candidates[0])] +
+                 " or " + d.collection.ids[size_t(fq.candidates[1])] + "?";
+    else
+      rq.title = "Which " + std::to_string(trial.grid_choose) + " of these " + std::to_string(fq.candidates.size()) +
+                 " are most like " + d.collection.ids[size_t(fq.anchor)] + "?";
     problem = render_map_png(d.collection, r.features_only_map, rq, question);
   }
   if (problem.empty()) {
     RenderOptions ra = ro;
-    ra.judgments = r.answers;
+    ra.judgments = r.judgments;
     problem = render_map_png(d.collection, r.final_map, ra, after);
   }
   std::printf("\n%s\n", r.BriefReport().c_str());
@@ -159,9 +172,10 @@ struct LiveDemo {
   const DemoData& data;
   MapFeed& feed;
   SimulatedPeople people;
-  Picker picker{neighbourhood_picker()};  // as the headless run (solver/demo/demo_trial.h)
+  Picker picker{demo_picker()};  // as the headless run (solver/demo/demo_trial.h)
   std::vector<Judgment> truth;       // held-out triplets of the hidden distance
-  std::vector<Judgment> answers;
+  std::vector<Judgment> answers;     // the judgments of every answer so far
+  int answered = 0;                  // questions answered
   double first_agreement = -1.0;     // of the features-only map, when the first answer came
   std::vector<int> show;             // the last question, to select
   bool show_pending = false;
@@ -179,7 +193,7 @@ struct LiveDemo {
   // What the answers so far say about the feature blocks; the engine rebuilds the map's affinities
   // from the reweighted features off its hot loop and regroups (solver/features/block_weights.h).
   void reweight() {
-    if (!learn_weights || blocks.empty() || answers.size() < size_t(trial.reweight_from)) return;
+    if (!learn_weights || blocks.empty() || answered < trial.reweight_from) return;
     weights = learn_block_weights(data.collection.features, blocks, answers, trial.weights);
     feed.post(cmd::SetFeatures{apply_block_weights(data.collection.features, blocks, weights.weights),
                                trial.regroup_iterations, trial.regroup_exaggeration});
@@ -194,17 +208,27 @@ struct LiveDemo {
       in.map = &snapshot->positions;
       in.features = &data.collection.features;
       in.judgments = &answers;
-      const Question question = picker.pair(in);
-      if (question.anchor < 0) break;
-      Judgment j = people.answer(question.anchor, question.candidates[0], question.candidates[1]);
-      j.time = double(std::chrono::duration_cast<std::chrono::seconds>(
-                          std::chrono::system_clock::now().time_since_epoch()).count());
-      // Through prepare(): the session (when there is one) stores it and gives it its id first.
-      CommandBody body = cmd::AddJudgment{j};
-      if (const std::string refused = feed.prepare(body); !refused.empty()) return refused;
-      answers.push_back(std::get<cmd::AddJudgment>(body).judgment);
-      feed.post(std::move(body));
-      show = {question.anchor, question.candidates[0], question.candidates[1]};
+      const bool grid = trial.question == QuestionKind::kGrid;
+      const Question question = grid ? picker.grid(in, trial.grid_size, trial.grid_choose) : picker.pair(in);
+      if (question.anchor < 0 || question.candidates.size() < 2) break;
+      std::vector<Judgment> given;
+      if (grid && int(question.candidates.size()) > trial.grid_choose)
+        given = people.answer_grid(question.anchor, question.candidates, trial.grid_choose);
+      else
+        given = {people.answer(question.anchor, question.candidates[0], question.candidates[1])};
+      const double now = double(std::chrono::duration_cast<std::chrono::seconds>(
+                                    std::chrono::system_clock::now().time_since_epoch()).count());
+      for (Judgment& j : given) {
+        j.time = now;
+        // Through prepare(): the session (when there is one) stores it and gives it its id first.
+        CommandBody body = cmd::AddJudgment{j};
+        if (const std::string refused = feed.prepare(body); !refused.empty()) return refused;
+        answers.push_back(std::get<cmd::AddJudgment>(body).judgment);
+        feed.post(std::move(body));
+      }
+      ++answered;
+      show = {question.anchor};
+      for (int32_t c : question.candidates) show.push_back(c);
       show_pending = true;
     }
     if (answers.empty()) return "no question could be asked";
@@ -218,7 +242,7 @@ struct LiveDemo {
     std::vector<std::string> out;
     auto snapshot = feed.latest();
     char buf[160];
-    std::snprintf(buf, sizeof buf, "answers: %zu   (K: 10 more, shift+K: 100)", answers.size());
+    std::snprintf(buf, sizeof buf, "answers: %d, judgments: %zu   (K: 10 more, shift+K: 100)", answered, answers.size());
     out.push_back(buf);
     if (snapshot && snapshot->positions.rows() == Eigen::Index(data.collection.size())) {
       const double now = triplet_agreement(snapshot->positions, truth);
@@ -313,6 +337,13 @@ int cmd_demo(const Args& args) {
       return kExitUsage;
     }
     trial.blend = number;
+  }
+  if (auto v = flags.value("--questions")) {
+    if (*v != "grid" && *v != "pairs") {
+      std::fprintf(stderr, "kith demo: --questions expects grid or pairs, got '%s'\n", v->c_str());
+      return kExitUsage;
+    }
+    trial.question = *v == "grid" ? QuestionKind::kGrid : QuestionKind::kPair;
   }
   if (auto v = flags.value("--weights")) {
     if (*v != "on" && *v != "off") {

@@ -3,6 +3,8 @@
 #include <cstdio>
 #include <random>
 
+#include "solver/base/portable_random.h"
+
 namespace kith {
 
 Collection synthetic_collection(size_t n, int groups, uint64_t seed) {
@@ -10,7 +12,6 @@ Collection synthetic_collection(size_t n, int groups, uint64_t seed) {
                                      "walnut", "jute"};
   const int dims = 12;
   std::mt19937_64 rng(seed);
-  std::normal_distribution<double> normal(0.0, 1.0);
   Points centres(groups, dims);
   for (int g = 0; g < groups; ++g)
     for (int d = 0; d < dims; ++d) centres(g, d) = normal(rng) * 6.0;
