@@ -37,4 +37,10 @@ Points prepare_features(const Points& x, const FeaturePrepOptions& options, std:
 // that same standard deviation, so that they can unfold.
 Points pca_start(const Points& x, int dims, double first_std = 1e-4, uint64_t seed = 42);
 
+// Classical (Torgerson) scaling of a matrix of squared distances d2 (n x n, symmetric): the
+// double-centred B = -1/2 J d2 J, its `dims` largest eigenvalues l_c and unit eigenvectors v_c
+// (signs fixed as for PCA), coordinates v_c sqrt(max(l_c, 0)). Euclidean distances are recovered
+// exactly when d2 comes from points in `dims` dimensions.
+Points classical_scaling(const Eigen::MatrixXd& d2, int dims);
+
 }  // namespace kith

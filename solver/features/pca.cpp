@@ -118,4 +118,26 @@ Points pca_start(const Points& x, int dims, double first_std, uint64_t seed) {
   return y;
 }
 
+Points classical_scaling(const Eigen::MatrixXd& d2, int dims) {
+  const Eigen::Index n = d2.rows();
+  if (n < 2 || d2.cols() != n) throw std::invalid_argument("classical scaling needs a square matrix of at least 2 items");
+  if (dims < 1 || dims > n) throw std::invalid_argument("classical scaling: dims must be in 1 .. n");
+  const Eigen::VectorXd row_mean = d2.rowwise().mean();
+  const double mean = row_mean.mean();
+  Eigen::MatrixXd b(n, n);
+  for (Eigen::Index i = 0; i < n; ++i)
+    for (Eigen::Index j = 0; j < n; ++j) b(i, j) = -0.5 * (d2(i, j) - row_mean(i) - row_mean(j) + mean);
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(b);
+  if (es.info() != Eigen::Success) throw std::runtime_error("classical scaling: eigen decomposition failed");
+  Points y(n, dims);
+  for (int c = 0; c < dims; ++c) {
+    Eigen::VectorXd v = es.eigenvectors().col(n - 1 - c);
+    Eigen::Index big;
+    v.cwiseAbs().maxCoeff(&big);
+    if (v(big) < 0) v = -v;
+    y.col(c) = v * std::sqrt(std::max(0.0, es.eigenvalues()(n - 1 - c)));
+  }
+  return y;
+}
+
 }  // namespace kith
