@@ -31,10 +31,22 @@ bool SimulatedPeopleOptions::IsValid(std::string* error) const {
       if (error) *error = "member " + m.name + ": noise must be finite and >= 0";
       return false;
     }
-  if (!(distance.pattern_weight >= 0.0) || !(distance.scale_weight >= 0.0)) {
+  if (!(distance.pattern_weight >= 0.0) || !(distance.scale_weight >= 0.0) || !(distance.colour.kL > 0.0) ||
+      !(distance.colour.kC > 0.0) || !(distance.colour.kH > 0.0)) {
     if (error) *error = "distance weights must be >= 0";
     return false;
   }
+  return true;
+}
+
+bool people_scenario(const std::string& name, SimulatedPeopleOptions* options) {
+  SimulatedPeopleOptions o = *options;
+  if (name == "demo") o.distance = PerceptualDistanceOptions{};
+  else if (name == "hue-blind") o.distance.colour.kH = 1000.0;
+  else if (name == "scale-heavy") o.distance.scale_weight = 30.0;
+  else if (name == "pattern-first") o.distance.pattern_weight = 60.0;
+  else return false;
+  *options = o;
   return true;
 }
 
@@ -47,7 +59,7 @@ SimulatedPeople::SimulatedPeople(std::vector<PerceptualItem> items, SimulatedPeo
 double SimulatedPeople::distance(int32_t i, int32_t j) const {
   const auto& x = items_[size_t(i)];
   const auto& y = items_[size_t(j)];
-  double d = ciede2000(x.colour, y.colour);
+  double d = ciede2000(x.colour, y.colour, options_.distance.colour);
   if (x.pattern != y.pattern) d += options_.distance.pattern_weight;
   if (x.pattern != 0 && y.pattern != 0) d += options_.distance.scale_weight * std::abs(pm::log(x.period / y.period)) * kInvLn2;
   return d;

@@ -34,6 +34,7 @@ std::vector<PerceptualItem> perceptual_items(const std::vector<Swatch>& swatches
 struct PerceptualDistanceOptions {
   double pattern_weight = 20.0;  // cost of a different pattern kind, in dE00 units (default: 20)
   double scale_weight = 8.0;     // per doubling of the pattern repeat (default: 8)
+  Ciede2000Weights colour;       // CIEDE2000's kL, kC, kH; a large kH is blind to hue (default: 1, 1, 1)
 };
 
 struct SimulatedPerson {
@@ -49,6 +50,15 @@ struct SimulatedPeopleOptions {
   uint64_t seed = 7;  // (default: 7)
   bool IsValid(std::string* error) const;
 };
+
+// Scenarios of hidden structure for choosing defaults (tests/bench/RESULTS-demo.md), each the
+// default four people judging by another distance:
+//   "demo"          the distance above;
+//   "hue-blind"     colour without its hue term (kH = 1000): lightness, chroma, pattern and scale;
+//   "scale-heavy"   pattern scale weighs 30 per doubling instead of 8;
+//   "pattern-first" a different pattern kind costs 60 instead of 20, so pattern outweighs colour.
+// Returns false (options unchanged) for an unknown name.
+bool people_scenario(const std::string& name, SimulatedPeopleOptions* options);
 
 class SimulatedPeople {
  public:

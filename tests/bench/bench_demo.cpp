@@ -6,6 +6,10 @@
 //   build/tests/bench_demo [--seeds S] [--questions grid|pairs] [--picker informative|random]
 //                          [--blend B] [--weights on|off] [--checkpoints 25,50,100,200]
 //                          [--count SWATCHES] [--ceilings on|off] [--svg FILE] [--threads T]
+//                          [--scenario demo|hue-blind|scale-heavy|pattern-first]
+// The last lines give trustworthiness against the features and a one-line summary (scenario, blend,
+// held-out before / after the last checkpoint / control / t-SNE ceiling, local after / ceiling,
+// trustworthiness before / after), for choosing the defaults.
 // Not built by default: cmake --build build --target bench_demo
 #include <algorithm>
 #include <cstdio>
@@ -19,6 +23,7 @@
 #include "solver/demo/demo_trial.h"
 #include "solver/demo/sample_library.h"
 #include "solver/features/picture_descriptors.h"
+#include "solver/measures/health.h"
 
 namespace {
 
@@ -87,7 +92,7 @@ void write_svg(const std::string& path, const std::vector<int>& xs, const std::v
 int main(int argc, char** argv) {
   int seeds = 5, count = kith::SampleLibraryOptions{}.count, threads = 2;
   double blend = kith::DemoTrialOptions{}.blend;
-  std::string questions = "grid", picker = "informative", weights = "on", ceilings = "on", svg;
+  std::string questions = "grid", picker = "informative", weights = "on", ceilings = "on", svg, scenario = "demo";
   std::vector<int> checkpoints = {25, 50, 100, 200};
   for (int i = 1; i + 1 < argc; i += 2) {
     const std::string k = argv[i], v = argv[i + 1];
@@ -99,6 +104,7 @@ int main(int argc, char** argv) {
     else if (k == "--count") count = std::atoi(v.c_str());
     else if (k == "--ceilings") ceilings = v;
     else if (k == "--svg") svg = v;
+    else if (k == "--scenario") scenario = v;
     else if (k == "--threads") threads = std::atoi(v.c_str());
     else if (k == "--checkpoints") {
       checkpoints.clear();
@@ -121,7 +127,7 @@ int main(int argc, char** argv) {
     for (int c = 0; c < kith::descriptor_size(); ++c) f(Eigen::Index(i), c) = v[size_t(c)];
   }
   kith::weight_descriptor_blocks(f);
-  std::printf("swatches %d, %s questions, %s picker, blend %.2f, weights %s, checkpoints", count, questions.c_str(),
+  std::printf("scenario %s, swatches %d, %s questions, %s picker, blend %.2f, weights %s, checkpoints", scenario.c_str(), count, questions.c_str(),
               picker.c_str(), blend, weights.c_str());
   for (int c : checkpoints) std::printf(" %d", c);
   std::printf("\n\n| seed | measure | features only |");
@@ -135,10 +141,15 @@ int main(int argc, char** argv) {
   std::vector<double> before[2], tsne[2], mds[2];
   for (int m = 0; m < 2; ++m) after[m].assign(C, {}), control[m].assign(C, {});
   std::vector<size_t> judgments(C, 0);
+  std::vector<double> trust_before, trust_after;  // against the features, k = 10
   for (int s = 0; s < seeds; ++s) {
     kith::DemoTrialOptions o;
     kith::SimulatedPeopleOptions po;
     kith::set_trial_seed(uint64_t(42 + s), &o, &po);
+    if (!kith::people_scenario(scenario, &po)) {
+      std::fprintf(stderr, "bench_demo: unknown scenario %s\n", scenario.c_str());
+      return 2;
+    }
     o.answers = checkpoints.empty() ? 0 : checkpoints.back();
     o.checkpoints = checkpoints;
     o.blend = blend;
@@ -155,6 +166,8 @@ int main(int argc, char** argv) {
       co.threads = threads;
       ceil = kith::demo_ceilings(people, heldout, kith::hidden_neighbours(people, o.local_k), o.local_k, co);
     }
+    trust_before.push_back(kith::trustworthiness(f, r.features_only_map, 10, threads));
+    trust_after.push_back(kith::trustworthiness(f, r.final_map, 10, threads));
     const double b[2] = {r.agreement_before, r.local_before};
     const double t[2] = {ceil.tsne_heldout, ceil.tsne_local}, md[2] = {ceil.mds_heldout, ceil.mds_local};
     for (int m = 0; m < 2; ++m) {
@@ -189,6 +202,12 @@ int main(int argc, char** argv) {
     mds_median[m] = median(mds[m]);
     std::printf(" %.3f | %.3f |\n", tsne_median[m], mds_median[m]);
   }
+  std::printf("\ntrustworthiness against the features (k = 10), medians: features-only map %.3f, after %d answers %.3f\n",
+              median(trust_before), checkpoints.empty() ? 0 : checkpoints.back(), median(trust_after));
+  std::printf("summary | %s | %.2f | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f |\n", scenario.c_str(), blend,
+              median(before[0]), C ? median(after[0][C - 1]) : -1.0, C ? median(control[0][C - 1]) : -1.0,
+              median(tsne[0]), C ? median(after[1][C - 1]) : -1.0, median(tsne[1]), median(trust_before),
+              median(trust_after));
   std::printf("\njudgments at the checkpoints:");
   for (size_t c = 0; c < C; ++c) std::printf(" %d answers = %zu judgments;", checkpoints[c], judgments[c]);
   std::printf("\n");
