@@ -79,11 +79,11 @@ TEST_CASE("portable maths: within a few ulps of the C library over random argume
   }
   CHECK(worst2 <= kAgainstLibrary);
   CHECK(worst_hypot <= kAgainstLibrary);
-  // pow is exp(y log x): its error grows with |y log x| (see the header).
+  // pow is exp(y log x): its error grows with |y log x| (see the header: 2 + 3 |y log x| ulps).
   double worst_pow = 0.0;
   for (int i = 0; i < kSamples; ++i) {
     const double x = kith::uniform01(rng), y = -8 + 16 * kith::uniform01(rng);
-    worst_pow = std::max(worst_pow, ulps(pm::pow(x, y), std::pow(x, y)) / (kAgainstLibrary + std::abs(y * std::log(x))));
+    worst_pow = std::max(worst_pow, ulps(pm::pow(x, y), std::pow(x, y)) / (kAgainstLibrary + 3.0 * std::abs(y * std::log(x))));
   }
   CHECK(worst_pow <= 1.0);
 }
@@ -97,7 +97,8 @@ TEST_CASE("portable maths: cbrt within an ulp of a long-double reference (glibc'
   }
   CHECK(worst <= 1.0);
   // subnormal arguments are scaled first
-  CHECK(ulps(pm::cbrt(4e-320), cbrtl(4e-320L)) <= 1.0);
+  const double tiny = 4e-320;  // the double nearest (few bits: subnormal), not the decimal
+  CHECK(ulps(pm::cbrt(tiny), cbrtl((long double)tiny)) <= 1.0);
 }
 
 TEST_CASE("portable maths: special values") {
@@ -165,7 +166,7 @@ TEST_CASE("portable maths: within a few ulps of numpy") {
     else FAIL("unknown function " << name);
     const double e = ulps(ours, r);
     if (name == "pow") {
-      worst_pow = std::max(worst_pow, e / (kAgainstLibrary + std::abs(y * std::log(x))));
+      worst_pow = std::max(worst_pow, e / (kAgainstLibrary + 3.0 * std::abs(y * std::log(x))));
     } else if (e > worst) {
       worst = e;
       worst_name = name;

@@ -15,7 +15,7 @@
 //   log(x)    x = 2^k (1 + f), sqrt(1/2) <= 1 + f < sqrt(2), s = f / (2 + f),
 //             log(1 + f) = f - s (f - R(s^2)) in the fdlibm arrangement, plus k ln2 (split)
 //   log1p(u)  log(1 + u) corrected by (u - ((1 + u) - 1)) / (1 + u)
-//   pow(x, y) for x >= 0 only: exp(y log x); relative error about |y log x| ulps
+//   pow(x, y) for x >= 0 only: exp(y log x); the rounding of y log x grows with it (about 3 |y log x| ulps)
 //   sin, cos  x = k pi/2 + r (pi/2 in three 33-bit parts), |r| <= pi/4, odd/even polynomials;
 //             meant for |x| < 2^19 (beyond that still deterministic, less accurate)
 //   atan(x)   reduced by the breakpoints 7/16, 11/16, 19/16, 39/16 to a polynomial in x^2
@@ -24,7 +24,7 @@
 //             is exact) and one last step
 //   hypot     sqrt(a^2 + b^2), scaled when a square would overflow or underflow
 // Accuracy (tests/test_solver_portable_math.cpp, against std:: and numpy): exp, log, log1p,
-// sin, cos, atan, atan2, cbrt, hypot within kPortableUlps = 2 ulps; pow within 2 + |y log x| ulps.
+// sin, cos, atan, atan2, cbrt, hypot within kPortableUlps = 2 ulps; pow within 2 + 3 |y log x| ulps.
 // Pure functions; any thread.
 #pragma once
 
