@@ -15,29 +15,32 @@
 #include "viewer/cli/shared_flags.h"
 
 namespace fs = std::filesystem;
-using kith::Flag;
 using kith::FlagReader;
 
 namespace {
 
+const char* const kOptions =
+    "  -o, --output FILE     where to\n"
+    "  --force               replace\n"
+    "  --count N             how many\n"
+    "  --scale X             how much,\n"
+    "                        said on two lines\n"
+    "  --add A,B             repeatable\n"
+    "  --mode on|off         a choice\n"
+    "  --size WxH            a size\n"
+    "  --colour, --color NAME\n"
+    "                        a colour\n";
+
 FlagReader reader() {
-  return FlagReader("try", "usage: kith try ITEMS\n",
-                    {{"--output", "FILE", "where to", "-o"},
-                     {"--force", "", "replace"},
-                     {"--count", "N", "how many"},
-                     {"--scale", "X", "how much"},
-                     {"--add", "A,B", "repeatable"},
-                     {"--mode", "on|off", "a choice"},
-                     {"--size", "WxH", "a size"},
-                     {"--colour", "NAME", "a colour", "--color"},
-                     {"--hook", "FILE", ""}});
+  return FlagReader("try", "usage: kith try ITEMS\n", kOptions, "exit codes: none\n", "--hook FILE");
 }
 
 // An invented collection file of N swatches.
 std::string write_items(const std::string& dir, size_t n) {
   std::ostringstream s;
   s << "id,weave,warmth,gloss\n";
-  for (size_t i = 0; i < n; ++i) s << "sw" << i << "," << (i % 2 ? "twill" : "satin") << "," << i % 5 << "," << i % 3 << "\n";
+  for (size_t i = 0; i < n; ++i)
+    s << "sw" << i << "," << (i % 2 ? "twill" : "satin") << "," << i % 5 << "," << i % 3 << "\n";
   const std::string path = dir + "/swatches.csv";
   kith::test::write_bytes(path, s.str());
   return path;
@@ -76,8 +79,28 @@ TEST_CASE("cli flags: values, flags, --key=value, -o, repeats and positional arg
   CHECK(later.text("--scale") == "2");  // the last one counts
 
   FlagReader help = reader();
-  CHECK(help.read({"--bogus", "-h"}));  // help wins over anything else
+  CHECK_FALSE(help.read({"--bogus", "-h"}));  // help wins over anything else
   CHECK(help.help());
+  CHECK(help.ok());
+}
+
+TEST_CASE("cli flags: the help's option lines are the declarations") {
+  FlagReader f = reader();
+  for (const char* name :
+       {"--output", "--force", "--count", "--scale", "--add", "--mode", "--size", "--colour", "--hook"})
+    CHECK(f.declared(name));
+  CHECK_FALSE(f.declared("--color"));  // an alias, not a second option
+  CHECK_FALSE(f.declared("--said"));   // words of a continuation line declare nothing
+  REQUIRE(f.read({"--scale", "2", "--hook", "h.txt", "--color", "red", "-o", "x"}));
+  CHECK(f.text("--hook") == "h.txt");
+  CHECK(f.text("--output") == "x");
+  FlagReader flags_take_no_value = reader();
+  CHECK(flags_take_no_value.read({"--force", "items.csv"}));
+  CHECK(flags_take_no_value.positional() == std::vector<std::string>{"items.csv"});
+  CHECK(kith::option_line("--dims 2|3", "map dimensions\nin one line") ==
+        "  --dims 2|3            map dimensions\n                        in one line\n");
+  CHECK(kith::option_line("--a-very-long-option VALUE", "help") ==
+        "  --a-very-long-option VALUE\n" + std::string(24, ' ') + "help\n");
 }
 
 TEST_CASE("cli flags: unknown options, missing values and values given to flags are named") {
@@ -161,6 +184,7 @@ TEST_CASE("cli flags: typed getters refuse bad numbers and values out of range w
 
 TEST_CASE("cli flags: the map settings are read by one function and checked by MapParameters") {
   FlagReader f("try", "", kith::map_flags({"--dims", "--perplexity", "--theta", "--seed", "--iterations"}));
+  CHECK(kith::map_flags({"--theta"}) == "  --theta T             Barnes-Hut angle, 0 (exact) .. 1.5 (default: 0.5)\n");
   REQUIRE(f.read({"--dims=2", "--perplexity", "12.5", "--theta", "9.99", "--seed", "7", "--iterations", "300"}));
   kith::MapParameters p;
   REQUIRE(kith::read_map_flags(f, &p));
@@ -192,8 +216,7 @@ TEST_CASE("cli flags: kith new and kith fit refuse settings the engine would ref
   for (const Case& c : {Case{"--perplexity 5000", "perplexity must be smaller than the number of items (60)"},
                         Case{"--perplexity=60", "perplexity must be smaller than the number of items (60)"},
                         Case{"--theta 9.99", "theta must be between 0 and 1.5"},
-                        Case{"--dof 0", "dof must be between 0.05 and 100"},
-                        Case{"--dims 4", "dims must be 2 or 3"}}) {
+                        Case{"--dof 0", "dof must be between 0.05 and 100"}, Case{"--dims 4", "dims must be 2 or 3"}}) {
     CAPTURE(c.setting);
     const std::string session = dir + "/box.kith";
     kith::test::KithRun r = kith::test::run_kith("new " + items + " -o " + session + " " + c.setting);
@@ -226,7 +249,8 @@ TEST_CASE("cli flags: kith new and kith fit refuse settings the engine would ref
 TEST_CASE("cli flags: every command names an unknown option and a missing value the same way") {
   const std::string dir = kith::test::temp_dir("cli-flags-commands");
   const std::string items = write_items(dir, 30);
-  for (const char* command : {"check", "fit", "new", "judge", "export", "report", "describe", "render", "demo", "open"}) {
+  for (const char* command :
+       {"check", "fit", "new", "judge", "export", "report", "describe", "render", "demo", "open"}) {
     CAPTURE(command);
     kith::test::KithRun r = kith::test::run_kith(std::string(command) + " " + items + " --frobnicate");
     CHECK(r.code == 2);
@@ -236,8 +260,8 @@ TEST_CASE("cli flags: every command names an unknown option and a missing value 
     CHECK(r.code == 0);
     CHECK(r.output.find("usage: kith " + std::string(command)) == 0);
   }
-  for (const std::string& args : {"fit " + items + " -o " + dir + "/l.csv --perplexity",
-                                  "new " + items + " -o", "report " + items + " --rows"}) {
+  for (const std::string& args :
+       {"fit " + items + " -o " + dir + "/l.csv --perplexity", "new " + items + " -o", "report " + items + " --rows"}) {
     CAPTURE(args);
     const kith::test::KithRun r = kith::test::run_kith(args);
     CHECK(r.code == 2);

@@ -225,14 +225,16 @@ TEST_CASE("layout writer: one CSV and JSON layout, with the two numberings fit a
   layout.group = {1, -1, 0};
   layout.suspect = {0.25, std::nan(""), 1.0 / 3.0};
   // export: groups from 0, none empty; its suspect column name.
-  CHECK(kith::layout_csv(layout) == "id,x,y,z,wood,group,suspect_score\noak,1.5,2,3,hard,1,0.25\n"
-                                    "\"ash, \"\"white\"\"\",-0.25,1e-07,0,hard,,\nelm,10,20,30,soft,0,0.333333333\n");
+  CHECK(kith::layout_csv(layout) ==
+        "id,x,y,z,wood,group,suspect_score\noak,1.5,2,3,hard,1,0.25\n"
+        "\"ash, \"\"white\"\"\",-0.25,1e-07,0,hard,,\nelm,10,20,30,soft,0,0.333333333\n");
   // fit: groups from 1 with 0 for none (so the CSV loads as numbers), "suspect".
   kith::LayoutFormat fit;
   fit.suspect_column = "suspect";
   fit.groups_from_one = true;
-  CHECK(kith::layout_csv(layout, fit) == "id,x,y,z,wood,group,suspect\noak,1.5,2,3,hard,2,0.25\n"
-                                         "\"ash, \"\"white\"\"\",-0.25,1e-07,0,hard,0,\nelm,10,20,30,soft,1,0.333333333\n");
+  CHECK(kith::layout_csv(layout, fit) ==
+        "id,x,y,z,wood,group,suspect\noak,1.5,2,3,hard,2,0.25\n"
+        "\"ash, \"\"white\"\"\",-0.25,1e-07,0,hard,0,\nelm,10,20,30,soft,1,0.333333333\n");
 
   layout.header["iteration"] = 321;
   const auto doc = nlohmann::json::parse(kith::layout_json(layout));

@@ -37,10 +37,9 @@ std::string list(const std::vector<std::string>& names, size_t max_shown) {
 }  // namespace
 
 int cmd_check(const Args& args) {
-  FlagReader flags("check", kUsage, load_flags(), kFooter);
-  flags.add({{"--min-items", "N", "fewer items is an error (default: 2)"}});
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("check", kUsage, load_flags() + "  --min-items N         fewer items is an error (default: 2)\n",
+                   kFooter);
+  if (!flags.read(args)) return flags.stop();
   LoadOptions options;
   if (!read_load_flags(flags, &options) || !flags.count("--min-items", &options.min_items, 1, SIZE_MAX / 2))
     return flags.usage_error();

@@ -13,20 +13,20 @@
 #include <random>
 #include <string>
 
-#include "solver/features/block_weights.h"
-#include "solver/io/collection.h"
 #include "solver/demo/demo_trial.h"
-#include "solver/features/picture_descriptors.h"
 #include "solver/demo/sample_library.h"
 #include "solver/demo/simulated_people.h"
-#include "viewer/window/engine_feed.h"
-#include "viewer/window/app.h"
+#include "solver/features/block_weights.h"
+#include "solver/features/picture_descriptors.h"
+#include "solver/io/collection.h"
 #include "viewer/cli/commands.h"
-#include "viewer/scene/map_feed.h"
 #include "viewer/cli/flags.h"
 #include "viewer/cli/shared_flags.h"
-#include "viewer/window/offscreen_render.h"
+#include "viewer/scene/map_feed.h"
 #include "viewer/session/session_link.h"
+#include "viewer/window/app.h"
+#include "viewer/window/engine_feed.h"
+#include "viewer/window/offscreen_render.h"
 #include "viewer/window/session_menu.h"
 
 namespace kith {
@@ -50,22 +50,18 @@ const char* const kFooter =
     "exit codes: 0 ok, 1 internal error (e.g. no OpenGL at all), 2 bad usage, 3 the library folder\n"
     "cannot be written or read\n";
 
-std::vector<Flag> demo_flags() {
-  return {{"--answers", "N", "answers in the headless run (default: 100)"},
-          {"--weights", "on|off", "the answers also teach how much each block of picture features\n"
-                                  "(colour, texture, layout) matters, and the map is rebuilt from the\n"
-                                  "reweighted features, so it follows the people also where nobody was\n"
-                                  "asked (default: on)"},
-          {"--out", "DIR", "where the headless run writes its PNGs (default: the library folder)"},
-          {"--library", "DIR", "the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
-                               "~/.cache/kith/demo)"},
-          {"--no-window", "", "the headless run even when there is a display"},
-          {"--size", "WxH", "picture size of the headless run (default: 1280x800)"},
-          // Hidden test hooks, as for kith open.
-          {"--frames", "N", ""},
-          {"--script", "FILE", ""},
-          {"--screenshot", "FILE", ""}};
-}
+const char* const kOptions =
+    "  --answers N           answers in the headless run (default: 100)\n"
+    "  --weights on|off      the answers also teach how much each block of picture features\n"
+    "                        (colour, texture, layout) matters, and the map is rebuilt from the\n"
+    "                        reweighted features, so it follows the people also where nobody was\n"
+    "                        asked (default: on)\n"
+    "  --out DIR             where the headless run writes its PNGs (default: the library folder)\n"
+    "  --library DIR         the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
+    "                        ~/.cache/kith/demo)\n"
+    "  --no-window           the headless run even when there is a display\n"
+    "  --size WxH            picture size of the headless run (default: 1280x800)\n";
+const char* const kHidden = "--frames N, --script FILE, --screenshot FILE";  // test hooks, not in the help
 
 struct DemoData {
   SampleLibrary library;
@@ -298,10 +294,8 @@ int cmd_demo(const Args& args) {
   DemoTrialOptions trial;
   MapParameters settings;  // the demo's blend and seed
   settings.blend = trial.blend;
-  FlagReader flags("demo", kUsage, demo_flags(), kFooter);
-  flags.add(map_flags({"--blend", "--seed"}, settings));
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("demo", kUsage, kOptions + map_flags({"--blend", "--seed"}, settings), kFooter, kHidden);
+  if (!flags.read(args)) return flags.stop();
   int width = 1280, height = 800;
   std::string weights = trial.learn_weights ? "on" : "off";
   WindowOptions hidden;  // undocumented test hooks, as for kith open

@@ -33,16 +33,16 @@ const char* const kUsage =
     "(CSV/TSV) with a column of picture paths, whose ids and tags are kept. Pictures that cannot\n"
     "be read are reported and left out.\n";
 
-const char* const kFooter = "exit codes: 0 written, 2 bad usage, 3 bad input (no readable pictures, unreadable folder)\n";
+const char* const kFooter =
+    "exit codes: 0 written, 2 bad usage, 3 bad input (no readable pictures, unreadable folder)\n";
 
-std::vector<Flag> describe_flags() {
-  return {{"--output", "FILE", "the features CSV to write (required)", "-o"},
-          {"--force", "", "replace FILE if it exists"},
-          {"--background", "RRGGBB", "colour behind transparent pixels (default: ffffff)"},
-          {"--working-size", "N", "longest side, in pixels, pictures are reduced to (default: 96)"},
-          {"--raw", "", "write the unweighted numbers (no block weighting)"},
-          {"--threads", "N", "threads to use, 0 = all (default: 0)"}};
-}
+const char* const kOptions =
+    "  -o, --output FILE     the features CSV to write (required)\n"
+    "  --force               replace FILE if it exists\n"
+    "  --background RRGGBB   colour behind transparent pixels (default: ffffff)\n"
+    "  --working-size N      longest side, in pixels, pictures are reduced to (default: 96)\n"
+    "  --raw                 write the unweighted numbers (no block weighting)\n"
+    "  --threads N           threads to use, 0 = all (default: 0)\n";
 
 bool is_picture_name(const fs::path& p) {
   std::string ext = p.extension().string();
@@ -60,9 +60,8 @@ bool parse_hex_colour(const std::string& s, std::array<double, 3>* out) {
 }  // namespace
 
 int cmd_describe(const Args& args) {
-  FlagReader flags("describe", kUsage, describe_flags(), kFooter);
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("describe", kUsage, kOptions, kFooter);
+  if (!flags.read(args)) return flags.stop();
   DescriptorOptions options;
   int threads = 0;
   if (!flags.integer("--working-size", &options.working_size) || !flags.integer("--threads", &threads, 0))

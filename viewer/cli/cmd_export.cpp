@@ -27,31 +27,31 @@ const char* const kUsage =
 
 const char* const kFooter = "exit codes: 0 written, 2 bad usage, 3 the session cannot be read or has no map yet\n";
 
-std::vector<Flag> export_flags() {
-  return {{"--layout", "FILE", "the map from the session's last checkpoint: id, x, y, z, the tag\n"
-                               "columns, group (clusters found in the map, empty = no group) and\n"
-                               "suspect score (0: the item's neighbours share its tag, 1: none do).\n"
-                               "CSV, or JSON when FILE ends in .json"},
-          {"--judgments", "FILE", "every judgment as CSV: anchor,nearer,farther,person,time,kind,weight by id"},
-          {"--picture", "FILE", "a PNG of the map from the last checkpoint, pins marked"},
-          {"--size", "WxH", "size of --picture in pixels (default: 1280x800)"},
-          {"--flat", "FILE", "a 2-D arrangement (for print or a slide): the same blended objective\n"
-                             "(features, judgments, pins) run in 2-D, started from the 3-D map seen\n"
-                             "along its flattest direction; CSV (or JSON) like --layout without z;\n"
-                             "the map settings below change it"},
-          {"--people", "RULE", "in --judgments: names (default), codes (P1, P2, ... in order of first\n"
-                               "appearance) or leave-out (an empty person column)"},
-          {"--include-retracted", "", "in --judgments: also withdrawn judgments (default: left out)"},
-          {"--tag", "COLUMN", "the tag column for suspect scores (default: the first tag column)"}};
-}
+const char* const kOptions =
+    "  --layout FILE         the map from the session's last checkpoint: id, x, y, z, the tag\n"
+    "                        columns, group (clusters found in the map, empty = no group) and\n"
+    "                        suspect score (0: the item's neighbours share its tag, 1: none do).\n"
+    "                        CSV, or JSON when FILE ends in .json\n"
+    "  --judgments FILE      every judgment as CSV: anchor,nearer,farther,person,time,kind,weight by id\n"
+    "  --picture FILE        a PNG of the map from the last checkpoint, pins marked\n"
+    "  --size WxH            size of --picture in pixels (default: 1280x800)\n"
+    "  --flat FILE           a 2-D arrangement (for print or a slide): the same blended objective\n"
+    "                        (features, judgments, pins) run in 2-D, started from the 3-D map seen\n"
+    "                        along its flattest direction; CSV (or JSON) like --layout without z;\n"
+    "                        the map settings below change it\n"
+    "  --people RULE         in --judgments: names (default), codes (P1, P2, ... in order of first\n"
+    "                        appearance) or leave-out (an empty person column)\n"
+    "  --include-retracted   in --judgments: also withdrawn judgments (default: left out)\n"
+    "  --tag COLUMN          the tag column for suspect scores (default: the first tag column)\n";
 
 }  // namespace
 
 int cmd_export(const Args& args) {
-  FlagReader flags("export", kUsage, export_flags(), kFooter);
-  flags.add(session_map_flags({"--perplexity", "--theta", "--dof", "--blend", "--learning-rate", "--seed"}));
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags(
+      "export", kUsage,
+      kOptions + session_map_flags({"--perplexity", "--theta", "--dof", "--blend", "--learning-rate", "--seed"}),
+      kFooter);
+  if (!flags.read(args)) return flags.stop();
   if (flags.positional().size() != 1)
     return flags.usage_error(flags.positional().empty() ? "which session? give SESSION" : "one SESSION only");
   const std::string path = flags.positional()[0];

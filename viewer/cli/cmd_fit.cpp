@@ -38,23 +38,20 @@ const char* const kFooter =
     "exit codes: 0 written, 1 the optimization diverged (nothing written), 2 bad usage (or the\n"
     "            output cannot be written), 3 bad input data\n";
 
-std::vector<Flag> fit_flags() {
-  return {
-      {"--output", "FILE", "layout to write, .csv or .json (required)", "-o"},
-      {"--force", "", "replace FILE if it exists"},
-      {"--exact", "", "exact neighbours and exact O(N^2) forces (slow above a few thousand)"},
-      {"--standardize", "", "scale every feature column to unit variance first"},
-      {"--threads", "N", "threads, 0 = all (default: 0)"},
-      {"--quiet", "", "no progress line"},
-      {"--judgments", "FILE", "blend people's judgments in (CSV anchor,nearer,farther[,person][,time]\n"
-                              "[,kind][,weight] by id); reports how many the map agrees with"},
-      {"--skip-bad-judgments", "", "use the good rows of a judgments file with bad ones (default: refuse)"},
-      {"--suspects", "", "add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
-                         "neighbours, in the features and the map, tagged otherwise; see README)"},
-      {"--groups", "", "add each item's group in the map (DBSCAN, automatic radius; 0 = none)"},
-      {"--tag", "COLUMN", "the tag column suspects are judged by (default: the first)"},
-  };
-}
+const char* const kOptions =
+    "  -o, --output FILE     layout to write, .csv or .json (required)\n"
+    "  --force               replace FILE if it exists\n"
+    "  --exact               exact neighbours and exact O(N^2) forces (slow above a few thousand)\n"
+    "  --standardize         scale every feature column to unit variance first\n"
+    "  --threads N           threads, 0 = all (default: 0)\n"
+    "  --quiet               no progress line\n"
+    "  --judgments FILE      blend people's judgments in (CSV anchor,nearer,farther[,person][,time]\n"
+    "                        [,kind][,weight] by id); reports how many the map agrees with\n"
+    "  --skip-bad-judgments  use the good rows of a judgments file with bad ones (default: refuse)\n"
+    "  --suspects            add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
+    "                        neighbours, in the features and the map, tagged otherwise; see README)\n"
+    "  --groups              add each item's group in the map (DBSCAN, automatic radius; 0 = none)\n"
+    "  --tag COLUMN          the tag column suspects are judged by (default: the first)\n";
 
 std::string lower_extension(const std::string& path) {
   std::string ext = fs::path(path).extension().string();
@@ -75,11 +72,18 @@ std::string format_seconds(double s) {
 nlohmann::ordered_json fit_header(const Collection& c, const FitResult& r, const FitOptions& o, const MapHealth& h) {
   nlohmann::ordered_json j;
   j["source"] = c.source;
-  j["options"] = {{"perplexity", o.perplexity}, {"iterations", o.iterations}, {"theta", o.theta},
-                  {"dof", o.dof}, {"seed", o.seed}, {"exact", o.exact},
-                  {"learning_rate", r.summary.learning_rate}, {"standardize", o.standardize}};
-  j["health"] = {{"kl", h.kl}, {"trustworthiness", h.trustworthiness},
-                 {"neighbour_recall", h.neighbour_recall}, {"measured_on", h.sample}};
+  j["options"] = {{"perplexity", o.perplexity},
+                  {"iterations", o.iterations},
+                  {"theta", o.theta},
+                  {"dof", o.dof},
+                  {"seed", o.seed},
+                  {"exact", o.exact},
+                  {"learning_rate", r.summary.learning_rate},
+                  {"standardize", o.standardize}};
+  j["health"] = {{"kl", h.kl},
+                 {"trustworthiness", h.trustworthiness},
+                 {"neighbour_recall", h.neighbour_recall},
+                 {"measured_on", h.sample}};
   if (!o.judgments.empty()) {
     j["options"]["blend"] = o.blend;
     j["options"]["judgments"] = o.judgments.size();
@@ -92,11 +96,11 @@ nlohmann::ordered_json fit_header(const Collection& c, const FitResult& r, const
 
 int cmd_fit(const Args& args) {
   FitOptions o;
-  FlagReader flags("fit", kUsage, fit_flags(), kFooter);
-  flags.add(map_flags({"--dims", "--perplexity", "--iterations", "--theta", "--dof", "--seed", "--learning-rate",
-                       "--blend"}));
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("fit", kUsage,
+                   kOptions + map_flags({"--dims", "--perplexity", "--iterations", "--theta", "--dof", "--seed",
+                                         "--learning-rate", "--blend"}),
+                   kFooter);
+  if (!flags.read(args)) return flags.stop();
   if (!read_map_flags(flags, &o) || !flags.integer("--threads", &o.threads, 0)) return flags.usage_error();
   o.exact = flags.has("--exact");
   o.standardize = flags.has("--standardize");
@@ -106,8 +110,8 @@ int cmd_fit(const Args& args) {
   const std::string output = flags.text("--output"), judgments_path = flags.text("--judgments");
   const std::string suspect_tag = flags.text("--tag");
   if (flags.positional().size() > 1)
-    return flags.usage_error("only one ITEMS file, got '" + flags.positional()[0] + "' and '" +
-                             flags.positional()[1] + "'");
+    return flags.usage_error("only one ITEMS file, got '" + flags.positional()[0] + "' and '" + flags.positional()[1] +
+                             "'");
   if (flags.positional().empty() || output.empty()) return flags.usage_error("need ITEMS and -o FILE");
   const std::string input = flags.positional()[0];
   const std::string ext = lower_extension(output);

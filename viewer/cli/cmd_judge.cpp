@@ -4,8 +4,8 @@
 #include <cstdio>
 #include <unordered_map>
 
-#include "solver/session/session_store.h"
 #include "solver/io/judgment_io.h"
+#include "solver/session/session_store.h"
 #include "viewer/cli/commands.h"
 #include "viewer/cli/flags.h"
 #include "viewer/cli/session_cli.h"
@@ -26,32 +26,29 @@ const char* const kFooter =
     "exit codes: 0 done, 2 bad usage, 3 bad input (unknown item, bad row, not a sound session, or a\n"
     "session open in another kith process)\n";
 
-std::vector<Flag> judge_flags() {
-  return {{"--add", "A,N,F", "one judgment by item ids (repeat for more; ids holding a comma need --import)"},
-          {"--import", "J.csv", "judgments from a CSV: anchor,nearer,farther[,person][,time][,kind][,weight];\n"
-                                "every bad row is reported with its line and cause, and a file with any\n"
-                                "bad row adds none unless --skip-bad-rows"},
-          {"--skip-bad-rows", "", "with --import: add the good rows anyway"},
-          {"--person", "NAME", "who made them: any name or a pseudonym (default: nobody named; with\n"
-                               "--import, only rows without a person get it)"},
-          {"--weight", "W", "weight of --add judgments, > 0 (default: 1)"},
-          {"--retract", "ID", "withdraw judgment ID"},
-          {"--restore", "ID", "bring a withdrawn judgment back"}};
-}
+const char* const kOptions =
+    "  --add A,N,F           one judgment by item ids (repeat for more; ids holding a comma need --import)\n"
+    "  --import J.csv        judgments from a CSV: anchor,nearer,farther[,person][,time][,kind][,weight];\n"
+    "                        every bad row is reported with its line and cause, and a file with any\n"
+    "                        bad row adds none unless --skip-bad-rows\n"
+    "  --skip-bad-rows       with --import: add the good rows anyway\n"
+    "  --person NAME         who made them: any name or a pseudonym (default: nobody named; with\n"
+    "                        --import, only rows without a person get it)\n"
+    "  --weight W            weight of --add judgments, > 0 (default: 1)\n"
+    "  --retract ID          withdraw judgment ID\n"
+    "  --restore ID          bring a withdrawn judgment back\n";
 
 }  // namespace
 
 int cmd_judge(const Args& args) {
-  FlagReader flags("judge", kUsage, judge_flags(), kFooter);
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("judge", kUsage, kOptions, kFooter);
+  if (!flags.read(args)) return flags.stop();
   if (flags.positional().size() != 1)
     return flags.usage_error(flags.positional().empty() ? "which session? give SESSION" : "one SESSION only");
-  const int actions = int(flags.has("--add")) + int(flags.has("--import")) + int(flags.has("--retract")) +
-                      int(flags.has("--restore"));
+  const int actions =
+      int(flags.has("--add")) + int(flags.has("--import")) + int(flags.has("--retract")) + int(flags.has("--restore"));
   if (actions == 0) return flags.usage_error("nothing to do: give --add, --import, --retract or --restore");
-  if (actions > 1)
-    return flags.usage_error("one of --add, --import, --retract, --restore at a time");
+  if (actions > 1) return flags.usage_error("one of --add, --import, --retract, --restore at a time");
   double weight = 1.0;
   int64_t judgment_id = 0;
   if (!flags.number("--weight", &weight, 0.0) || !flags.integer("--retract", &judgment_id) ||

@@ -29,23 +29,23 @@ const char* const kUsage =
 
 const char* const kFooter = "exit codes: 0 created, 2 bad usage or the file exists, 3 a problem in ITEMS or J.csv\n";
 
-std::vector<Flag> new_flags() {
-  return {{"--output", "FILE", "the session file to create (required)", "-o"},
-          {"--judgments", "J.csv", "judgments to start with: anchor,nearer,farther[,person][,time][,kind][,weight]\n"
-                                   "by item id; every bad row is reported with its line, and a file with\n"
-                                   "bad rows adds none (and no session is made) unless --skip-bad-rows"},
-          {"--skip-bad-rows", "", "add the good rows of a judgments file that has bad ones"},
-          {"--force", "", "replace an existing file (never one open in another kith process);\n"
-                          "without it an existing file is left alone"}};
-}
+const char* const kOptions =
+    "  -o, --output FILE     the session file to create (required)\n"
+    "  --judgments J.csv     judgments to start with: anchor,nearer,farther[,person][,time][,kind][,weight]\n"
+    "                        by item id; every bad row is reported with its line, and a file with\n"
+    "                        bad rows adds none (and no session is made) unless --skip-bad-rows\n"
+    "  --skip-bad-rows       add the good rows of a judgments file that has bad ones\n"
+    "  --force               replace an existing file (never one open in another kith process);\n"
+    "                        without it an existing file is left alone\n";
 
 }  // namespace
 
 int cmd_new(const Args& args) {
-  FlagReader flags("new", kUsage, new_flags(), kFooter);
-  flags.add(load_flags()).add(map_flags({"--dims", "--perplexity", "--blend", "--theta", "--dof", "--seed"}));
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags(
+      "new", kUsage,
+      kOptions + load_flags() + map_flags({"--dims", "--perplexity", "--blend", "--theta", "--dof", "--seed"}),
+      kFooter);
+  if (!flags.read(args)) return flags.stop();
   SessionSettings settings;
   LoadOptions load;
   if (!read_map_flags(flags, &settings) || !read_load_flags(flags, &load)) return flags.usage_error();

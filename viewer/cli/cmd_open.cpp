@@ -2,14 +2,14 @@
 #include <cstdio>
 #include <filesystem>
 
-#include "viewer/window/engine_feed.h"
-#include "viewer/window/app.h"
 #include "viewer/cli/commands.h"
 #include "viewer/cli/flags.h"
 #include "viewer/cli/map_source.h"
 #include "viewer/cli/shared_flags.h"
-#include "viewer/window/offscreen_render.h"
 #include "viewer/session/session_link.h"
+#include "viewer/window/app.h"
+#include "viewer/window/engine_feed.h"
+#include "viewer/window/offscreen_render.h"
 #include "viewer/window/session_menu.h"
 
 namespace kith {
@@ -26,24 +26,20 @@ const char* const kFooter =
     "judgment or pin starts a session file next to it (ITEMS.kith, or ITEMS-2.kith and so on;\n"
     "an existing file is never touched). The Session menu saves as, exports and opens others.\n";
 
-std::vector<Flag> open_flags() {
-  return {{"--size", "WxH", "window size (default: 1280x800)"},
-          {"--paused", "", "start with the optimization paused"},
-          {"--colour", "COLUMN", "colour by this tag column, or 'plain' (default: the first)", "--color"},
-          {"--dark", "", "the night ground instead of paper"},
-          {"--turn", "", "start with the slow turn on (for a shared screen)"},
-          {"--no-panels", "", "start with the panels hidden (Tab shows them)"},
-          {"--people", "A,B,C", "list these people for asking, in turn order (A in the window asks;\n"
-                                "default for a session: the people who answered in it before)"},
-          {"--read-only", "", "with a session: look without writing (e.g. while another kith has it open)"},
-          // Hidden options for tests and benchmarks.
-          {"--generate", "N", ""},
-          {"--frames", "N", ""},
-          {"--script", "FILE", ""},
-          {"--screenshot", "FILE", ""},
-          {"--fps-report", "FILE", ""},
-          {"--no-vsync", "", ""}};
-}
+const char* const kOptions =
+    "  --size WxH            window size (default: 1280x800)\n"
+    "  --paused              start with the optimization paused\n"
+    "  --colour, --color COLUMN\n"
+    "                        colour by this tag column, or 'plain' (default: the first)\n"
+    "  --dark                the night ground instead of paper\n"
+    "  --turn                start with the slow turn on (for a shared screen)\n"
+    "  --no-panels           start with the panels hidden (Tab shows them)\n"
+    "  --people A,B,C        list these people for asking, in turn order (A in the window asks;\n"
+    "                        default for a session: the people who answered in it before)\n"
+    "  --read-only           with a session: look without writing (e.g. while another kith has it open)\n";
+const char* const kHidden =
+    "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync";  // test hooks, not in
+                                                                                                  // the help
 
 }  // namespace
 
@@ -96,10 +92,9 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
 }
 
 int cmd_open(const Args& args) {
-  FlagReader flags("open", kUsage, open_flags(), kFooter);
-  flags.add(map_flags({"--perplexity", "--theta", "--blend", "--seed"}));
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("open", kUsage, kOptions + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), kFooter,
+                   kHidden);
+  if (!flags.read(args)) return flags.stop();
   WindowOptions wo;
   EngineOptions eo;
   size_t generate = 0;

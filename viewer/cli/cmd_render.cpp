@@ -4,11 +4,11 @@
 #include <cstdio>
 #include <thread>
 
-#include "viewer/window/engine_feed.h"
 #include "viewer/cli/commands.h"
 #include "viewer/cli/flags.h"
 #include "viewer/cli/map_source.h"
 #include "viewer/cli/shared_flags.h"
+#include "viewer/window/engine_feed.h"
 #include "viewer/window/offscreen_render.h"
 
 namespace kith {
@@ -19,28 +19,27 @@ const char* const kUsage =
     "Draws the map of a collection to a PNG without any display or window (EGL, no X needed).\n"
     "The map is computed first (the live engine, for --iterations steps).\n";
 
-std::vector<Flag> render_flags() {
-  return {{"--output", "FILE", "the PNG to write (required)", "-o"},
-          {"--size", "WxH", "picture size in pixels (default: 1280x800)"},
-          {"--camera", "Y,P,D[,X,Y,Z]", "yaw and pitch in radians, distance, optional target point\n"
-                                        "(default: the whole map from a three-quarter view; without X,Y,Z\n"
-                                        "the camera looks at the map's centre)"},
-          {"--colour", "COLUMN", "colour by this tag column, or 'plain' (default: the first tag column)", "--color"},
-          {"--iterations", "N", "optimization steps before drawing, 0 = the start (default: 1000)"},
-          {"--select", "ID,ID,...", "draw these items selected, with their picture cards"},
-          {"--dark", "", "the night ground instead of paper"},
-          {"--no-grid", "", "no floor grid"},
-          {"--no-legend", "", "no title and colour legend"},
-          {"--no-cards", "", "no picture cards for the selected items"},
-          {"--generate", "N", ""}};  // hidden: a generated collection, for tests and benchmarks
-}
+const char* const kOptions =
+    "  -o, --output FILE     the PNG to write (required)\n"
+    "  --size WxH            picture size in pixels (default: 1280x800)\n"
+    "  --camera Y,P,D[,X,Y,Z]\n"
+    "                        yaw and pitch in radians, distance, optional target point\n"
+    "                        (default: the whole map from a three-quarter view; without X,Y,Z\n"
+    "                        the camera looks at the map's centre)\n"
+    "  --colour, --color COLUMN\n"
+    "                        colour by this tag column, or 'plain' (default: the first tag column)\n"
+    "  --iterations N        optimization steps before drawing, 0 = the start (default: 1000)\n"
+    "  --select ID,ID,...    draw these items selected, with their picture cards\n"
+    "  --dark                the night ground instead of paper\n"
+    "  --no-grid             no floor grid\n"
+    "  --no-legend           no title and colour legend\n"
+    "  --no-cards            no picture cards for the selected items\n";
 }  // namespace
 
 int cmd_render(const Args& args) {
-  FlagReader flags("render", kUsage, render_flags());
-  flags.add(map_flags({"--perplexity", "--theta", "--blend", "--seed"}));
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("render", kUsage, kOptions + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
+                   "--generate N");  // a generated collection, for tests
+  if (!flags.read(args)) return flags.stop();
   RenderOptions ro;
   EngineOptions eo;
   int64_t iterations = 1000;

@@ -1,24 +1,24 @@
 // kith report ITEMS|SESSION -o report.html: a self-contained HTML page (viewer/cli/report_page.h)
 // with the health figures, the suspect list, the groups table, the neighbourhoods the map keeps
 // worst and pictures of the map. For ITEMS it fits a map itself (solver/fit/fit.h). Main thread only.
-#include <cmath>
 #include <algorithm>
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
 #include <optional>
 #include <string>
 
-#include "solver/io/collection.h"
-#include "solver/measures/displacement.h"
 #include "solver/features/feature_prep.h"
 #include "solver/fit/fit.h"
+#include "solver/io/collection.h"
+#include "solver/io/safe_file.h"
+#include "solver/measures/displacement.h"
 #include "solver/measures/health.h"
 #include "solver/measures/judgment_health.h"
-#include "solver/objective/judgment_term.h"
 #include "solver/measures/map_findings.h"
+#include "solver/objective/judgment_term.h"
 #include "solver/objective/neighbour_term.h"
 #include "solver/session/session_store.h"
-#include "solver/io/safe_file.h"
 #include "viewer/cli/commands.h"
 #include "viewer/cli/flags.h"
 #include "viewer/cli/report_page.h"
@@ -42,15 +42,15 @@ const char* const kUsage =
 
 const char* const kFooter = "exit codes: 0 written, 2 bad usage, 3 a problem in the data, 1 internal error\n";
 
-std::vector<Flag> report_flags() {
-  return {{"--output", "FILE", "the HTML file to write (required; never the input)", "-o"},
-          {"--tag", "COLUMN", "the tag column for suspects and group purity (default: the first)"},
-          {"--space", "features|map|both", "where suspects' neighbours come from (default: both)"},
-          {"--k", "N", "neighbours looked at per suspect (default: 10)"},
-          {"--eps", "R", "DBSCAN radius in map units (default: automatic, from the k-distance knee)"},
-          {"--min-points", "N", "DBSCAN's minPts (default: max(10, 2 x dims))"},
-          {"--rows", "N", "rows in the lists (default: 25)"}};
-}
+const char* const kOptions =
+    "  -o, --output FILE     the HTML file to write (required; never the input)\n"
+    "  --tag COLUMN          the tag column for suspects and group purity (default: the first)\n"
+    "  --space features|map|both\n"
+    "                        where suspects' neighbours come from (default: both)\n"
+    "  --k N                 neighbours looked at per suspect (default: 10)\n"
+    "  --eps R               DBSCAN radius in map units (default: automatic, from the k-distance knee)\n"
+    "  --min-points N        DBSCAN's minPts (default: max(10, 2 x dims))\n"
+    "  --rows N              rows in the lists (default: 25)\n";
 
 std::string fixed(double v, int digits) {
   char buf[64];
@@ -61,10 +61,9 @@ std::string fixed(double v, int digits) {
 }  // namespace
 
 int cmd_report(const Args& args) {
-  FlagReader flags("report", kUsage, report_flags(), kFooter);
-  flags.add(map_flags({"--dims", "--perplexity", "--iterations", "--seed"}));
-  if (!flags.read(args)) return flags.usage_error();
-  if (flags.help()) return flags.print_help();
+  FlagReader flags("report", kUsage, kOptions + map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
+                   kFooter);
+  if (!flags.read(args)) return flags.stop();
   FitOptions fit;
   FindingsOptions find;
   size_t rows = 25;
@@ -140,8 +139,8 @@ int cmd_report(const Args& args) {
   if (!tag_column.empty() && !tags) {
     std::string names;
     for (const TagColumn& t : items.tags) names += (names.empty() ? "" : ", ") + t.name;
-    return flags.usage_error("no tag column '" + tag_column + "' in " + input + " (tag columns: " +
-                       (names.empty() ? "none" : names) + ")");
+    return flags.usage_error("no tag column '" + tag_column + "' in " + input +
+                             " (tag columns: " + (names.empty() ? "none" : names) + ")");
   }
   std::string error;
   if (!fit.IsValid(&error, items.size())) return flags.usage_error(error);

@@ -1,6 +1,8 @@
 // See flags.h.
 #include "viewer/cli/flags.h"
 
+#include <algorithm>
+#include <cassert>
 #include <cerrno>
 #include <cmath>
 #include <cstdio>
@@ -8,12 +10,6 @@
 
 namespace kith {
 namespace {
-
-std::string shown(double v) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.10g", v);
-  return buf;
-}
 
 // The whole text as one finite number.
 bool parse_real(const std::string& text, double* out) {
@@ -54,19 +50,80 @@ std::string range_words(int64_t lo, int64_t hi) {
 
 }  // namespace
 
-FlagReader::FlagReader(std::string command, std::string usage, std::vector<Flag> flags, std::string footer)
-    : command_(std::move(command)), usage_(std::move(usage)), footer_(std::move(footer)), flags_(std::move(flags)) {}
+constexpr size_t kHelpColumn = 24;  // where an option line's help starts
 
-FlagReader& FlagReader::add(const std::vector<Flag>& more) {
-  flags_.insert(flags_.end(), more.begin(), more.end());
+std::string number_text(double v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%g", v);
+  return buf;
+}
+
+std::string option_line(const std::string& left, const std::string& help) {
+  const std::string indent(kHelpColumn, ' ');
+  std::string line = "  " + left;
+  line += line.size() < kHelpColumn ? std::string(kHelpColumn - line.size(), ' ') : "\n" + indent;
+  for (char c : help) line += c == '\n' ? "\n" + indent : std::string(1, c);
+  return line + "\n";
+}
+
+FlagReader::FlagReader(std::string command, std::string usage, const std::string& options, std::string footer,
+                       const std::string& hidden)
+    : command_(std::move(command)), usage_(std::move(usage)), footer_(std::move(footer)) {
+  add(options);
+  for (size_t start = 0; start < hidden.size();) {
+    const size_t comma = std::min(hidden.find(',', start), hidden.size());
+    const size_t first = hidden.find_first_not_of(' ', start);
+    if (first < comma) declare(hidden.substr(first, comma - first));
+    start = comma + 1;
+  }
+}
+
+FlagReader& FlagReader::add(const std::string& options) {
+  options_ += options;
+  for (size_t start = 0; start < options.size();) {
+    const size_t end = std::min(options.find('\n', start), options.size());
+    const std::string line = options.substr(start, end - start);
+    start = end + 1;
+    if (line.rfind("  -", 0) != 0) {
+      assert((line.empty() || line.rfind("      ", 0) == 0) &&
+             "an option line starts with '  -', a continuation deeper");
+      continue;
+    }
+    const size_t gap = line.find("  ", 2);  // the declaration ends where the help begins
+    declare(line.substr(2, gap == std::string::npos ? std::string::npos : gap - 2));
+  }
   return *this;
 }
 
+// "-o, --output FILE", "--colour, --color COLUMN", "--force": spellings, then the value's placeholder.
+void FlagReader::declare(const std::string& spec) {
+  Flag flag;
+  for (size_t at = 0; at < spec.size();) {
+    const size_t end = std::min(spec.find(' ', at), spec.size());
+    std::string word = spec.substr(at, end - at);
+    at = end + 1;
+    if (word.empty()) continue;
+    if (word.back() == ',') word.pop_back();
+    if (word[0] != '-') {
+      flag.value = word;
+      break;
+    }
+    if (flag.name.empty())
+      flag.name = word;
+    else
+      flag.aliases.push_back(word);
+  }
+  // "-o, --output": the long spelling is the name, the short one an alias.
+  for (auto& alias : flag.aliases)
+    if (flag.name.size() == 2 && alias.size() > 2) std::swap(flag.name, alias);
+  assert(!flag.name.empty() && !declared(flag.name) && "an option declared twice");
+  flags_.push_back(std::move(flag));
+}
+
 const Flag* FlagReader::find(const std::string& spelling) const {
-  const std::string name = spelling == "-o" && !declared("-o") ? "--output" : spelling;
   for (const Flag& f : flags_)
-    if (f.name == name || (!f.alias.empty() && f.alias == name)) return &f;
-  return nullptr;
+    if (f.name == spelling || std::find(f.aliases.begin(), f.aliases.end(), spelling) != f.aliases.end()) return &f;
+  return spelling == "-o" ? find("--output") : nullptr;
 }
 
 bool FlagReader::declared(const std::string& name) const {
@@ -77,9 +134,11 @@ bool FlagReader::declared(const std::string& name) const {
 
 bool FlagReader::read(const Args& args) {
   for (const std::string& a : args)
-    if (a == "--") break;
-    else if (a == "--help" || a == "-h") help_ = true;
-  if (help_) return true;
+    if (a == "--")
+      break;
+    else if (a == "--help" || a == "-h")
+      help_ = true;
+  if (help_) return false;
   bool options_end = false;
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string& a = args[i];
@@ -112,22 +171,8 @@ bool FlagReader::read(const Args& args) {
 int FlagReader::print_help() const {
   std::string out = usage_;
   if (!out.empty() && out.back() != '\n') out += '\n';
-  bool any = false;
-  for (const Flag& f : flags_) {
-    if (f.help.empty()) continue;
-    if (!any) out += "\noptions:\n";
-    any = true;
-    std::string left = "  ";
-    if (f.alias.size() == 2) left += f.alias + ", ";  // a short spelling goes first: "-o, --output FILE"
-    left += f.name + (f.value.empty() ? "" : " " + f.value);
-    constexpr size_t kColumn = 24;
-    const std::string indent(kColumn, ' ');
-    out += left.size() < kColumn ? left + std::string(kColumn - left.size(), ' ') : left + "\n" + indent;
-    for (char c : f.help) out += c == '\n' ? "\n" + indent : std::string(1, c);
-    out += '\n';
-  }
+  if (!options_.empty()) out += "\noptions:\n" + options_;
   if (!footer_.empty()) out += "\n" + footer_;
-  if (!out.empty() && out.back() != '\n') out += '\n';
   std::fputs(out.c_str(), stdout);
   return kExitOk;
 }
@@ -160,56 +205,58 @@ int FlagReader::usage_error(const std::string& message) const {
   return kExitUsage;
 }
 
-bool FlagReader::number(const std::string& name, double* out, double lo, double hi) {
+// The typed getters' one shape: an option not given is fine; PARSE decides a given value.
+bool FlagReader::typed(const std::string& name, const std::function<bool(const std::string&)>& parse,
+                       const std::string& expects) {
   const std::string* v = last(name);
-  if (!v) return true;
-  double x = 0;
-  if (parse_real(*v, &x) && x >= lo && x <= hi) {
-    *out = x;
-    return true;
-  }
+  return !v || parse(*v) || fail(name + " expects " + expects + ", got '" + *v + "'");
+}
+
+bool FlagReader::number(const std::string& name, double* out, double lo, double hi) {
   std::string range;
-  if (std::isfinite(lo) && std::isfinite(hi)) range = " from " + shown(lo) + " to " + shown(hi);
-  else if (std::isfinite(lo)) range = " >= " + shown(lo);
-  else if (std::isfinite(hi)) range = " <= " + shown(hi);
-  return fail(name + " expects a number" + range + ", got '" + *v + "'");
+  if (std::isfinite(lo) && std::isfinite(hi))
+    range = " from " + number_text(lo) + " to " + number_text(hi);
+  else if (std::isfinite(lo))
+    range = " >= " + number_text(lo);
+  else if (std::isfinite(hi))
+    range = " <= " + number_text(hi);
+  return typed(
+      name,
+      [&](const std::string& v) {
+        double x = 0;
+        return parse_real(v, &x) && x >= lo && x <= hi && (*out = x, true);
+      },
+      "a number" + range);
 }
 
 bool FlagReader::integer(const std::string& name, int64_t* out, int64_t lo, int64_t hi) {
-  const std::string* v = last(name);
-  if (!v) return true;
-  int64_t x = 0;
-  if (parse_whole(*v, &x) && x >= lo && x <= hi) {
-    *out = x;
-    return true;
-  }
-  return fail(name + " expects a whole number" + range_words(lo, hi) + ", got '" + *v + "'");
+  return typed(
+      name,
+      [&](const std::string& v) {
+        int64_t x = 0;
+        return parse_whole(v, &x) && x >= lo && x <= hi && (*out = x, true);
+      },
+      "a whole number" + range_words(lo, hi));
 }
 
 bool FlagReader::integer(const std::string& name, int* out, int lo, int hi) {
   int64_t x = *out;
-  if (!integer(name, &x, int64_t(lo), int64_t(hi))) return false;
-  *out = int(x);
-  return true;
+  return integer(name, &x, int64_t(lo), int64_t(hi)) && (*out = int(x), true);
 }
 
 bool FlagReader::count(const std::string& name, size_t* out, size_t lo, size_t hi) {
   int64_t x = int64_t(*out);
-  if (!integer(name, &x, int64_t(lo), int64_t(hi))) return false;
-  *out = size_t(x);
-  return true;
+  return integer(name, &x, int64_t(lo), int64_t(hi)) && (*out = size_t(x), true);
 }
 
 bool FlagReader::seed(const std::string& name, uint64_t* out) {
-  const std::string* v = last(name);
-  if (!v) return true;
-  int64_t x = 0;
-  if (parse_whole(*v, &x) && x >= 0) {
-    *out = uint64_t(x);
-    return true;
-  }
-  return fail(name + " expects a whole number from 0 to " + std::to_string(std::numeric_limits<int64_t>::max()) +
-              ", got '" + *v + "'");
+  return typed(
+      name,
+      [&](const std::string& v) {
+        int64_t x = 0;
+        return parse_whole(v, &x) && x >= 0 && (*out = uint64_t(x), true);
+      },
+      "a whole number from 0 to " + std::to_string(std::numeric_limits<int64_t>::max()));
 }
 
 bool FlagReader::list(const std::string& name, std::vector<std::string>* out) {
@@ -227,31 +274,29 @@ bool FlagReader::list(const std::string& name, std::vector<std::string>* out) {
 }
 
 bool FlagReader::size(const std::string& name, int* width, int* height) {
-  const std::string* v = last(name);
-  if (!v) return true;
-  const size_t x = v->find_first_of("xX");
-  int64_t w = 0, h = 0;
-  if (x != std::string::npos && parse_whole(v->substr(0, x), &w) && parse_whole(v->substr(x + 1), &h) && w > 0 &&
-      h > 0 && w <= 1 << 20 && h <= 1 << 20) {
-    *width = int(w);
-    *height = int(h);
-    return true;
-  }
-  return fail(name + " expects WxH in pixels, e.g. 1280x800, got '" + *v + "'");
+  return typed(
+      name,
+      [&](const std::string& v) {
+        const size_t x = v.find_first_of("xX");
+        int64_t w = 0, h = 0;
+        const bool ok = x != std::string::npos && parse_whole(v.substr(0, x), &w) && parse_whole(v.substr(x + 1), &h) &&
+                        w > 0 && h > 0 && w <= 1 << 20 && h <= 1 << 20;
+        return ok && (*width = int(w), *height = int(h), true);
+      },
+      "WxH in pixels, e.g. 1280x800");
 }
 
 bool FlagReader::choice(const std::string& name, std::string* out, const std::vector<std::string>& allowed) {
-  const std::string* v = last(name);
-  if (!v) return true;
-  for (const std::string& a : allowed)
-    if (*v == a) {
-      *out = a;
-      return true;
-    }
   std::string words;
   for (size_t i = 0; i < allowed.size(); ++i)
     words += (i == 0 ? "" : i + 1 == allowed.size() ? " or " : ", ") + allowed[i];
-  return fail(name + " expects " + words + ", got '" + *v + "'");
+  return typed(
+      name,
+      [&](const std::string& v) {
+        const bool ok = std::find(allowed.begin(), allowed.end(), v) != allowed.end();
+        return ok && (*out = v, true);
+      },
+      words);
 }
 
 }  // namespace kith

@@ -1,7 +1,6 @@
 // The HTML report page (see report_page.h).
 // [SECTION] text helpers  [SECTION] pictures  [SECTION] page
 #include "viewer/cli/report_page.h"
-#include "viewer/scene/palette.h"
 
 #include <algorithm>
 #include <array>
@@ -11,6 +10,7 @@
 #include <sstream>
 
 #include "solver/io/png_file.h"
+#include "viewer/scene/palette.h"
 
 namespace kith {
 
@@ -20,10 +20,16 @@ std::string html_escape(const std::string& text) {
   std::string out;
   out.reserve(text.size());
   for (char c : text) {
-    const char* entity = c == '&' ? "&amp;" : c == '<' ? "&lt;" : c == '>' ? "&gt;" : c == '"' ? "&quot;"
-                       : c == '\'' ? "&#39;" : nullptr;
-    if (entity) out += entity;
-    else out += c;
+    const char* entity = c == '&'    ? "&amp;"
+                         : c == '<'  ? "&lt;"
+                         : c == '>'  ? "&gt;"
+                         : c == '"'  ? "&quot;"
+                         : c == '\'' ? "&#39;"
+                                     : nullptr;
+    if (entity)
+      out += entity;
+    else
+      out += c;
   }
   return out;
 }

@@ -7,51 +7,49 @@
 namespace kith {
 namespace {
 
-std::string shown(double v) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%g", v);
-  return buf;
-}
-
-// The help line of one map setting, ending in its default: `fixed` when given, else the value in `d`.
-Flag map_flag(const std::string& name, const MapParameters& d, const std::string& fixed) {
+// The option line of one map setting, ending in its default: `fixed` when given, else the value in `d`.
+std::string map_flag(const std::string& name, const MapParameters& d, const std::string& fixed) {
   auto is = [&](const std::string& value) { return " (default: " + (fixed.empty() ? value : fixed) + ")"; };
-  if (name == "--dims") return {name, "2|3", "map dimensions" + is(std::to_string(d.dims))};
+  if (name == "--dims") return option_line("--dims 2|3", "map dimensions" + is(std::to_string(d.dims)));
   if (name == "--perplexity")
-    return {name, "P",
-            "about how many neighbours each item listens to, above 0 and below the\nnumber of items" +
-                is(shown(d.perplexity) +
-                   (d.perplexity == MapParameters::kDefaultPerplexity ? ", or (N - 1) / 3 on a small collection" : ""))};
-  if (name == "--theta") return {name, "T", "Barnes-Hut angle, 0 (exact) .. 1.5" + is(shown(d.theta))};
-  if (name == "--dof") return {name, "D", "Student-t degrees of freedom of the map, 0.05 .. 100" + is(shown(d.dof))};
-  if (name == "--blend") return {name, "B", "weight of judgments against features, 0 .. 1000" + is(shown(d.blend))};
+    return option_line(
+        "--perplexity P",
+        "about how many neighbours each item listens to, above 0 and below the\n"
+        "number of items" +
+            is(number_text(d.perplexity) +
+               (d.perplexity == MapParameters::kDefaultPerplexity ? ", or (N - 1) / 3 on a small collection" : "")));
+  if (name == "--theta")
+    return option_line("--theta T", "Barnes-Hut angle, 0 (exact) .. 1.5" + is(number_text(d.theta)));
+  if (name == "--dof")
+    return option_line("--dof D", "Student-t degrees of freedom of the map, 0.05 .. 100" + is(number_text(d.dof)));
+  if (name == "--blend")
+    return option_line("--blend B", "weight of judgments against features, 0 .. 1000" + is(number_text(d.blend)));
   if (name == "--learning-rate")
-    return {name, "R",
-            "step size; 0 = auto, max(N / 48, 50)" + is(d.learning_rate > 0 ? shown(d.learning_rate) : "auto")};
-  if (name == "--seed") return {name, "S", "random seed: neighbour graph, start, questions" + is(std::to_string(d.seed))};
+    return option_line("--learning-rate R", "step size; 0 = auto, max(N / 48, 50)" +
+                                                is(d.learning_rate > 0 ? number_text(d.learning_rate) : "auto"));
+  if (name == "--seed")
+    return option_line("--seed S", "random seed: neighbour graph, start, questions" + is(std::to_string(d.seed)));
   if (name == "--iterations")
-    return {name, "N", "gradient steps, the first 250 with early exaggeration" + is(std::to_string(d.iterations))};
-  return {};
+    return option_line("--iterations N",
+                       "gradient steps, the first 250 with early exaggeration" + is(std::to_string(d.iterations)));
+  assert(false && "not a map setting");
+  return "";
 }
 
-std::vector<Flag> flags_for(const std::vector<std::string>& names, const MapParameters& defaults,
-                            const std::string& fixed) {
-  std::vector<Flag> out;
-  for (const std::string& name : names) {
-    out.push_back(map_flag(name, defaults, fixed));
-    assert(!out.back().name.empty() && "not a map setting");
-  }
+std::string lines_for(const std::vector<std::string>& names, const MapParameters& defaults, const std::string& fixed) {
+  std::string out;
+  for (const std::string& name : names) out += map_flag(name, defaults, fixed);
   return out;
 }
 
 }  // namespace
 
-std::vector<Flag> map_flags(const std::vector<std::string>& names, const MapParameters& defaults) {
-  return flags_for(names, defaults, "");
+std::string map_flags(const std::vector<std::string>& names, const MapParameters& defaults) {
+  return lines_for(names, defaults, "");
 }
 
-std::vector<Flag> session_map_flags(const std::vector<std::string>& names) {
-  return flags_for(names, MapParameters{}, "the session's");
+std::string session_map_flags(const std::vector<std::string>& names) {
+  return lines_for(names, MapParameters{}, "the session's");
 }
 
 bool read_map_flags(FlagReader& f, MapParameters* s) {
@@ -62,11 +60,13 @@ bool read_map_flags(FlagReader& f, MapParameters* s) {
          (!f.declared("--seed") || f.seed("--seed", &s->seed)) && whole("--iterations", &s->iterations);
 }
 
-std::vector<Flag> load_flags() {
-  return {{"--id", "COLUMN", "the column holding item ids (default: 'id', else the first column of\nunique text, else items are numbered)"},
-          {"--exclude", "A,B,...", "numeric columns that are not features (they become tags)"},
-          {"--pictures", "COLUMN", "the column of picture paths, relative to the table's folder (default:\nthe text column whose values end in .png, .jpg, ...)"},
-          {"--tags", "TAGS.csv", "for a .npy file: a CSV with one row per array row holding ids and tags"}};
+std::string load_flags() {
+  return "  --id COLUMN           the column holding item ids (default: 'id', else the first column of\n"
+         "                        unique text, else items are numbered)\n"
+         "  --exclude A,B,...     numeric columns that are not features (they become tags)\n"
+         "  --pictures COLUMN     the column of picture paths, relative to the table's folder (default:\n"
+         "                        the text column whose values end in .png, .jpg, ...)\n"
+         "  --tags TAGS.csv       for a .npy file: a CSV with one row per array row holding ids and tags\n";
 }
 
 bool read_load_flags(FlagReader& f, LoadOptions* o) {

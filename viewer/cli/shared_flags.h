@@ -14,11 +14,11 @@
 
 namespace kith {
 
-// The declarations of the named map settings ("--perplexity", ...), their help lines showing
-// the defaults in `defaults`.
-std::vector<Flag> map_flags(const std::vector<std::string>& names, const MapParameters& defaults = {});
+// The option lines (flags.h) of the named map settings ("--perplexity", ...), showing the
+// defaults in `defaults`.
+std::string map_flags(const std::vector<std::string>& names, const MapParameters& defaults = {});
 // The same for a command that starts from a session's settings: "(default: the session's)".
-std::vector<Flag> session_map_flags(const std::vector<std::string>& names);
+std::string session_map_flags(const std::vector<std::string>& names);
 
 // Reads every map setting the reader declares into *settings (those not given keep their value).
 // False when a value is not a number of the right kind (the reader holds the message); the ranges
@@ -26,7 +26,7 @@ std::vector<Flag> session_map_flags(const std::vector<std::string>& names);
 bool read_map_flags(FlagReader& flags, MapParameters* settings);
 
 // --id, --exclude, --pictures, --tags (as `kith check` describes them).
-std::vector<Flag> load_flags();
+std::string load_flags();
 bool read_load_flags(FlagReader& flags, LoadOptions* options);
 
 }  // namespace kith

@@ -1,9 +1,9 @@
 #include "viewer/window/offscreen_render.h"
 
+#include <backends/imgui_impl_opengl3.h>
 #include <epoxy/egl.h>
 #include <epoxy/gl.h>
 #include <imgui.h>
-#include <backends/imgui_impl_opengl3.h>
 
 #include <filesystem>
 #include <memory>
@@ -11,8 +11,8 @@
 
 #include "solver/io/png_file.h"
 #include "viewer/gl/gl_renderer.h"
-#include "viewer/scene/map_feed.h"
 #include "viewer/panels/ui_style.h"
+#include "viewer/scene/map_feed.h"
 
 namespace kith {
 

@@ -12,8 +12,8 @@
 #include "solver/io/collection.h"
 #include "solver/io/safe_file.h"
 #include "solver/measures/judgment_health.h"
-#include "viewer/window/offscreen_render.h"
 #include "viewer/session/session_export.h"
+#include "viewer/window/offscreen_render.h"
 
 extern char** environ;
 
