@@ -1,8 +1,6 @@
 // The demo's sample library: see sample_library.h.
 #include "solver/demo/sample_library.h"
 
-#include <stb_image_write.h>
-
 #include <algorithm>
 #include <cmath>
 #include <cstdlib>
@@ -12,7 +10,8 @@
 #include <stdexcept>
 
 #include "solver/base/portable_math.h"
-
+#include "solver/io/png_file.h"
+#include "solver/io/safe_file.h"
 
 namespace kith {
 namespace {
@@ -148,15 +147,8 @@ std::string read_file(const fs::path& p) {
 }
 
 void write_text(const fs::path& p, const std::string& text) {
-  const fs::path tmp = p.string() + ".part";
-  {
-    std::ofstream out(tmp, std::ios::binary);
-    out << text;
-    if (!out.flush()) throw std::runtime_error(tmp.string() + ": cannot write");
-  }
-  std::error_code ec;
-  fs::rename(tmp, p, ec);
-  if (ec) throw std::runtime_error(p.string() + ": cannot write (" + ec.message() + ")");
+  if (const std::string problem = write_file_safely(p.string(), text); !problem.empty())
+    throw std::runtime_error(problem);
 }
 
 }  // namespace
@@ -293,9 +285,10 @@ SampleLibrary ensure_sample_library(const SampleLibraryOptions& options_in) {
   for (const auto& s : lib.swatches) {
     const fs::path png = pictures / (s.id + ".png");
     const auto rgb = draw_swatch(s, options.picture_size, options.seed);
-    if (!stbi_write_png(png.string().c_str(), options.picture_size, options.picture_size, 3, rgb.data(),
-                        options.picture_size * 3))
-      throw std::runtime_error(png.string() + ": cannot write the picture");
+    if (const std::string problem =
+            write_png_file(png.string(), rgb.data(), options.picture_size, options.picture_size, 3);
+        !problem.empty())
+      throw std::runtime_error(problem);
     items << s.id << ',' << s.name << ',' << s.line << ',' << to_string(s.pattern) << ',' << s.scale_name()
           << ",pictures/" << s.id << ".png\n";
     std::snprintf(buf, sizeof buf, "%s,%.4f,%.4f,%.4f,%.4f,%.4f,%.4f,%s,%.3f,%.3f,%.0f\n", s.id.c_str(), s.base.L,

@@ -59,11 +59,9 @@ void Collection::build_index() {
 }
 
 bool LoadOptions::is_valid(std::string* error) const {
-  if (min_items < 1) {
-    if (error) *error = "min_items must be at least 1";
-    return false;
-  }
-  return true;
+  if (min_items >= 1) return true;
+  if (error) *error = "min_items must be at least 1";
+  return false;
 }
 
 namespace {

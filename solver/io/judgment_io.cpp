@@ -10,6 +10,7 @@
 #include <unordered_map>
 
 #include "solver/io/csv_table.h"
+#include "solver/io/safe_file.h"
 #include "solver/io/text_fields.h"
 
 namespace kith {
@@ -350,23 +351,7 @@ std::string write_judgments_csv(const std::string& path, const std::vector<Judgm
   for (const auto& j : judgments)
     for (int32_t i : {j.anchor, j.nearer, j.farther})
       if (i < 0 || size_t(i) >= ids.size()) return "a judgment names item " + std::to_string(i) + ", which has no id";
-  const std::string text = format_judgments_csv(judgments, ids, options);
-  const std::string tmp = path + ".tmp";
-  {
-    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-    if (!out) return "cannot write " + tmp;
-    out << text;
-    out.flush();
-    if (!out) {
-      std::remove(tmp.c_str());
-      return "writing " + tmp + " failed (disk full?)";
-    }
-  }
-  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
-    std::remove(tmp.c_str());
-    return "cannot replace " + path;
-  }
-  return "";
+  return write_file_safely(path, format_judgments_csv(judgments, ids, options));
 }
 
 bool people_from_string(const std::string& text, PeopleInExport* out) {

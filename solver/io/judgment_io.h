@@ -42,9 +42,9 @@ struct JudgmentWriteOptions {
   bool include_retracted = false;  // (default: false; retracted judgments are left out)
   bool include_people = true;      // false writes an empty person column (default: true)
 };
-// Writes anchor,nearer,farther,person,time,kind,weight with ISO 8601 UTC times. Writes to a
-// temporary file and renames it, so an existing file is never left half-written. Returns "" or
-// what went wrong.
+// Writes anchor,nearer,farther,person,time,kind,weight with ISO 8601 UTC times, through
+// write_file_safely (safe_file.h): an existing file is replaced whole or left as it was, and a
+// SQLite file never. Returns "" or what went wrong.
 std::string write_judgments_csv(const std::string& path, const std::vector<Judgment>& judgments,
                                 const std::vector<std::string>& ids, const JudgmentWriteOptions& options = {});
 std::string format_judgments_csv(const std::vector<Judgment>& judgments, const std::vector<std::string>& ids,

@@ -38,11 +38,7 @@ class HeaderParser {
     skip_space();
     expect('{', "'{' to open the header dict");
     for (;;) {
-      skip_space();
-      if (peek() == '}') {
-        ++pos_;
-        break;
-      }
+      if (closes('}')) break;
       const size_t key_at = pos_;
       const std::string key = parse_string("a quoted key");
       skip_space();
@@ -62,16 +58,7 @@ class HeaderParser {
       } else {
         fail(key_at, "expected only the keys 'descr', 'fortran_order' and 'shape', found '" + key + "'");
       }
-      skip_space();
-      if (peek() == ',') {
-        ++pos_;
-        continue;
-      }
-      if (peek() == '}') {
-        ++pos_;
-        break;
-      }
-      fail(pos_, "expected ',' or '}' in the header dict, found " + shown());
+      if (separator_or_close('}', "the header dict")) break;
     }
     while (pos_ < end_ && (b_[pos_] == ' ' || b_[pos_] == '\n' || b_[pos_] == '\t' || b_[pos_] == '\r')) ++pos_;
     if (pos_ != end_) fail(pos_, "expected only spaces and a line end after the header dict, found " + shown());
@@ -120,6 +107,23 @@ class HeaderParser {
     ++pos_;
     return s;
   }
+  // True (and consumed) when CLOSE comes next, after any spaces.
+  bool closes(char close) {
+    skip_space();
+    if (peek() != close) return false;
+    ++pos_;
+    return true;
+  }
+  // After an element: ',' (more follow: false) or CLOSE (the end: true), else a problem in WHERE.
+  bool separator_or_close(char close, const char* where) {
+    skip_space();
+    if (peek() == ',') {
+      ++pos_;
+      return false;
+    }
+    if (closes(close)) return true;
+    fail(pos_, std::string("expected ',' or '") + close + "' in " + where + ", found " + shown());
+  }
   bool parse_bool() {
     if (b_.substr(pos_, 4) == "True" && pos_ + 4 <= end_) {
       pos_ += 4;
@@ -134,11 +138,7 @@ class HeaderParser {
   void parse_shape() {
     expect('(', "'(' to open the shape tuple");
     for (;;) {
-      skip_space();
-      if (peek() == ')') {
-        ++pos_;
-        break;
-      }
+      if (closes(')')) break;
       if (peek() < '0' || peek() > '9') fail(pos_, "expected a whole number in the shape, found " + shown());
       const size_t at = pos_;
       uint64_t v = 0;
@@ -148,16 +148,7 @@ class HeaderParser {
         ++pos_;
       }
       shape.push_back(v);
-      skip_space();
-      if (peek() == ',') {
-        ++pos_;
-        continue;
-      }
-      if (peek() == ')') {
-        ++pos_;
-        break;
-      }
-      fail(pos_, "expected ',' or ')' in the shape, found " + shown());
+      if (separator_or_close(')', "the shape")) break;
     }
   }
 };

@@ -23,6 +23,7 @@
 #include <sstream>
 #include <thread>
 
+#include "solver/io/safe_file.h"
 #include "solver/session/session_store_impl.h"
 
 namespace kith {
@@ -219,10 +220,13 @@ std::vector<StoredEvent> SessionStore::events() const {
 
 void SessionStore::save_copy(const std::string& path) const {
   std::error_code ec;
-  if (fs::exists(path, ec))
-    throw SessionError(Kind::kExists, path + ": a file is already there; kith does not write over it");
-  const std::string tmp = path + ".copying-" + std::to_string(::getpid());
-  fs::remove(tmp, ec);
+  // Refused as the safe file writer refuses (solver/io/safe_file.h): any file there, a session or not.
+  if (const std::string problem = check_write_target(path, /*replace=*/false); !problem.empty())
+    throw SessionError(Kind::kExists, problem);
+  std::string tmp, error;  // an empty new file under an unpredictable name: VACUUM INTO fills it
+  const int fd = create_temp_beside(path, &tmp, &error);
+  if (fd < 0) throw SessionError(Kind::kIo, error);
+  ::close(fd);
   {
     std::lock_guard<std::mutex> lock(impl_->mutex);
     try {

@@ -1,14 +1,17 @@
 // kith check ITEMS: load a collection and report what was found (items, feature, tag and picture
 // columns) and any warnings. A problem in the data is printed as "file:line:column: what" on
 // stderr with exit code 3. Runs on the main thread only.
+#include <cstdint>
 #include <cstdio>
-#include <cstdlib>
+#include <optional>
 #include <set>
 #include <string>
 
 #include "solver/io/collection.h"
-#include "viewer/cli/cli_text.h"
 #include "viewer/cli/commands.h"
+#include "viewer/cli/flags.h"
+#include "viewer/cli/map_source.h"
+#include "viewer/cli/shared_flags.h"
 
 namespace kith {
 namespace {
@@ -18,24 +21,11 @@ const char* const kUsage =
     "\n"
     "Loads a collection and reports what kith found in it: the number of items, the id column,\n"
     "the feature columns (numeric), the tag columns (text), the picture column, and warnings.\n"
-    "ITEMS is a CSV or TSV table with a header row, or a NumPy .npy array of features.\n"
-    "\n"
-    "options:\n"
-    "  --id COLUMN          the column holding item ids (default: 'id', else the first column of\n"
-    "                       unique text, else items are numbered)\n"
-    "  --exclude A,B,...    numeric columns that are not features (they become tags)\n"
-    "  --pictures COLUMN    the column of picture paths, relative to the table's folder (default:\n"
-    "                       the text column whose values end in .png, .jpg, ...)\n"
-    "  --tags TAGS.csv      for a .npy file: a CSV with one row per array row holding ids and tags\n"
-    "  --min-items N        fewer items is an error (default: 2)\n"
-    "\n"
+    "ITEMS is a CSV or TSV table with a header row, or a NumPy .npy array of features.\n";
+
+const char* const kFooter =
     "exit codes: 0 the collection loads, 2 bad usage, 3 a problem in the data (printed as\n"
     "file:line:column: what was expected and what was found)\n";
-
-int usage_error(const std::string& message) {
-  std::fprintf(stderr, "kith check: %s\n%s", message.c_str(), kUsage);
-  return kExitUsage;
-}
 
 std::string list(const std::vector<std::string>& names, size_t max_shown) {
   std::string s;
@@ -47,57 +37,24 @@ std::string list(const std::vector<std::string>& names, size_t max_shown) {
 }  // namespace
 
 int cmd_check(const Args& args) {
-  std::string items;
+  FlagReader flags("check", kUsage, load_flags() + "  --min-items N         fewer items is an error (default: 2)\n",
+                   kFooter);
+  if (!flags.read(args)) return flags.stop();
   LoadOptions options;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string& a = args[i];
-    if (a == "--help" || a == "-h") {
-      std::fputs(kUsage, stdout);
-      return kExitOk;
-    }
-    std::string key = a, value;
-    bool has_value = false;
-    const size_t eq = a.find('=');
-    if (a.rfind("--", 0) == 0 && eq != std::string::npos) {
-      key = a.substr(0, eq);
-      value = a.substr(eq + 1);
-      has_value = true;
-    }
-    const bool takes_value =
-        key == "--id" || key == "--exclude" || key == "--pictures" || key == "--tags" || key == "--min-items";
-    if (takes_value && !has_value) {
-      if (i + 1 >= args.size()) return usage_error(key + " needs a value");
-      value = args[++i];
-    }
-    if (key == "--id") options.id_column = value;
-    else if (key == "--exclude") {
-      for (auto& name : split_commas(value)) options.exclude.push_back(name);
-    } else if (key == "--pictures") options.picture_column = value;
-    else if (key == "--tags") options.tags_csv = value;
-    else if (key == "--min-items") {
-      char* end = nullptr;
-      const long n = std::strtol(value.c_str(), &end, 10);
-      if (value.empty() || *end != '\0' || n < 1) return usage_error("--min-items needs a whole number >= 1");
-      options.min_items = size_t(n);
-    } else if (a.rfind("-", 0) == 0 && a.size() > 1) {
-      return usage_error("unknown option '" + a + "'");
-    } else if (items.empty()) {
-      items = a;
-    } else {
-      return usage_error("one ITEMS file only (got '" + items + "' and '" + a + "')");
-    }
-  }
-  if (items.empty()) return usage_error("which collection? give ITEMS");
+  if (!read_load_flags(flags, &options) || !flags.count("--min-items", &options.min_items, 1, SIZE_MAX / 2))
+    return flags.usage_error();
+  if (flags.positional().empty()) return flags.usage_error("which collection? give ITEMS");
+  if (flags.positional().size() > 1)
+    return flags.usage_error("one ITEMS file only (got '" + flags.positional()[0] + "' and '" + flags.positional()[1] +
+                             "')");
+  const std::string items = flags.positional()[0];
   const bool npy = items.size() >= 4 && items.compare(items.size() - 4, 4, ".npy") == 0;
-  if (!options.tags_csv.empty() && !npy) return usage_error("--tags goes with a .npy file; a table holds its own tags");
+  if (!options.tags_csv.empty() && !npy)
+    return flags.usage_error("--tags goes with a .npy file; a table holds its own tags");
 
-  Collection c;
-  try {
-    c = load_collection(items, options);
-  } catch (const LoadError& e) {
-    std::fprintf(stderr, "%s\n", e.problem().str().c_str());
-    return kExitBadInput;
-  }
+  const std::optional<Collection> loaded = load_or_report("", items, options);
+  if (!loaded) return kExitBadInput;
+  const Collection& c = *loaded;
 
   constexpr size_t kMaxNames = 20, kMaxWarnings = 20;
   std::printf("%s\n", c.source.c_str());

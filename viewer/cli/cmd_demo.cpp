@@ -13,19 +13,20 @@
 #include <random>
 #include <string>
 
-#include "solver/features/block_weights.h"
-#include "solver/io/collection.h"
 #include "solver/demo/demo_trial.h"
-#include "solver/features/picture_descriptors.h"
 #include "solver/demo/sample_library.h"
 #include "solver/demo/simulated_people.h"
-#include "viewer/window/engine_feed.h"
-#include "viewer/window/app.h"
+#include "solver/features/block_weights.h"
+#include "solver/features/picture_descriptors.h"
+#include "solver/io/collection.h"
 #include "viewer/cli/commands.h"
+#include "viewer/cli/flags.h"
+#include "viewer/cli/shared_flags.h"
 #include "viewer/scene/map_feed.h"
-#include "viewer/cli/map_source.h"
-#include "viewer/window/offscreen_render.h"
 #include "viewer/session/session_link.h"
+#include "viewer/window/app.h"
+#include "viewer/window/engine_feed.h"
+#include "viewer/window/offscreen_render.h"
 #include "viewer/window/session_menu.h"
 
 namespace kith {
@@ -33,37 +34,37 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const char* kHelp =
+const char* const kUsage =
     "usage: kith demo [options]\n"
     "\n"
     "Opens the demo: 600 fabric and paint swatches of an invented interior studio, laid out from\n"
-    "features computed from their pictures. A simulated people of four people (one of whom sees\n"
-    "colour differently) answers kith's most informative questions: press K in the window for 10\n"
+    "features computed from their pictures. Four simulated people (one of whom sees colour\n"
+    "differently) answer kith's most informative questions: press K in the window for 10\n"
     "answers, shift+K for 100, and watch the map and the 'agreement with the people's eye' figure.\n"
     "With no display the demo runs headless: it writes pictures of the map before and after the\n"
     "simulated people's answers and prints how much closer the map came to the people's hidden distance.\n"
-    "The pictures of the library are drawn once into a cache folder.\n"
-    "\n"
-    "options:\n"
-    "  --answers N       answers in the headless run (default: 100)\n"
-    "  --questions grid|pairs  grid: which 2 of 8 swatches are most like the one shown (12\n"
-    "                    judgments an answer, as the window asks); pairs: which of 2 (one\n"
-    "                    judgment) (default: grid)\n"
-    "  --blend B         weight of the answers against the features (default: 5)\n"
-    "  --weights on|off  the answers also teach how much each block of picture features\n"
-    "                    (colour, texture, layout) matters, and the map is rebuilt from the\n"
-    "                    reweighted features, so it follows the people also where nobody was\n"
-    "                    asked (default: on)\n"
-    "  --seed N          seed of the headless run: map, people, questions and held-out triplets\n"
-    "                    (default: 42)\n"
-    "  --out DIR         where the headless run writes its PNGs (default: the library folder)\n"
-    "  --library DIR     the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
-    "                    ~/.cache/kith/demo)\n"
-    "  --no-window       the headless run even when there is a display\n"
-    "  --size WxH        picture size of the headless run (default: 1280x800)\n"
-    "\n"
+    "The pictures of the library are drawn once into a cache folder. The seed also sets the\n"
+    "headless run's people, questions and held-out triplets.\n";
+
+const char* const kFooter =
     "exit codes: 0 ok, 1 internal error (e.g. no OpenGL at all), 2 bad usage, 3 the library folder\n"
     "cannot be written or read\n";
+
+const char* const kOptions =
+    "  --answers N           answers in the headless run (default: 100)\n"
+    "  --questions grid|pairs  grid: which 2 of 8 swatches are most like the one shown (12\n"
+    "                        judgments an answer, as the window asks); pairs: which of 2 (one\n"
+    "                        judgment) (default: grid)\n"
+    "  --weights on|off      the answers also teach how much each block of picture features\n"
+    "                        (colour, texture, layout) matters, and the map is rebuilt from the\n"
+    "                        reweighted features, so it follows the people also where nobody was\n"
+    "                        asked (default: on)\n"
+    "  --out DIR             where the headless run writes its PNGs (default: the library folder)\n"
+    "  --library DIR         the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
+    "                        ~/.cache/kith/demo)\n"
+    "  --no-window           the headless run even when there is a display\n"
+    "  --size WxH            picture size of the headless run (default: 1280x800)\n";
+const char* const kHidden = "--frames N, --script FILE, --screenshot FILE";  // test hooks, not in the help
 
 struct DemoData {
   SampleLibrary library;
@@ -314,72 +315,37 @@ int run_live(const DemoData& d, const EngineOptions& eo, const DemoTrialOptions&
 }  // namespace
 
 int cmd_demo(const Args& args) {
-  FlagReader flags(args, "demo");
-  if (flags.flag("--help") || flags.flag("-h")) {
-    std::fputs(kHelp, stdout);
-    return kExitOk;
-  }
   DemoTrialOptions trial;
-  std::string library = default_sample_folder(), out_dir;
+  MapParameters settings;  // the demo's blend and seed
+  settings.blend = trial.blend;
+  FlagReader flags("demo", kUsage, kOptions + map_flags({"--blend", "--seed"}, settings), kFooter, kHidden);
+  if (!flags.read(args)) return flags.stop();
   int width = 1280, height = 800;
-  double number = 0;
-  uint64_t seed = 42;
-  if (auto v = flags.value("--answers")) {
-    if (!parse_number(*v, &number) || number < 0 || number > 100000 || number != double(int(number))) {
-      std::fprintf(stderr, "kith demo: --answers expects a whole number from 0 to 100000, got '%s'\n", v->c_str());
-      return kExitUsage;
-    }
-    trial.answers = int(number);
-  }
-  if (auto v = flags.value("--blend")) {
-    if (!parse_number(*v, &number) || !(number >= 0) || number > 1000) {
-      std::fprintf(stderr, "kith demo: --blend expects a number from 0 to 1000, got '%s'\n", v->c_str());
-      return kExitUsage;
-    }
-    trial.blend = number;
-  }
-  if (auto v = flags.value("--questions")) {
-    if (*v != "grid" && *v != "pairs") {
-      std::fprintf(stderr, "kith demo: --questions expects grid or pairs, got '%s'\n", v->c_str());
-      return kExitUsage;
-    }
-    trial.question = *v == "grid" ? QuestionKind::kGrid : QuestionKind::kPair;
-  }
-  if (auto v = flags.value("--weights")) {
-    if (*v != "on" && *v != "off") {
-      std::fprintf(stderr, "kith demo: --weights expects on or off, got '%s'\n", v->c_str());
-      return kExitUsage;
-    }
-    trial.learn_weights = *v == "on";
-  }
-  if (auto v = flags.value("--seed")) {
-    if (!parse_number(*v, &number) || number < 0 || number > 1e9 || number != double(int64_t(number))) {
-      std::fprintf(stderr, "kith demo: --seed expects a whole number from 0 to 1000000000, got '%s'\n", v->c_str());
-      return kExitUsage;
-    }
-    seed = uint64_t(number);
-  }
-  if (auto v = flags.value("--library")) library = *v;
-  if (auto v = flags.value("--out")) out_dir = *v;
-  if (auto v = flags.value("--size"); v && !parse_size(*v, &width, &height)) {
-    std::fprintf(stderr, "kith demo: --size expects WxH, e.g. 1280x800, got '%s'\n", v->c_str());
-    return kExitUsage;
-  }
-  const bool no_window = flags.flag("--no-window");
+  std::string weights = trial.learn_weights ? "on" : "off";
+  std::string questions = trial.question == QuestionKind::kGrid ? "grid" : "pairs";
   WindowOptions hidden;  // undocumented test hooks, as for kith open
-  if (auto v = flags.value("--frames"); v && parse_number(*v, &number) && number >= 0) hidden.frames = int(number);
-  if (auto v = flags.value("--script")) hidden.script = *v;
-  if (auto v = flags.value("--screenshot")) hidden.screenshot = *v;
-  std::vector<std::string> rest;
-  if (!flags.finish(&rest) || !rest.empty()) {
-    if (!flags.error().empty()) std::fprintf(stderr, "kith %s\n", flags.error().c_str());
-    else std::fprintf(stderr, "kith demo: unexpected '%s' (kith demo --help)\n", rest.front().c_str());
-    return kExitUsage;
-  }
+  if (!flags.integer("--answers", &trial.answers, 0, 100000) || !flags.choice("--weights", &weights, {"on", "off"}) ||
+      !flags.choice("--questions", &questions, {"grid", "pairs"}) ||
+      !flags.size("--size", &width, &height) || !flags.integer("--frames", &hidden.frames, 0) ||
+      !read_map_flags(flags, &settings))
+    return flags.usage_error();
+  if (std::string e; !settings.IsValid(&e)) return flags.usage_error(e);
+  if (!flags.positional().empty()) return flags.usage_error("unexpected '" + flags.positional().front() + "'");
+  trial.blend = settings.blend;
+  trial.learn_weights = weights == "on";
+  trial.question = questions == "grid" ? QuestionKind::kGrid : QuestionKind::kPair;
+  const uint64_t seed = settings.seed;
+  const std::string library = flags.text("--library", default_sample_folder());
+  std::string out_dir = flags.text("--out");
+  const bool no_window = flags.has("--no-window");
+  hidden.script = flags.text("--script");
+  hidden.screenshot = flags.text("--screenshot");
 
   DemoData d;
   if (!load_demo(library, &d)) return kExitBadInput;
   if (out_dir.empty()) out_dir = d.library.folder;
+
+  if (std::string e; !settings.IsValid(&e, d.collection.size())) return flags.usage_error(e);
 
   if (!no_window && display_available()) {
     EngineOptions eo;

@@ -1,23 +1,29 @@
 // kith describe: features computed from pictures (solver/features/picture_descriptors.h), written as a CSV
 // that kith reads as a collection (id, picture, then one column per feature).
+#include <algorithm>
+#include <array>
+#include <cctype>
 #include <cstdio>
 #include <filesystem>
-#include <fstream>
+#include <optional>
 #include <set>
 #include <string>
 #include <vector>
 
-#include "solver/io/text_fields.h"
-#include "solver/io/collection.h"
 #include "solver/features/picture_descriptors.h"
+#include "solver/io/collection.h"
+#include "solver/io/safe_file.h"
+#include "solver/io/text_fields.h"
 #include "viewer/cli/commands.h"
+#include "viewer/cli/flags.h"
+#include "viewer/cli/map_source.h"
 
 namespace kith {
 namespace {
 
 namespace fs = std::filesystem;
 
-const char* kUsage =
+const char* const kUsage =
     "usage: kith describe PICTURES -o features.csv [options]\n"
     "\n"
     "Computes features from PNG and JPEG pictures: CIELAB colour statistics, a coarse CIELAB\n"
@@ -25,17 +31,18 @@ const char* kUsage =
     "block weighted to the same spread over the pictures (see the README). PICTURES is a folder\n"
     "(searched recursively for .png, .jpg, .jpeg), one or more picture files, or an items table\n"
     "(CSV/TSV) with a column of picture paths, whose ids and tags are kept. Pictures that cannot\n"
-    "be read are reported and left out.\n"
-    "\n"
-    "options:\n"
+    "be read are reported and left out.\n";
+
+const char* const kFooter =
+    "exit codes: 0 written, 2 bad usage, 3 bad input (no readable pictures, unreadable folder)\n";
+
+const char* const kOptions =
     "  -o, --output FILE     the features CSV to write (required)\n"
     "  --force               replace FILE if it exists\n"
     "  --background RRGGBB   colour behind transparent pixels (default: ffffff)\n"
     "  --working-size N      longest side, in pixels, pictures are reduced to (default: 96)\n"
     "  --raw                 write the unweighted numbers (no block weighting)\n"
-    "  --threads N           threads to use, 0 = all (default: 0)\n"
-    "\n"
-    "exit codes: 0 written, 2 bad usage, 3 bad input (no readable pictures, unreadable folder)\n";
+    "  --threads N           threads to use, 0 = all (default: 0)\n";
 
 bool is_picture_name(const fs::path& p) {
   std::string ext = p.extension().string();
@@ -43,10 +50,8 @@ bool is_picture_name(const fs::path& p) {
   return ext == ".png" || ext == ".jpg" || ext == ".jpeg";
 }
 
-// A CSV field (RFC 4180): quoted when it holds a comma, quote or line break.
-
 bool parse_hex_colour(const std::string& s, std::array<double, 3>* out) {
-  std::string t = s[0] == '#' ? s.substr(1) : s;
+  std::string t = !s.empty() && s[0] == '#' ? s.substr(1) : s;
   if (t.size() != 6 || t.find_first_not_of("0123456789abcdefABCDEF") != std::string::npos) return false;
   for (int k = 0; k < 3; ++k) (*out)[k] = std::stoi(t.substr(2 * k, 2), nullptr, 16) / 255.0;
   return true;
@@ -55,71 +60,21 @@ bool parse_hex_colour(const std::string& s, std::array<double, 3>* out) {
 }  // namespace
 
 int cmd_describe(const Args& args) {
-  std::vector<std::string> inputs;
-  std::string output;
-  bool force = false;
-  int threads = 0;
+  FlagReader flags("describe", kUsage, kOptions, kFooter);
+  if (!flags.read(args)) return flags.stop();
   DescriptorOptions options;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string& a = args[i];
-    auto value = [&](const char* what) -> const std::string* {
-      if (i + 1 >= args.size()) {
-        std::fprintf(stderr, "kith describe: %s needs %s\n", a.c_str(), what);
-        return nullptr;
-      }
-      return &args[++i];
-    };
-    try {
-      if (a == "--help" || a == "-h") {
-        std::fputs(kUsage, stdout);
-        return kExitOk;
-      } else if (a == "-o" || a == "--output") {
-        const auto* v = value("a file name");
-        if (!v) return kExitUsage;
-        output = *v;
-      } else if (a == "--force") {
-        force = true;
-      } else if (a == "--raw") {
-        options.weight_blocks = false;
-      } else if (a == "--background") {
-        const auto* v = value("a colour RRGGBB");
-        if (!v) return kExitUsage;
-        if (v->empty() || !parse_hex_colour(*v, &options.background)) {
-          std::fprintf(stderr, "kith describe: --background expects a colour like ffffff, got '%s'\n", v->c_str());
-          return kExitUsage;
-        }
-      } else if (a == "--working-size") {
-        const auto* v = value("a number of pixels");
-        if (!v) return kExitUsage;
-        options.working_size = std::stoi(*v);
-      } else if (a == "--threads") {
-        const auto* v = value("a number");
-        if (!v) return kExitUsage;
-        threads = std::stoi(*v);
-      } else if (!a.empty() && a[0] == '-') {
-        std::fprintf(stderr, "kith describe: unknown option '%s' (kith describe --help)\n", a.c_str());
-        return kExitUsage;
-      } else {
-        inputs.push_back(a);
-      }
-    } catch (const std::exception&) {
-      std::fprintf(stderr, "kith describe: %s expects a whole number, got '%s'\n", a.c_str(), args[i].c_str());
-      return kExitUsage;
-    }
-  }
-  std::string error;
-  if (inputs.empty() || output.empty()) {
-    std::fputs(kUsage, stderr);
-    return kExitUsage;
-  }
-  if (!options.IsValid(&error)) {
-    std::fprintf(stderr, "kith describe: %s\n", error.c_str());
-    return kExitUsage;
-  }
-  if (threads < 0) {
-    std::fprintf(stderr, "kith describe: --threads must be 0 or more\n");
-    return kExitUsage;
-  }
+  int threads = 0;
+  if (!flags.integer("--working-size", &options.working_size) || !flags.integer("--threads", &threads, 0))
+    return flags.usage_error();
+  options.weight_blocks = !flags.has("--raw");
+  if (flags.has("--background") && !parse_hex_colour(flags.text("--background"), &options.background))
+    return flags.usage_error("--background expects a colour like ffffff, got '" + flags.text("--background") + "'");
+  const std::vector<std::string>& inputs = flags.positional();
+  const std::string output = flags.text("--output");
+  const bool force = flags.has("--force");
+  if (inputs.empty()) return flags.usage_error("which pictures? give a folder, picture files or an items table");
+  if (output.empty()) return flags.usage_error("where to? give -o features.csv");
+  if (std::string error; !options.IsValid(&error)) return flags.usage_error(error);
   std::error_code ec;
   if (fs::exists(output, ec) && !force) {
     std::fprintf(stderr, "kith describe: %s already exists; pass --force to replace it\n", output.c_str());
@@ -162,13 +117,9 @@ int cmd_describe(const Args& args) {
       }
       LoadOptions load;
       load.allow_no_features = true;
-      Collection c;
-      try {
-        c = load_collection(in, load);
-      } catch (const LoadError& e) {
-        std::fprintf(stderr, "kith describe: %s\n", e.problem().str().c_str());
-        return kExitBadInput;
-      }
+      const std::optional<Collection> loaded = load_or_report("describe", in, load);
+      if (!loaded) return kExitBadInput;
+      const Collection& c = *loaded;
       if (c.pictures.empty()) {
         std::fprintf(stderr, "kith describe: %s: no column of picture paths found (values ending in .png, .jpg...)\n",
                      in.c_str());
@@ -198,43 +149,29 @@ int cmd_describe(const Args& args) {
     return kExitBadInput;
   }
 
-  // Write next to the target, then rename, so a failure never leaves half a file.
-  const fs::path out_path(output);
-  const fs::path tmp = out_path.parent_path() / (out_path.filename().string() + ".part");
-  const fs::path base = fs::absolute(out_path, ec).parent_path();
-  {
-    std::ofstream out(tmp, std::ios::binary);
-    if (!out) {
-      std::fprintf(stderr, "kith describe: cannot write %s\n", tmp.string().c_str());
-      return kExitBadInput;
+  // Built in memory, then written through the safe writer: a failure never leaves half a file.
+  const fs::path base = fs::absolute(fs::path(output), ec).parent_path();
+  std::string text = "id,picture";
+  for (const auto& t : tags) text += ',' + csv_field(t.name);
+  for (const auto& n : descriptor_names()) text += ',' + n;
+  text += '\n';
+  char buf[32];
+  for (size_t r = 0; r < d.paths.size(); ++r) {
+    const fs::path abs = fs::absolute(d.paths[r], ec);
+    fs::path rel = fs::relative(abs, base, ec);
+    if (ec || rel.empty()) rel = abs;
+    text += csv_field(ids[d.input_index[r]]) + ',' + csv_field(rel.generic_string());
+    for (const auto& t : tags) text += ',' + csv_field(t.values[d.input_index[r]]);
+    for (int c = 0; c < d.features.cols(); ++c) {
+      std::snprintf(buf, sizeof buf, ",%.9g", d.features(Eigen::Index(r), c));
+      text += buf;
     }
-    out << "id,picture";
-    for (const auto& t : tags) out << ',' << csv_field(t.name);
-    for (const auto& n : descriptor_names()) out << ',' << n;
-    out << '\n';
-    char buf[32];
-    for (size_t r = 0; r < d.paths.size(); ++r) {
-      const fs::path abs = fs::absolute(d.paths[r], ec);
-      fs::path rel = fs::relative(abs, base, ec);
-      if (ec || rel.empty()) rel = abs;
-      out << csv_field(ids[d.input_index[r]]) << ',' << csv_field(rel.generic_string());
-      for (const auto& t : tags) out << ',' << csv_field(t.values[d.input_index[r]]);
-      for (int c = 0; c < d.features.cols(); ++c) {
-        std::snprintf(buf, sizeof buf, "%.9g", d.features(Eigen::Index(r), c));
-        out << ',' << buf;
-      }
-      out << '\n';
-    }
-    if (!out.flush()) {
-      std::fprintf(stderr, "kith describe: writing %s failed\n", tmp.string().c_str());
-      fs::remove(tmp, ec);
-      return kExitBadInput;
-    }
+    text += '\n';
   }
-  fs::rename(tmp, out_path, ec);
-  if (ec) {
-    std::fprintf(stderr, "kith describe: cannot move %s to %s: %s\n", tmp.string().c_str(), output.c_str(),
-                 ec.message().c_str());
+  SafeWriteOptions write;
+  write.replace = force;
+  if (const std::string problem = write_file_safely(output, text, write); !problem.empty()) {
+    std::fprintf(stderr, "kith describe: %s\n", problem.c_str());
     return kExitBadInput;
   }
   std::printf("wrote %s: %zu pictures x %d features (%zu skipped)\n", output.c_str(), d.paths.size(),

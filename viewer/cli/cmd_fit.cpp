@@ -2,63 +2,56 @@
 // layout CSV or JSON, with a progress line on stderr and the map's health at the end.
 #include <unistd.h>
 
-#include <chrono>
-#include <cmath>
+#include <cctype>
 #include <cstdio>
 #include <filesystem>
-#include <fstream>
 #include <nlohmann/json.hpp>
+#include <optional>
 #include <string>
 
-#include "solver/io/text_fields.h"
-#include "solver/io/collection.h"
 #include "solver/fit/fit.h"
+#include "solver/io/collection.h"
+#include "solver/io/judgment_io.h"
+#include "solver/io/layout_writer.h"
 #include "solver/measures/health.h"
 #include "solver/measures/judgment_health.h"
-#include "solver/io/judgment_io.h"
 #include "solver/measures/map_findings.h"
 #include "viewer/cli/commands.h"
+#include "viewer/cli/flags.h"
+#include "viewer/cli/map_source.h"
+#include "viewer/cli/shared_flags.h"
 
 namespace kith {
 namespace {
 
 namespace fs = std::filesystem;
 
-const char* kUsage =
+const char* const kUsage =
     "usage: kith fit ITEMS -o layout.csv|layout.json [options]\n"
     "\n"
     "Computes a t-SNE map of ITEMS (CSV, TSV or .npy; see 'kith check') from its feature columns and\n"
     "writes it. CSV: id,x,y,z (id,x,y in 2-D) then the tag columns; JSON: the same per item, plus\n"
     "the options and the map's health. Progress (iteration, KL, iterations per second, time left)\n"
-    "goes to stderr; the health figures (KL, trustworthiness, neighbour recall) to stdout.\n"
-    "\n"
-    "options:\n"
-    "  -o, --output FILE       layout to write, .csv or .json (required)\n"
-    "  --force                 replace FILE if it exists\n"
-    "  --dims 2|3              map dimensions (default: 3)\n"
-    "  --perplexity P          effective number of neighbours, 0 < P < number of items (default: 30)\n"
-    "  --iterations N          gradient steps, the first 250 with early exaggeration (default: 1000)\n"
-    "  --theta T               Barnes-Hut angle, 0 (exact forces via the tree) .. 1.5 (default: 0.5)\n"
-    "  --dof D                 Student-t degrees of freedom of the map kernel (default: 1)\n"
-    "  --seed S                seed of the neighbour graph and start noise (default: 42)\n"
-    "  --exact                 exact neighbours and exact O(N^2) forces (slow above a few thousand)\n"
-    "  --learning-rate R       step size; 0 = auto, max(N/48, 50) (default: auto)\n"
-    "  --standardize           scale every feature column to unit variance first\n"
-    "  --threads N             threads, 0 = all (default: 0)\n"
-    "  --quiet                 no progress line\n"
-    "  --judgments FILE        blend people's judgments in (CSV anchor,nearer,farther[,person][,time]\n"
-    "                          [,kind][,weight] by id); reports how many the map agrees with\n"
-    "  --blend B               weight of the judgments against the features, >= 0; 1 = as strong\n"
-    "                          as the features on the items they name (default: 1)\n"
-    "  --skip-bad-judgments    use the good rows of a judgments file with bad ones (default: refuse)\n"
-    "  --suspects              add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
-    "                          neighbours, in the features and the map, tagged otherwise; see README)\n"
-    "  --groups                add each item's group in the map (DBSCAN, automatic radius; 0 = none)\n"
-    "  --tag COLUMN            the tag column suspects are judged by (default: the first)\n"
-    "\n"
+    "goes to stderr; the health figures (KL, trustworthiness, neighbour recall) to stdout.\n";
+
+const char* const kFooter =
     "exit codes: 0 written, 1 the optimization diverged (nothing written), 2 bad usage (or the\n"
     "            output cannot be written), 3 bad input data\n";
 
+const char* const kOptions =
+    "  -o, --output FILE     layout to write, .csv or .json (required)\n"
+    "  --force               replace FILE if it exists\n"
+    "  --exact               exact neighbours and exact O(N^2) forces (slow above a few thousand)\n"
+    "  --standardize         scale every feature column to unit variance first\n"
+    "  --threads N           threads, 0 = all (default: 0)\n"
+    "  --quiet               no progress line\n"
+    "  --judgments FILE      blend people's judgments in (CSV anchor,nearer,farther[,person][,time]\n"
+    "                        [,kind][,weight] by id); reports how many the map agrees with\n"
+    "  --skip-bad-judgments  use the good rows of a judgments file with bad ones (default: refuse)\n"
+    "  --suspects            add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
+    "                        neighbours, in the features and the map, tagged otherwise; see README)\n"
+    "  --groups              add each item's group in the map (DBSCAN, automatic radius; 0 = none)\n"
+    "  --tag COLUMN          the tag column suspects are judged by (default: the first)\n";
 
 std::string lower_extension(const std::string& path) {
   std::string ext = fs::path(path).extension().string();
@@ -75,211 +68,62 @@ std::string format_seconds(double s) {
   return buf;
 }
 
-// Extra per-item columns (suspect score, group) from --suspects / --groups; "" = no value.
-struct ExtraColumns {
-  std::vector<std::string> names;
-  std::vector<std::vector<std::string>> values;  // [column][item]
-};
-
-bool write_layout(const std::string& path, const Collection& c, const FitResult& r, const FitOptions& o,
-                  const MapHealth& h, std::string* error, const ExtraColumns& extra = {}) {
-  // Written beside the target and renamed into place, so a failure never leaves half a file.
-  const std::string tmp = path + ".tmp-" + std::to_string(::getpid());
-  {
-    std::ofstream out(tmp, std::ios::binary);
-    if (!out) {
-      *error = "cannot write " + path;
-      return false;
-    }
-    const char* axes[] = {"x", "y", "z"};
-    if (lower_extension(path) == ".csv") {
-      out << "id";
-      for (int d = 0; d < o.dims; ++d) out << ',' << axes[d];
-      for (const auto& t : c.tags) out << ',' << csv_field(t.name);
-      for (const auto& name : extra.names) out << ',' << csv_field(name);
-      out << '\n';
-      char num[40];
-      for (size_t i = 0; i < c.size(); ++i) {
-        out << csv_field(c.ids[i]);
-        for (int d = 0; d < o.dims; ++d) {
-          std::snprintf(num, sizeof num, ",%.9g", r.map(Eigen::Index(i), d));
-          out << num;
-        }
-        for (const auto& t : c.tags) out << ',' << csv_field(t.values[i]);
-        for (const auto& column : extra.values) out << ',' << csv_field(column[i]);
-        out << '\n';
-      }
-    } else {
-      nlohmann::json j;
-      j["source"] = c.source;
-      j["dims"] = o.dims;
-      j["options"] = {{"perplexity", o.perplexity}, {"iterations", o.iterations}, {"theta", o.theta},
-                      {"dof", o.dof}, {"seed", o.seed}, {"exact", o.exact},
-                      {"learning_rate", r.summary.learning_rate}, {"standardize", o.standardize}};
-      j["health"] = {{"kl", h.kl}, {"trustworthiness", h.trustworthiness},
-                     {"neighbour_recall", h.neighbour_recall}, {"measured_on", h.sample}};
-      if (!o.judgments.empty()) {
-        j["options"]["blend"] = o.blend;
-        j["options"]["judgments"] = o.judgments.size();
-        j["health"]["judgment_agreement"] = judgment_agreement(r.map, o.judgments);
-      }
-      nlohmann::json items = nlohmann::json::array();
-      for (size_t i = 0; i < c.size(); ++i) {
-        nlohmann::json it;
-        it["id"] = c.ids[i];
-        for (int d = 0; d < o.dims; ++d) it[axes[d]] = r.map(Eigen::Index(i), d);
-        if (!c.tags.empty()) {
-          nlohmann::json tags = nlohmann::json::object();
-          for (const auto& t : c.tags) tags[t.name] = t.values[i];
-          it["tags"] = tags;
-        }
-        for (size_t e = 0; e < extra.names.size(); ++e)
-          it[extra.names[e]] = extra.values[e][i].empty() ? nlohmann::json() : nlohmann::json::parse(extra.values[e][i]);
-        items.push_back(it);
-      }
-      j["items"] = items;
-      out << j.dump(1) << '\n';
-    }
-    out.flush();
-    if (!out) {
-      *error = "could not finish writing " + path;
-      return false;
-    }
+// The JSON layout's header: where the map came from, the options it was fitted with, its health.
+nlohmann::ordered_json fit_header(const Collection& c, const FitResult& r, const FitOptions& o, const MapHealth& h) {
+  nlohmann::ordered_json j;
+  j["source"] = c.source;
+  j["options"] = {{"perplexity", o.perplexity},
+                  {"iterations", o.iterations},
+                  {"theta", o.theta},
+                  {"dof", o.dof},
+                  {"seed", o.seed},
+                  {"exact", o.exact},
+                  {"learning_rate", r.summary.learning_rate},
+                  {"standardize", o.standardize}};
+  j["health"] = {{"kl", h.kl},
+                 {"trustworthiness", h.trustworthiness},
+                 {"neighbour_recall", h.neighbour_recall},
+                 {"measured_on", h.sample}};
+  if (!o.judgments.empty()) {
+    j["options"]["blend"] = o.blend;
+    j["options"]["judgments"] = o.judgments.size();
+    j["health"]["judgment_agreement"] = judgment_agreement(r.map, o.judgments);
   }
-  std::error_code ec;
-  fs::rename(tmp, path, ec);
-  if (ec) {
-    fs::remove(tmp, ec);
-    *error = "cannot write " + path;
-    return false;
-  }
-  return true;
+  return j;
 }
 
 }  // namespace
 
 int cmd_fit(const Args& args) {
-  std::string input, output;
-  bool force = false, quiet = false, skip_bad_judgments = false, want_suspects = false, want_groups = false;
-  std::string judgments_path, suspect_tag;
   FitOptions o;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string& a = args[i];
-    auto value = [&]() -> const std::string* {
-      if (i + 1 >= args.size()) {
-        std::fprintf(stderr, "kith fit: %s needs a value (kith fit --help)\n", a.c_str());
-        return nullptr;
-      }
-      return &args[++i];
-    };
-    auto number = [&](double* out) -> bool {
-      const std::string* v = value();
-      if (!v) return false;
-      try {
-        size_t used = 0;
-        *out = std::stod(*v, &used);
-        if (used != v->size()) throw std::invalid_argument("trailing");
-        return true;
-      } catch (const std::exception&) {
-        std::fprintf(stderr, "kith fit: %s expects a number, got '%s'\n", a.c_str(), v->c_str());
-        return false;
-      }
-    };
-    auto whole = [&](double x, const char* what) {
-      if (x != std::floor(x) || std::abs(x) > 1e15) {
-        std::fprintf(stderr, "kith fit: %s expects a whole number, got %g\n", what, x);
-        return false;
-      }
-      return true;
-    };
-    double x = 0;
-    if (a == "--help" || a == "-h") {
-      std::fputs(kUsage, stdout);
-      return kExitOk;
-    } else if (a == "-o" || a == "--output") {
-      const std::string* v = value();
-      if (!v) return kExitUsage;
-      output = *v;
-    } else if (a == "--force") {
-      force = true;
-    } else if (a == "--suspects") {
-      want_suspects = true;
-    } else if (a == "--groups") {
-      want_groups = true;
-    } else if (a == "--tag") {
-      const std::string* v = value();
-      if (!v) return kExitUsage;
-      suspect_tag = *v;
-    } else if (a == "--quiet") {
-      quiet = true;
-    } else if (a == "--judgments") {
-      const std::string* v = value();
-      if (!v) return kExitUsage;
-      judgments_path = *v;
-    } else if (a == "--blend") {
-      if (!number(&o.blend)) return kExitUsage;
-    } else if (a == "--skip-bad-judgments") {
-      skip_bad_judgments = true;
-    } else if (a == "--exact") {
-      o.exact = true;
-    } else if (a == "--standardize") {
-      o.standardize = true;
-    } else if (a == "--dims") {
-      if (!number(&x) || !whole(x, "--dims")) return kExitUsage;
-      o.dims = int(x);
-    } else if (a == "--perplexity") {
-      if (!number(&o.perplexity)) return kExitUsage;
-    } else if (a == "--iterations") {
-      if (!number(&x) || !whole(x, "--iterations")) return kExitUsage;
-      o.iterations = int64_t(x);
-    } else if (a == "--theta") {
-      if (!number(&o.theta)) return kExitUsage;
-    } else if (a == "--dof") {
-      if (!number(&o.dof)) return kExitUsage;
-    } else if (a == "--seed") {
-      if (!number(&x) || !whole(x, "--seed") || x < 0) return kExitUsage;
-      o.seed = uint64_t(x);
-    } else if (a == "--learning-rate") {
-      if (!number(&o.learning_rate)) return kExitUsage;
-    } else if (a == "--threads") {
-      if (!number(&x) || !whole(x, "--threads")) return kExitUsage;
-      o.threads = int(x);
-    } else if (!a.empty() && a[0] == '-') {
-      std::fprintf(stderr, "kith fit: unknown option '%s' (kith fit --help)\n", a.c_str());
-      return kExitUsage;
-    } else if (input.empty()) {
-      input = a;
-    } else {
-      std::fprintf(stderr, "kith fit: only one ITEMS file, got '%s' and '%s'\n", input.c_str(), a.c_str());
-      return kExitUsage;
-    }
-  }
-  if (input.empty() || output.empty()) {
-    std::fprintf(stderr, "kith fit: need ITEMS and -o FILE\n%s", kUsage);
-    return kExitUsage;
-  }
+  FlagReader flags("fit", kUsage,
+                   kOptions + map_flags({"--dims", "--perplexity", "--iterations", "--theta", "--dof", "--seed",
+                                         "--learning-rate", "--blend"}),
+                   kFooter);
+  if (!flags.read(args)) return flags.stop();
+  if (!read_map_flags(flags, &o) || !flags.integer("--threads", &o.threads, 0)) return flags.usage_error();
+  o.exact = flags.has("--exact");
+  o.standardize = flags.has("--standardize");
+  const bool force = flags.has("--force"), quiet = flags.has("--quiet");
+  const bool skip_bad_judgments = flags.has("--skip-bad-judgments");
+  const bool want_suspects = flags.has("--suspects"), want_groups = flags.has("--groups");
+  const std::string output = flags.text("--output"), judgments_path = flags.text("--judgments");
+  const std::string suspect_tag = flags.text("--tag");
+  if (flags.positional().size() > 1)
+    return flags.usage_error("only one ITEMS file, got '" + flags.positional()[0] + "' and '" + flags.positional()[1] +
+                             "'");
+  if (flags.positional().empty() || output.empty()) return flags.usage_error("need ITEMS and -o FILE");
+  const std::string input = flags.positional()[0];
   const std::string ext = lower_extension(output);
-  if (ext != ".csv" && ext != ".json") {
-    std::fprintf(stderr, "kith fit: the output must end in .csv or .json, got '%s'\n", output.c_str());
-    return kExitUsage;
-  }
+  if (ext != ".csv" && ext != ".json")
+    return flags.usage_error("the output must end in .csv or .json, got '" + output + "'");
   if (fs::exists(output) && !force) {
     std::fprintf(stderr, "kith fit: %s exists; add --force to replace it\n", output.c_str());
     return kExitUsage;
   }
-  std::string error;
-  if (!o.IsValid(&error)) {
-    std::fprintf(stderr, "kith fit: %s\n", error.c_str());
-    return kExitUsage;
-  }
-
-  Collection c;
-  try {
-    c = load_collection(input);
-  } catch (const LoadError& e) {
-    std::fprintf(stderr, "kith fit: %s\n", e.problem().str().c_str());
-    return kExitBadInput;
-  }
+  const std::optional<Collection> loaded = load_or_report("fit", input);
+  if (!loaded) return kExitBadInput;
+  const Collection& c = *loaded;
   if (c.features.cols() == 0) {
     std::fprintf(stderr, "kith fit: %s has no feature columns (numbers) to compute a map from\n", input.c_str());
     return kExitBadInput;
@@ -288,10 +132,7 @@ int cmd_fit(const Args& args) {
     std::fprintf(stderr, "kith fit: %s has %zu items; a map needs at least 3\n", input.c_str(), c.size());
     return kExitBadInput;
   }
-  if (!o.IsValid(&error, c.size())) {
-    std::fprintf(stderr, "kith fit: %s\n", error.c_str());
-    return kExitUsage;
-  }
+  if (std::string error; !o.IsValid(&error, c.size())) return flags.usage_error(error);
 
   if (!judgments_path.empty()) {
     JudgmentReadOptions jo;
@@ -338,7 +179,13 @@ int cmd_fit(const Args& args) {
   ho.threads = o.threads;
   MapHealth h = measure_health(r.features, r.map, ho);
   h.kl = r.summary.kl;
-  ExtraColumns extra;
+  Layout layout;
+  layout.collection = &c;
+  layout.map = &r.map;
+  layout.header = fit_header(c, r, o, h);
+  LayoutFormat format;  // kith fit's own names and numbering (layout_writer.h)
+  format.suspect_column = "suspect";
+  format.groups_from_one = true;
   std::string findings_note;
   if (want_suspects || want_groups) {
     const std::vector<std::string>* tags = nullptr;
@@ -349,33 +196,26 @@ int cmd_fit(const Args& args) {
                    suspect_tag.c_str());
       return kExitUsage;
     }
-    FindingsOptions fo;
-    fo.search.seed = o.seed;
-    const MapFindings f = find_structure(r.features, r.map, want_suspects ? tags : nullptr, fo);
     if (want_suspects && !tags) {
       std::fprintf(stderr, "kith fit: --suspects: %s has no tag column; nothing written\n", input.c_str());
       return kExitUsage;
     }
-    char num[32];
+    FindingsOptions fo;
+    fo.search.seed = o.seed;
+    const MapFindings f = find_structure(r.features, r.map, want_suspects ? tags : nullptr, fo);
     if (want_suspects) {
-      extra.names.push_back("suspect");
-      extra.values.emplace_back(c.size());
-      for (size_t i = 0; i < c.size(); ++i)
-        if (!std::isnan(f.suspects.score[i])) {
-          std::snprintf(num, sizeof num, "%.4f", f.suspects.score[i]);
-          extra.values.back()[i] = num;
-        }
+      layout.suspect = f.suspects.score;
       findings_note += "suspects: " + f.suspects.summary() + "\n";
     }
     if (want_groups) {
-      extra.names.push_back("group");
-      extra.values.emplace_back(c.size());
-      for (size_t i = 0; i < c.size(); ++i) extra.values.back()[i] = std::to_string(f.groups.label[i] + 1);
+      layout.group = f.groups.label;
       findings_note += "groups: " + f.groups.summary() + "\n";
     }
   }
-  if (!write_layout(output, c, r, o, h, &error, extra)) {
-    std::fprintf(stderr, "kith fit: %s\n", error.c_str());
+  SafeWriteOptions replace;
+  replace.replace = force;
+  if (const std::string problem = write_layout(output, layout, format, replace); !problem.empty()) {
+    std::fprintf(stderr, "kith fit: %s\n", problem.c_str());
     return kExitUsage;
   }
   std::printf("wrote %s (%zu items)\n", output.c_str(), c.size());

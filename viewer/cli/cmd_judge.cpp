@@ -2,12 +2,13 @@
 // adds judgments to a session from the command line. Each is committed to the file before its
 // "added" line is printed, so a printed line means the judgment is safe. Main thread only.
 #include <cstdio>
-#include <cstdlib>
+#include <unordered_map>
 
+#include "solver/io/judgment_io.h"
 #include "solver/session/session_store.h"
 #include "viewer/cli/commands.h"
+#include "viewer/cli/flags.h"
 #include "viewer/cli/session_cli.h"
-#include "solver/io/judgment_io.h"
 
 namespace kith {
 namespace {
@@ -19,9 +20,13 @@ const char* const kUsage =
     "\n"
     "Adds judgments to a session: 'ANCHOR is more like NEARER than like FARTHER', items by id.\n"
     "Each judgment is written to the session file before kith says it was added. Judgments are\n"
-    "never deleted; --retract marks one as withdrawn (the map ignores it), --restore undoes that.\n"
-    "\n"
-    "options:\n"
+    "never deleted; --retract marks one as withdrawn (the map ignores it), --restore undoes that.\n";
+
+const char* const kFooter =
+    "exit codes: 0 done, 2 bad usage, 3 bad input (unknown item, bad row, not a sound session, or a\n"
+    "session open in another kith process)\n";
+
+const char* const kOptions =
     "  --add A,N,F           one judgment by item ids (repeat for more; ids holding a comma need --import)\n"
     "  --import J.csv        judgments from a CSV: anchor,nearer,farther[,person][,time][,kind][,weight];\n"
     "                        every bad row is reported with its line and cause, and a file with any\n"
@@ -30,48 +35,35 @@ const char* const kUsage =
     "  --person NAME         who made them: any name or a pseudonym (default: nobody named; with\n"
     "                        --import, only rows without a person get it)\n"
     "  --weight W            weight of --add judgments, > 0 (default: 1)\n"
-    "  --retract ID          withdraw judgment ID;  --restore ID  bring it back\n"
-    "\n"
-    "exit codes: 0 done, 2 bad usage, 3 bad input (unknown item, bad row, not a sound session, or a\n"
-    "session open in another kith process)\n";
-
-int usage_error(const std::string& message) {
-  std::fprintf(stderr, "kith judge: %s\n%s", message.c_str(), kUsage);
-  return kExitUsage;
-}
+    "  --retract ID          withdraw judgment ID\n"
+    "  --restore ID          bring a withdrawn judgment back\n";
 
 }  // namespace
 
 int cmd_judge(const Args& args) {
-  session_cli::Parsed p;
-  const std::string error = session_cli::parse(
-      args, {"--add", "--import", "--person", "--weight", "--retract", "--restore"}, {"--skip-bad-rows"}, &p);
-  if (p.help) {
-    std::fputs(kUsage, stdout);
-    return kExitOk;
-  }
-  if (!error.empty()) return usage_error(error);
-  if (p.positional.size() != 1) return usage_error(p.positional.empty() ? "which session? give SESSION" : "one SESSION only");
-  const int actions = int(p.values.count("--add")) + int(p.values.count("--import")) +
-                      int(p.values.count("--retract")) + int(p.values.count("--restore"));
-  if (actions == 0) return usage_error("nothing to do: give --add, --import, --retract or --restore");
-  if (actions > 1) return usage_error("one of --add, --import, --retract, --restore at a time");
+  FlagReader flags("judge", kUsage, kOptions, kFooter);
+  if (!flags.read(args)) return flags.stop();
+  if (flags.positional().size() != 1)
+    return flags.usage_error(flags.positional().empty() ? "which session? give SESSION" : "one SESSION only");
+  const int actions =
+      int(flags.has("--add")) + int(flags.has("--import")) + int(flags.has("--retract")) + int(flags.has("--restore"));
+  if (actions == 0) return flags.usage_error("nothing to do: give --add, --import, --retract or --restore");
+  if (actions > 1) return flags.usage_error("one of --add, --import, --retract, --restore at a time");
   double weight = 1.0;
-  if (p.values.count("--weight") && (!session_cli::parse_double(p.value("--weight"), &weight) || weight <= 0))
-    return usage_error("--weight needs a number > 0, got '" + p.value("--weight") + "'");
-  const std::string person = p.value("--person");
-  const std::string path = p.positional[0];
+  int64_t judgment_id = 0;
+  if (!flags.number("--weight", &weight, 0.0) || !flags.integer("--retract", &judgment_id) ||
+      !flags.integer("--restore", &judgment_id))
+    return flags.usage_error();
+  if (!(weight > 0)) return flags.usage_error("--weight needs a number > 0, got '" + flags.text("--weight") + "'");
+  const std::string person = flags.text("--person");
+  const std::string path = flags.positional()[0];
 
   try {
     auto store = SessionStore::open(path);
-    if (p.values.count("--retract") || p.values.count("--restore")) {
-      const bool retract = p.values.count("--retract") > 0;
-      const std::string text = p.value(retract ? "--retract" : "--restore");
-      char* end = nullptr;
-      const long long id = std::strtoll(text.c_str(), &end, 10);
-      if (text.empty() || *end != '\0') return usage_error("a judgment id is a whole number, got '" + text + "'");
-      store->set_retracted(id, retract);
-      std::printf("%s judgment %lld\n", retract ? "retracted" : "restored", id);
+    if (flags.has("--retract") || flags.has("--restore")) {
+      const bool retract = flags.has("--retract");
+      store->set_retracted(judgment_id, retract);
+      std::printf("%s judgment %lld\n", retract ? "retracted" : "restored", static_cast<long long>(judgment_id));
       return kExitOk;
     }
 
@@ -79,10 +71,10 @@ int cmd_judge(const Args& args) {
     std::unordered_map<std::string, int32_t> index;
     for (size_t i = 0; i < ids.size(); ++i) index.emplace(ids[i], int32_t(i));
 
-    if (p.values.count("--add")) {
+    if (flags.has("--add")) {
       // Check every --add first: either all are added or none.
       std::vector<Judgment> judgments;
-      for (const std::string& triple : p.values.at("--add")) {
+      for (const std::string& triple : flags.all("--add")) {
         std::vector<std::string> parts;
         size_t start = 0;
         for (;;) {
@@ -92,7 +84,7 @@ int cmd_judge(const Args& args) {
           start = comma + 1;
         }
         if (parts.size() != 3)
-          return usage_error("--add needs three item ids separated by commas, got '" + triple + "'");
+          return flags.usage_error("--add needs three item ids separated by commas, got '" + triple + "'");
         Judgment j;
         int32_t* slots[3] = {&j.anchor, &j.nearer, &j.farther};
         static const char* kRoles[3] = {"anchor", "nearer", "farther"};
@@ -116,15 +108,15 @@ int cmd_judge(const Args& args) {
       }
       for (size_t k = 0; k < judgments.size(); ++k) {
         const int64_t id = store->add_judgment(judgments[k]);
-        std::printf("added judgment %lld: %s\n", static_cast<long long>(id), p.values.at("--add")[k].c_str());
+        std::printf("added judgment %lld: %s\n", static_cast<long long>(id), flags.all("--add")[k].c_str());
         std::fflush(stdout);
       }
       return kExitOk;
     }
 
-    const std::string file = p.value("--import");
+    const std::string file = flags.text("--import");
     JudgmentReadOptions read;
-    read.skip_bad_rows = p.flags.count("--skip-bad-rows") > 0;
+    read.skip_bad_rows = flags.has("--skip-bad-rows");
     JudgmentReadResult r = read_judgments_csv(file, ids, read);
     for (const Problem& problem : r.problems) std::fprintf(stderr, "kith judge: %s\n", describe(problem).c_str());
     if (!r.ok() && !read.skip_bad_rows) {

@@ -4,124 +4,89 @@
 #include <cstdio>
 #include <thread>
 
-#include "viewer/window/engine_feed.h"
 #include "viewer/cli/commands.h"
+#include "viewer/cli/flags.h"
 #include "viewer/cli/map_source.h"
+#include "viewer/cli/shared_flags.h"
+#include "viewer/window/engine_feed.h"
 #include "viewer/window/offscreen_render.h"
 
 namespace kith {
 
 namespace {
-const char* kHelp =
+const char* const kUsage =
     "usage: kith render ITEMS -o map.png [options]\n"
     "Draws the map of a collection to a PNG without any display or window (EGL, no X needed).\n"
-    "The map is computed first (the live engine, for --iterations steps).\n\n"
-    "  -o, --output FILE      the PNG to write (required)\n"
-    "  --size WxH             picture size in pixels (default: 1280x800)\n"
-    "  --camera Y,P,D[,X,Y,Z] yaw and pitch in radians, distance, optional target point\n"
-    "                         (default: the whole map from a three-quarter view; without X,Y,Z\n"
-    "                         the camera looks at the map's centre)\n"
-    "  --colour COLUMN        colour by this tag column, or 'plain' (default: the first tag column)\n"
-    "  --iterations N         optimization steps before drawing (default: 1000)\n"
-    "  --select ID,ID,...     draw these items selected, with their picture cards\n"
-    "  --dark                 the night ground instead of paper\n"
-    "  --no-grid, --no-legend, --no-cards\n"
-    "  --perplexity P, --theta T, --blend B, --seed S   engine options (see kith open --help)\n";
+    "The map is computed first (the live engine, for --iterations steps).\n";
+
+const char* const kOptions =
+    "  -o, --output FILE     the PNG to write (required)\n"
+    "  --size WxH            picture size in pixels (default: 1280x800)\n"
+    "  --camera Y,P,D[,X,Y,Z]\n"
+    "                        yaw and pitch in radians, distance, optional target point\n"
+    "                        (default: the whole map from a three-quarter view; without X,Y,Z\n"
+    "                        the camera looks at the map's centre)\n"
+    "  --colour, --color COLUMN\n"
+    "                        colour by this tag column, or 'plain' (default: the first tag column)\n"
+    "  --iterations N        optimization steps before drawing, 0 = the start (default: 1000)\n"
+    "  --select ID,ID,...    draw these items selected, with their picture cards\n"
+    "  --dark                the night ground instead of paper\n"
+    "  --no-grid             no floor grid\n"
+    "  --no-legend           no title and colour legend\n"
+    "  --no-cards            no picture cards for the selected items\n";
 }  // namespace
 
 int cmd_render(const Args& args) {
-  FlagReader flags(args, "render");
-  if (flags.flag("--help") || flags.flag("-h")) {
-    std::fputs(kHelp, stdout);
-    return kExitOk;
-  }
+  FlagReader flags("render", kUsage, kOptions + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
+                   "--generate N");  // a generated collection, for tests
+  if (!flags.read(args)) return flags.stop();
   RenderOptions ro;
-  std::string output;
-  if (auto v = flags.value("-o")) output = *v;
-  if (auto v = flags.value("--output")) output = *v;
-  if (auto v = flags.value("--size"); v && !parse_size(*v, &ro.width, &ro.height)) {
-    std::fprintf(stderr, "kith render: --size expects WxH, e.g. 1600x1000, got '%s'\n", v->c_str());
-    return kExitUsage;
-  }
-  if (auto v = flags.value("--camera")) {
-    std::string error;
-    ro.camera = Camera::parse(*v, &error);
-    ro.camera_at_centre = std::count(v->begin(), v->end(), ',') == 2;
-    if (!ro.camera) {
-      std::fprintf(stderr, "kith render: %s\n", error.c_str());
-      return kExitUsage;
-    }
-  }
-  std::string colour = "", select;
-  if (auto v = flags.value("--colour")) colour = *v;
-  if (auto v = flags.value("--color")) colour = *v;
-  if (auto v = flags.value("--select")) select = *v;
-  double iterations = 1000, generate = 0;
-  if (auto v = flags.value("--iterations"); v && (!parse_number(*v, &iterations) || iterations < 0)) {
-    std::fprintf(stderr, "kith render: --iterations expects a whole number >= 0, got '%s'\n", v->c_str());
-    return kExitUsage;
-  }
-  if (auto v = flags.value("--generate"); v && (!parse_number(*v, &generate) || generate < 2)) {
-    std::fprintf(stderr, "kith render: --generate expects a count >= 2\n");
-    return kExitUsage;
-  }
-  ro.view.dark = flags.flag("--dark");
-  ro.view.grid = !flags.flag("--no-grid");
-  ro.legend = !flags.flag("--no-legend");
-  ro.view.cards = !flags.flag("--no-cards");
   EngineOptions eo;
-  if (!read_engine_flags(flags, "render", &eo)) return kExitUsage;
-  std::vector<std::string> positional;
-  if (!flags.finish(&positional)) {
-    std::fprintf(stderr, "kith %s\n", flags.error().c_str());
-    return kExitUsage;
+  int64_t iterations = 1000;
+  size_t generate = 0;
+  std::vector<std::string> select;
+  if (!flags.size("--size", &ro.width, &ro.height) || !flags.integer("--iterations", &iterations, 0, 10000000) ||
+      !flags.count("--generate", &generate, 2, 100000000) || !flags.list("--select", &select) ||
+      !read_map_flags(flags, &eo))
+    return flags.usage_error();
+  if (const std::string problem = ro.IsValid(); !problem.empty()) return flags.usage_error(problem);
+  if (flags.has("--camera")) {
+    const std::string v = flags.text("--camera");
+    std::string error;
+    ro.camera = Camera::parse(v, &error);
+    ro.camera_at_centre = std::count(v.begin(), v.end(), ',') == 2;
+    if (!ro.camera) return flags.usage_error(error);
   }
-  if (output.empty()) {
-    std::fprintf(stderr, "kith render: where to? give -o map.png\n");
-    return kExitUsage;
-  }
-  if (positional.size() > 1) {
-    std::fprintf(stderr, "kith render: one collection at a time, got %zu\n", positional.size());
-    return kExitUsage;
-  }
+  const std::string output = flags.text("--output"), colour = flags.text("--colour");
+  ro.view.dark = flags.has("--dark");
+  ro.view.grid = !flags.has("--no-grid");
+  ro.legend = !flags.has("--no-legend");
+  ro.view.cards = !flags.has("--no-cards");
+  const std::vector<std::string>& positional = flags.positional();
+  if (output.empty()) return flags.usage_error("where to? give -o map.png");
+  if (positional.size() > 1)
+    return flags.usage_error("one collection at a time, got " + std::to_string(positional.size()));
   int code = kExitOk;
-  auto collection = load_items_or_report("render", positional.empty() ? "" : positional[0], size_t(generate), &code);
+  auto collection = load_items_or_report("render", positional.empty() ? "" : positional[0], generate, &code);
   if (!collection) return code;
+  if (std::string e; !eo.IsValid(&e, collection->size())) return flags.usage_error(e);
 
-  if (!colour.empty()) {
-    bool found = colour == "plain";
-    for (size_t t = 0; t < collection->tags.size() && !found; ++t)
-      if (collection->tags[t].name == colour) {
-        ro.view.colour_by = {ColourKind::kTag, int(t)};
-        found = true;
-      }
-    if (colour == "plain") ro.view.colour_by.kind = ColourKind::kPlain;
-    if (!found) {
-      std::fprintf(stderr, "kith render: --colour: no tag column named '%s'\n", colour.c_str());
-      return kExitUsage;
+  if (!choose_colour("render", *collection, colour, &ro.view)) return kExitUsage;
+  for (const std::string& id : select) {
+    int found = -1;
+    for (size_t i = 0; i < collection->ids.size() && found < 0; ++i)
+      if (collection->ids[i] == id) found = int(i);
+    if (found < 0) {
+      std::fprintf(stderr, "kith render: --select: no item with id '%s'\n", id.c_str());
+      return kExitBadInput;
     }
-  }
-  if (!select.empty()) {
-    size_t start = 0;
-    while (start <= select.size()) {
-      const size_t comma = std::min(select.find(',', start), select.size());
-      const std::string id = select.substr(start, comma - start);
-      int found = -1;
-      for (size_t i = 0; i < collection->ids.size() && found < 0; ++i)
-        if (collection->ids[i] == id) found = int(i);
-      if (found < 0) {
-        std::fprintf(stderr, "kith render: --select: no item with id '%s'\n", id.c_str());
-        return kExitBadInput;
-      }
-      ro.selected.push_back(found);
-      start = comma + 1;
-    }
+    ro.selected.push_back(found);
   }
 
   Points positions;
   auto feed = iterations > 0 ? make_engine_feed(*collection, eo) : nullptr;
   if (feed) {
-    std::fprintf(stderr, "kith render: computing the map (%g iterations)...\n", iterations);
+    std::fprintf(stderr, "kith render: computing the map (%lld iterations)...\n", static_cast<long long>(iterations));
     for (;;) {
       auto s = feed->latest();
       if (s && (s->iteration >= uint64_t(iterations) || s->settled)) {

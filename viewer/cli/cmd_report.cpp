@@ -1,27 +1,28 @@
 // kith report ITEMS|SESSION -o report.html: a self-contained HTML page (viewer/cli/report_page.h)
 // with the health figures, the suspect list, the groups table, the neighbourhoods the map keeps
 // worst and pictures of the map. For ITEMS it fits a map itself (solver/fit/fit.h). Main thread only.
-#include <cmath>
 #include <algorithm>
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <fstream>
 #include <optional>
 #include <string>
 
-#include "solver/io/collection.h"
-#include "solver/measures/displacement.h"
 #include "solver/features/feature_prep.h"
 #include "solver/fit/fit.h"
+#include "solver/io/collection.h"
+#include "solver/io/safe_file.h"
+#include "solver/measures/displacement.h"
 #include "solver/measures/health.h"
 #include "solver/measures/judgment_health.h"
-#include "solver/objective/judgment_term.h"
 #include "solver/measures/map_findings.h"
+#include "solver/objective/judgment_term.h"
 #include "solver/objective/neighbour_term.h"
 #include "solver/session/session_store.h"
 #include "viewer/cli/commands.h"
-#include "viewer/cli/map_source.h"  // parse_number
+#include "viewer/cli/flags.h"
 #include "viewer/cli/report_page.h"
+#include "viewer/cli/shared_flags.h"
 
 namespace kith {
 namespace {
@@ -36,28 +37,20 @@ const char* const kUsage =
     "map is fitted first (as kith fit does). For a SESSION (.kith, opened read-only) the map is its\n"
     "last saved one, and the page adds what the judgments changed: each item's displacement from\n"
     "the map fitted from the features alone, and the judgments that pulled the most moved items.\n"
-    "The session's own settings (dims, perplexity, seed) are used for the reference map.\n"
-    "\n"
-    "options:\n"
-    "  -o, --output FILE      the HTML file to write (required; never the input)\n"
-    "  --tag COLUMN           the tag column for suspects and group purity (default: the first)\n"
-    "  --space features|map|both   where suspects' neighbours come from (default: both)\n"
-    "  --k N                  neighbours looked at per suspect (default: 10)\n"
-    "  --eps R                DBSCAN radius in map units (default: automatic, from the k-distance knee)\n"
-    "  --min-points N         DBSCAN's minPts (default: max(10, 2 x dims))\n"
-    "  --rows N               rows in the lists (default: 25)\n"
-    "  --dims 2|3             map dimensions (default: 3)\n"
-    "  --perplexity P         (default: 30)\n"
-    "  --iterations N         (default: 1000)\n"
-    "  --seed S               (default: 42)\n"
-    "\n"
-    "exit codes: 0 written, 2 bad usage, 3 a problem in the data, 1 internal error\n";
+    "The session's own settings (dims, perplexity, seed) are used for the reference map, and the\n"
+    "map settings below apply to ITEMS only.\n";
 
-int usage_error(const std::string& message) {
-  std::fprintf(stderr, "kith report: %s\n(kith report --help lists the options)\n", message.c_str());
-  return kExitUsage;
-}
+const char* const kFooter = "exit codes: 0 written, 2 bad usage, 3 a problem in the data, 1 internal error\n";
 
+const char* const kOptions =
+    "  -o, --output FILE     the HTML file to write (required; never the input)\n"
+    "  --tag COLUMN          the tag column for suspects and group purity (default: the first)\n"
+    "  --space features|map|both\n"
+    "                        where suspects' neighbours come from (default: both)\n"
+    "  --k N                 neighbours looked at per suspect (default: 10)\n"
+    "  --eps R               DBSCAN radius in map units (default: automatic, from the k-distance knee)\n"
+    "  --min-points N        DBSCAN's minPts (default: max(10, 2 x dims))\n"
+    "  --rows N              rows in the lists (default: 25)\n";
 
 std::string fixed(double v, int digits) {
   char buf[64];
@@ -68,54 +61,28 @@ std::string fixed(double v, int digits) {
 }  // namespace
 
 int cmd_report(const Args& args) {
-  std::string input, output, tag_column;
+  FlagReader flags("report", kUsage, kOptions + map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
+                   kFooter);
+  if (!flags.read(args)) return flags.stop();
   FitOptions fit;
   FindingsOptions find;
   size_t rows = 25;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string& a = args[i];
-    if (a == "--help" || a == "-h") {
-      std::fputs(kUsage, stdout);
-      return kExitOk;
-    }
-    if (a.rfind("-", 0) != 0) {
-      if (!input.empty()) return usage_error("one input only (got '" + input + "' and '" + a + "')");
-      input = a;
-      continue;
-    }
-    if (i + 1 >= args.size()) return usage_error(a + " needs a value");
-    const std::string v = args[++i];
-    double x = 0;
-    auto number = [&](double lo, double hi) {
-      if (!parse_number(v, &x) || x < lo || x > hi) throw std::invalid_argument(a + " expects a number from " +
-                                                                                fixed(lo, 0) + " to " + fixed(hi, 0) +
-                                                                                ", got '" + v + "'");
-      return x;
-    };
-    try {
-      if (a == "-o" || a == "--output") output = v;
-      else if (a == "--tag") tag_column = v;
-      else if (a == "--space") {
-        if (!suspect_space_from_string(v, &find.suspects.space))
-          return usage_error("--space expects features, map or both, got '" + v + "'");
-      } else if (a == "--k") find.suspects.k = size_t(number(1, 1000));
-      else if (a == "--eps") find.groups.eps = number(0, 1e12);
-      else if (a == "--min-points") find.groups.min_points = size_t(number(2, 100000));
-      else if (a == "--rows") rows = size_t(number(1, 100000));
-      else if (a == "--dims") fit.dims = int(number(2, 3));
-      else if (a == "--perplexity") fit.perplexity = number(1e-9, 1e9);
-      else if (a == "--iterations") fit.iterations = int64_t(number(1, 1e9));
-      else if (a == "--seed") fit.seed = uint64_t(number(0, 1e18));
-      else return usage_error("unknown option " + a);
-    } catch (const std::invalid_argument& e) {
-      return usage_error(e.what());
-    }
-  }
-  if (input.empty()) return usage_error("which collection? (kith report ITEMS -o report.html)");
-  if (output.empty()) return usage_error("where to? (-o report.html)");
+  if (!read_map_flags(flags, &fit) || !flags.count("--k", &find.suspects.k, 1, 1000) ||
+      !flags.number("--eps", &find.groups.eps, 0, 1e12) ||
+      !flags.count("--min-points", &find.groups.min_points, 2, 100000) || !flags.count("--rows", &rows, 1, 100000))
+    return flags.usage_error();
+  if (flags.has("--space") && !suspect_space_from_string(flags.text("--space"), &find.suspects.space))
+    return flags.usage_error("--space expects features, map or both, got '" + flags.text("--space") + "'");
+  const std::string output = flags.text("--output"), tag_column = flags.text("--tag");
+  if (flags.positional().size() > 1)
+    return flags.usage_error("one input only (got '" + flags.positional()[0] + "' and '" + flags.positional()[1] +
+                             "')");
+  if (flags.positional().empty()) return flags.usage_error("which collection? (kith report ITEMS -o report.html)");
+  if (output.empty()) return flags.usage_error("where to? (-o report.html)");
+  const std::string input = flags.positional()[0];
   std::error_code ec;
   if (std::filesystem::exists(output, ec) && std::filesystem::equivalent(input, output, ec))
-    return usage_error("the output '" + output + "' is the input; choose another file");
+    return flags.usage_error("the output '" + output + "' is the input; choose another file");
   const bool is_session = input.size() > 5 && input.compare(input.size() - 5, 5, ".kith") == 0;
 
   Collection items;
@@ -172,12 +139,12 @@ int cmd_report(const Args& args) {
   if (!tag_column.empty() && !tags) {
     std::string names;
     for (const TagColumn& t : items.tags) names += (names.empty() ? "" : ", ") + t.name;
-    return usage_error("no tag column '" + tag_column + "' in " + input + " (tag columns: " +
-                       (names.empty() ? "none" : names) + ")");
+    return flags.usage_error("no tag column '" + tag_column + "' in " + input +
+                             " (tag columns: " + (names.empty() ? "none" : names) + ")");
   }
   std::string error;
-  if (!fit.IsValid(&error, items.size())) return usage_error(error);
-  if (!find.IsValid(&error)) return usage_error(error);
+  if (!fit.IsValid(&error, items.size())) return flags.usage_error(error);
+  if (!find.IsValid(&error)) return flags.usage_error(error);
 
   std::fprintf(stderr, "kith report: fitting the map of %zu items from their features...\n", items.size());
   FitResult fitted;
@@ -254,19 +221,8 @@ int cmd_report(const Args& args) {
     c.moved_by = moved_by;
   }
 
-  const std::string tmp = output + ".part";
-  {
-    std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-    out << report_html(c);
-    if (!out) {
-      std::fprintf(stderr, "kith report: could not write %s\n", tmp.c_str());
-      std::filesystem::remove(tmp, ec);
-      return kExitBadInput;
-    }
-  }
-  std::filesystem::rename(tmp, output, ec);
-  if (ec) {
-    std::fprintf(stderr, "kith report: could not write %s: %s\n", output.c_str(), ec.message().c_str());
+  if (const std::string problem = write_file_safely(output, report_html(c)); !problem.empty()) {
+    std::fprintf(stderr, "kith report: %s\n", problem.c_str());
     return kExitBadInput;
   }
   std::printf("%s\n%s\n%s\nwrote %s\n", fitted.summary.BriefReport().c_str(), found.groups.summary().c_str(),

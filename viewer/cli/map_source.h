@@ -1,45 +1,30 @@
-// What `kith open` and `kith render` share: reading the command line's collection argument
-// (ITEMS file, or the hidden --generate N for tests and benchmarks), engine options from flags,
-// and starting the map feed (the live engine when built in, else a still map).
+// What the commands share about their collection argument: loading ITEMS with the problem
+// reported the one way ("kith COMMAND: file:line:column: what", exit 3), for `kith open` and
+// `kith render` the hidden --generate N collection of tests and benchmarks, and --colour.
 // Main thread.
 #pragma once
-#include <memory>
 #include <optional>
 #include <string>
 
 #include "solver/io/collection.h"
-#include "solver/live/engine.h"
 #include "viewer/cli/commands.h"
-#include "viewer/scene/map_feed.h"
+#include "viewer/scene/map_view.h"
 
 namespace kith {
 
-// A tiny flag reader: "--name value", "--name=value" and "--flag".
-class FlagReader {
- public:
-  FlagReader(const Args& args, std::string command) : args_(args), command_(std::move(command)) {}
-  bool flag(const std::string& name);                             // consumes --name
-  std::optional<std::string> value(const std::string& name);      // consumes --name V or --name=V
-  std::vector<std::string> positional();                          // what is left; call last
-  const std::string& error() const { return error_; }             // "" unless a value was missing
-  // Returns false and sets error() for the first unknown flag left.
-  bool finish(std::vector<std::string>* positional);
+// Loads PATH. On a problem prints it to stderr, prefixed "kith COMMAND: " (nothing when COMMAND
+// is empty), and returns nothing: the exit code is then 3.
+std::optional<Collection> load_or_report(const std::string& command, const std::string& path,
+                                         const LoadOptions& options = {});
 
- private:
-  Args args_;
-  std::string command_, error_;
-  std::vector<bool> used_ = std::vector<bool>(args_.size(), false);
-};
-
-bool parse_size(const std::string& text, int* w, int* h);
-bool parse_number(const std::string& text, double* out);
-
-// Loads ITEMS (CSV/TSV/.npy) or generates a test collection ("generated:N"). On failure prints
+// Loads ITEMS (CSV/TSV/.npy) or generates a test collection of `generate` items. On failure prints
 // the problem to stderr and sets *exit_code (3 bad data, 2 bad usage).
 std::optional<Collection> load_items_or_report(const std::string& command, const std::string& path, size_t generate,
                                                int* exit_code);
 
-// Reads --perplexity --theta --blend --seed --paused into options; false (message printed) on bad values.
-bool read_engine_flags(FlagReader& flags, const std::string& command, EngineOptions* options);
+// --colour COLUMN: colours VIEW by that tag column ("plain": one colour; "": leaves it). False,
+// with "kith COMMAND: --colour: ..." on stderr, when the collection has no such column.
+bool choose_colour(const std::string& command, const Collection& collection, const std::string& colour,
+                   ViewOptions* view);
 
 }  // namespace kith

@@ -1,9 +1,6 @@
 // The HTML report page (see report_page.h).
 // [SECTION] text helpers  [SECTION] pictures  [SECTION] page
 #include "viewer/cli/report_page.h"
-#include "viewer/scene/palette.h"
-
-#include <stb_image_write.h>
 
 #include <algorithm>
 #include <array>
@@ -11,6 +8,9 @@
 #include <cstdio>
 #include <map>
 #include <sstream>
+
+#include "solver/io/png_file.h"
+#include "viewer/scene/palette.h"
 
 namespace kith {
 
@@ -20,14 +20,16 @@ std::string html_escape(const std::string& text) {
   std::string out;
   out.reserve(text.size());
   for (char c : text) {
-    switch (c) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      case '\'': out += "&#39;"; break;
-      default: out += c;
-    }
+    const char* entity = c == '&'    ? "&amp;"
+                         : c == '<'  ? "&lt;"
+                         : c == '>'  ? "&gt;"
+                         : c == '"'  ? "&quot;"
+                         : c == '\'' ? "&#39;"
+                                     : nullptr;
+    if (entity)
+      out += entity;
+    else
+      out += c;
   }
   return out;
 }
@@ -129,13 +131,7 @@ class Raster {
         for (int k = 0; k < 3; ++k) p[k] = uint8_t(std::lround(p[k] * (1 - a) + c[size_t(k)] * a));
       }
   }
-  std::string png() const {
-    std::string out;
-    stbi_write_png_to_func(
-        [](void* context, void* data, int size) { static_cast<std::string*>(context)->append((const char*)data, size_t(size)); },
-        &out, size_, size_, 3, pixels_.data(), size_ * 3);
-    return out;
-  }
+  std::string png() const { return png_bytes(pixels_.data(), size_, size_, 3); }
 
  private:
   int size_;

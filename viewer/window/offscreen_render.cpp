@@ -1,18 +1,18 @@
 #include "viewer/window/offscreen_render.h"
 
+#include <backends/imgui_impl_opengl3.h>
 #include <epoxy/egl.h>
 #include <epoxy/gl.h>
 #include <imgui.h>
-#include <backends/imgui_impl_opengl3.h>
-#include <stb_image_write.h>
 
 #include <filesystem>
 #include <memory>
 #include <stdexcept>
 
+#include "solver/io/png_file.h"
 #include "viewer/gl/gl_renderer.h"
-#include "viewer/scene/map_feed.h"
 #include "viewer/panels/ui_style.h"
+#include "viewer/scene/map_feed.h"
 
 namespace kith {
 
@@ -25,9 +25,7 @@ std::string RenderOptions::IsValid() const {
 
 std::string write_png(const std::string& path, const Picture& pic) {
   if (pic.width <= 0 || pic.height <= 0) return "nothing to write";
-  if (!stbi_write_png(path.c_str(), pic.width, pic.height, 4, pic.rgba.data(), pic.width * 4))
-    return "cannot write " + path + " (is the folder there and writable?)";
-  return "";
+  return write_png_file(path, pic.rgba.data(), pic.width, pic.height, 4);
 }
 
 namespace {

@@ -10,9 +10,10 @@
 #include <fstream>
 
 #include "solver/io/collection.h"
+#include "solver/io/safe_file.h"
 #include "solver/measures/judgment_health.h"
-#include "viewer/window/offscreen_render.h"
 #include "viewer/session/session_export.h"
+#include "viewer/window/offscreen_render.h"
 
 extern char** environ;
 
@@ -46,13 +47,9 @@ void remember_session(const std::string& path) {
   for (const auto& p : recent_sessions())
     if (p != abs && list.size() < 10) list.push_back(p);
   fs::create_directories(recent_file().parent_path(), ec);
-  const std::string tmp = recent_file().string() + ".tmp-" + std::to_string(::getpid());
-  {
-    std::ofstream out(tmp, std::ios::trunc);
-    for (const auto& p : list) out << p << "\n";
-    if (!out) return;  // a recent list is a convenience: never an error
-  }
-  fs::rename(tmp, recent_file(), ec);
+  std::string text;
+  for (const auto& p : list) text += p + "\n";
+  write_file_safely(recent_file().string(), text);  // a recent list is a convenience: never an error
 }
 
 std::string open_in_new_window(const std::string& path) {

@@ -1,0 +1,151 @@
+// See safe_file.h.
+#include "solver/io/safe_file.h"
+
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <cerrno>
+#include <cstdio>
+#include <cstring>
+#include <random>
+
+namespace kith {
+namespace {
+
+std::string cause(int err) { return std::strerror(err); }
+
+// The folder part of PATH ("." when it has none) and the file name part.
+void split_path(const std::string& path, std::string* folder, std::string* name) {
+  const size_t slash = path.find_last_of('/');
+  if (slash == std::string::npos) {
+    *folder = ".";
+    *name = path;
+  } else {
+    *folder = slash == 0 ? "/" : path.substr(0, slash);
+    *name = path.substr(slash + 1);
+  }
+}
+
+bool write_all(int fd, const std::string& bytes, int* err) {
+  size_t done = 0;
+  while (done < bytes.size()) {
+    const ssize_t n = ::write(fd, bytes.data() + done, bytes.size() - done);
+    if (n < 0) {
+      if (errno == EINTR) continue;
+      *err = errno;
+      return false;
+    }
+    if (n == 0) {
+      *err = EIO;
+      return false;
+    }
+    done += size_t(n);
+  }
+  return true;
+}
+
+// Best effort: the rename is done and the new file complete; a folder that cannot be synced only
+// means the rename might not survive a power cut.
+void fsync_folder(const std::string& folder) {
+  const int fd = ::open(folder.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+  if (fd < 0) return;
+  ::fsync(fd);
+  ::close(fd);
+}
+
+// Moves TMP to PATH; without `replace`, only if PATH does not exist (atomically where the file
+// system can: renameat2's RENAME_NOREPLACE, else a hard link).
+int move_into_place(const std::string& tmp, const std::string& path, bool replace) {
+  if (replace) return ::rename(tmp.c_str(), path.c_str()) == 0 ? 0 : errno;
+  if (::renameat2(AT_FDCWD, tmp.c_str(), AT_FDCWD, path.c_str(), RENAME_NOREPLACE) == 0) return 0;
+  if (errno != EINVAL && errno != ENOSYS) return errno;
+  if (::link(tmp.c_str(), path.c_str()) != 0) return errno;
+  ::unlink(tmp.c_str());
+  return 0;
+}
+
+}  // namespace
+
+bool is_sqlite_file(const std::string& path) {
+  const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC | O_NONBLOCK);
+  if (fd < 0) return false;
+  char head[16] = {};
+  ssize_t got = 0;
+  while (got < 16) {
+    const ssize_t n = ::read(fd, head + got, size_t(16 - got));
+    if (n < 0 && errno == EINTR) continue;
+    if (n <= 0) break;
+    got += n;
+  }
+  ::close(fd);
+  return got == 16 && std::memcmp(head, "SQLite format 3\0", 16) == 0;
+}
+
+std::string check_write_target(const std::string& path, bool replace) {
+  if (path.empty()) return "no file name given";
+  struct stat st {};
+  if (::stat(path.c_str(), &st) != 0) return "";  // nothing there (or a dangling link, replaced as a name)
+  if (S_ISDIR(st.st_mode)) return path + ": is a folder";
+  if (is_sqlite_file(path)) return path + ": a SQLite database (a session?) is there; kith will not overwrite it";
+  if (!replace) return path + ": a file is already there; kith does not write over it";
+  return "";
+}
+
+int create_new_file(const std::string& name) {
+  return ::open(name.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0666);
+}
+
+int create_temp_beside(const std::string& path, std::string* temp_path, std::string* error) {
+  std::string folder, name;
+  split_path(path, &folder, &name);
+  std::random_device entropy;
+  std::mt19937_64 draw((uint64_t(entropy()) << 32) ^ entropy() ^ (uint64_t(::getpid()) << 16));
+  int err = EEXIST;
+  for (int attempt = 0; attempt < 64 && err == EEXIST; ++attempt) {
+    char suffix[24];
+    std::snprintf(suffix, sizeof suffix, "%012llx", static_cast<unsigned long long>(draw() & 0xffffffffffffULL));
+    const std::string candidate = folder + "/." + name + "." + suffix + ".tmp";
+    const int fd = create_new_file(candidate);
+    if (fd >= 0) {
+      *temp_path = candidate;
+      return fd;
+    }
+    err = errno;
+  }
+  *error = path + ": cannot write (" + cause(err) + ")";
+  return -1;
+}
+
+std::string write_file_safely(const std::string& path, const std::string& bytes, const SafeWriteOptions& options) {
+  if (std::string problem = check_write_target(path, options.replace); !problem.empty()) return problem;
+  std::string tmp, error;
+  const int fd = create_temp_beside(path, &tmp, &error);
+  if (fd < 0) return error;
+  auto fail = [&](const std::string& message) {
+    ::unlink(tmp.c_str());
+    return message;
+  };
+  int err = 0;
+  if (!write_all(fd, bytes, &err)) {
+    ::close(fd);
+    return fail(path + ": writing failed (" + cause(err) + ")");
+  }
+  if (::fsync(fd) != 0) {
+    err = errno;
+    ::close(fd);
+    return fail(path + ": writing failed (" + cause(err) + ")");
+  }
+  if (::close(fd) != 0) return fail(path + ": writing failed (" + cause(errno) + ")");
+  // Checked again just before the rename: a session may have appeared there meanwhile.
+  if (std::string problem = check_write_target(path, options.replace); !problem.empty()) return fail(problem);
+  if (const int e = move_into_place(tmp, path, options.replace); e != 0)
+    return fail(e == EEXIST ? path + ": a file is already there; kith does not write over it"
+                            : path + ": cannot replace (" + cause(e) + ")");
+  std::string folder, name;
+  split_path(path, &folder, &name);
+  fsync_folder(folder);
+  return "";
+}
+
+}  // namespace kith

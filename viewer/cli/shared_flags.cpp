@@ -1,0 +1,79 @@
+// See shared_flags.h.
+#include "viewer/cli/shared_flags.h"
+
+#include <cassert>
+#include <cstdio>
+
+namespace kith {
+namespace {
+
+// The option line of one map setting, ending in its default: `fixed` when given, else the value in `d`.
+std::string map_flag(const std::string& name, const MapParameters& d, const std::string& fixed) {
+  auto is = [&](const std::string& value) { return " (default: " + (fixed.empty() ? value : fixed) + ")"; };
+  if (name == "--dims") return option_line("--dims 2|3", "map dimensions" + is(std::to_string(d.dims)));
+  if (name == "--perplexity")
+    return option_line(
+        "--perplexity P",
+        "about how many neighbours each item listens to, above 0 and below the\n"
+        "number of items" +
+            is(number_text(d.perplexity) +
+               (d.perplexity == MapParameters::kDefaultPerplexity ? ", or (N - 1) / 3 on a small collection" : "")));
+  if (name == "--theta")
+    return option_line("--theta T", "Barnes-Hut angle, 0 (exact) .. 1.5" + is(number_text(d.theta)));
+  if (name == "--dof")
+    return option_line("--dof D", "Student-t degrees of freedom of the map, 0.05 .. 100" + is(number_text(d.dof)));
+  if (name == "--blend")
+    return option_line("--blend B", "weight of judgments against features, 0 .. 1000" + is(number_text(d.blend)));
+  if (name == "--learning-rate")
+    return option_line("--learning-rate R", "step size; 0 = auto, max(N / 48, 50)" +
+                                                is(d.learning_rate > 0 ? number_text(d.learning_rate) : "auto"));
+  if (name == "--seed")
+    return option_line("--seed S", "random seed: neighbour graph, start, questions" + is(std::to_string(d.seed)));
+  if (name == "--iterations")
+    return option_line("--iterations N",
+                       "gradient steps, the first 250 with early exaggeration" + is(std::to_string(d.iterations)));
+  assert(false && "not a map setting");
+  return "";
+}
+
+std::string lines_for(const std::vector<std::string>& names, const MapParameters& defaults, const std::string& fixed) {
+  std::string out;
+  for (const std::string& name : names) out += map_flag(name, defaults, fixed);
+  return out;
+}
+
+}  // namespace
+
+std::string map_flags(const std::vector<std::string>& names, const MapParameters& defaults) {
+  return lines_for(names, defaults, "");
+}
+
+std::string session_map_flags(const std::vector<std::string>& names) {
+  return lines_for(names, MapParameters{}, "the session's");
+}
+
+bool read_map_flags(FlagReader& f, MapParameters* s) {
+  auto number = [&](const char* name, double* target) { return !f.declared(name) || f.number(name, target); };
+  auto whole = [&](const char* name, auto* target) { return !f.declared(name) || f.integer(name, target); };
+  return whole("--dims", &s->dims) && number("--perplexity", &s->perplexity) && number("--theta", &s->theta) &&
+         number("--dof", &s->dof) && number("--blend", &s->blend) && number("--learning-rate", &s->learning_rate) &&
+         (!f.declared("--seed") || f.seed("--seed", &s->seed)) && whole("--iterations", &s->iterations);
+}
+
+std::string load_flags() {
+  return "  --id COLUMN           the column holding item ids (default: 'id', else the first column of\n"
+         "                        unique text, else items are numbered)\n"
+         "  --exclude A,B,...     numeric columns that are not features (they become tags)\n"
+         "  --pictures COLUMN     the column of picture paths, relative to the table's folder (default:\n"
+         "                        the text column whose values end in .png, .jpg, ...)\n"
+         "  --tags TAGS.csv       for a .npy file: a CSV with one row per array row holding ids and tags\n";
+}
+
+bool read_load_flags(FlagReader& f, LoadOptions* o) {
+  o->id_column = f.text("--id", o->id_column);
+  o->picture_column = f.text("--pictures", o->picture_column);
+  o->tags_csv = f.text("--tags", o->tags_csv);
+  return f.list("--exclude", &o->exclude);
+}
+
+}  // namespace kith
