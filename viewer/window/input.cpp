@@ -288,28 +288,39 @@ bool toggle_view(App& a, int key, int) {
 }
 
 const std::vector<KeyRow> kTable = {
-    // ---- the mouse (listed only) ----
+    // ---- the mouse, and the keys that do the same ----
     about("left drag on an item", "move it (then P pin / Esc let go / T teach)"),
-    about("left drag on empty space", "turn the map"),
+    {"left drag on empty space, arrows", "turn the map",
+     {plain(keys::kLeft), plain(keys::kRight), plain(keys::kUp), plain(keys::kDown)}, nullptr, arrow_orbit},
+    {"right or middle drag, shift + arrows", "slide the map",
+     {shifted(keys::kLeft), shifted(keys::kRight), shifted(keys::kUp), shifted(keys::kDown)}, nullptr, arrow_pan},
+    {"wheel, + / -, Page Up / Page Down", "closer / farther",
+     any_of({keys::kEqual, keys::kKpAdd, keys::kPageUp, keys::kMinus, keys::kKpSubtract, keys::kPageDown}), nullptr,
+     [](App& a, int key, int) {
+       const bool closer = key == keys::kEqual || key == keys::kKpAdd || key == keys::kPageUp;
+       return a.view->camera().zoom(closer ? 1.f : -1.f), true;
+     }},
     about("shift + left drag", "select with a box"),
-    about("right or middle drag", "slide the map"),
-    about("wheel", "closer / farther"),
     about("click, shift + click", "select, add to the selection"),
     // ---- after a drag: the release choice ----
-    {"P or Enter (after a drag)", "pin it where it was dropped", {any(keys::letter('p')), any(keys::kEnter)}, choosing,
-     [](App& a, int, int) { return a.interaction->choose_pin(), a.say("pinned"), true; }},
-    {"Esc or Backspace (after a drag)", "let it go", {any(keys::kEscape), any(keys::kBackspace)}, choosing,
-     [](App& a, int, int) { return a.interaction->choose_release(), a.say("let go"), true; }},
-    {"T (after a drag)", "teach: turn the move into judgments, then let go", {any(keys::letter('t'))}, choosing,
-     [](App& a, int, int) {
+    {"P or Enter / Esc / T (after a drag)", "pin it where it was dropped / let it go / teach (the move as judgments)",
+     {any(keys::letter('p')), any(keys::kEnter), any(keys::kEscape), any(keys::kBackspace), any(keys::letter('t'))},
+     choosing,
+     [](App& a, int key, int) {
+       if (key == keys::letter('p') || key == keys::kEnter) return a.interaction->choose_pin(), a.say("pinned"), true;
+       if (key == keys::kEscape || key == keys::kBackspace)
+         return a.interaction->choose_release(), a.say("let go"), true;
        if (!a.interaction->can_teach()) return false;
        return a.interaction->choose_teach(), a.say("taught"), true;
      }},
     // ---- the judgments panel, open (panels shown or not) ----
-    {"ctrl + up / down (judgments open)", "show the previous / next judgment", {ctrl(keys::kUp), ctrl(keys::kDown)},
-     judgments_open, [](App& a, int key, int) { return a.judgments_panel->choose_step(key == keys::kUp ? -1 : 1), true; }},
-    {"Delete (judgments open)", "retract / restore the judgment shown", {any(keys::kDelete)}, judgments_open,
-     [](App& a, int, int) { return a.judgments_panel->toggle_chosen(), true; }},
+    {"ctrl + up / down, Delete", "(judgments open) show the previous / next judgment; retract / restore it",
+     {ctrl(keys::kUp), ctrl(keys::kDown), any(keys::kDelete)}, judgments_open,
+     [](App& a, int key, int) {
+       if (key == keys::kDelete) a.judgments_panel->toggle_chosen();
+       else a.judgments_panel->choose_step(key == keys::kUp ? -1 : 1);
+       return true;
+     }},
     // ---- the asking screens: they read their keys themselves; these rows describe them ----
     {nullptr, "", {any(KeyChord::kAnyKey)}, asking_on, ask},
     about("A", "ask pair questions (again: grid questions), Esc stops"),
@@ -321,14 +332,6 @@ const std::vector<KeyRow> kTable = {
     about("O", "own judgment: click anchor, nearer, farther; Enter stores"),
     about("B", "big type for a shared screen"),
     // ---- the map ----
-    {"arrows", "turn the map",
-     {plain(keys::kLeft), plain(keys::kRight), plain(keys::kUp), plain(keys::kDown)}, nullptr, arrow_orbit},
-    {"shift + arrows", "slide the map",
-     {shifted(keys::kLeft), shifted(keys::kRight), shifted(keys::kUp), shifted(keys::kDown)}, nullptr, arrow_pan},
-    {"+ / -, Page Up / Page Down", "closer / farther", any_of({keys::kEqual, keys::kKpAdd, keys::kPageUp}), nullptr,
-     [](App& a, int, int) { return a.view->camera().zoom(1.f), true; }},
-    {nullptr, "", any_of({keys::kMinus, keys::kKpSubtract, keys::kPageDown}), nullptr,
-     [](App& a, int, int) { return a.view->camera().zoom(-1.f), true; }},
     {"F", "fit the whole map", {any(keys::letter('f'))}, nullptr,
      [](App& a, int, int) {
        a.asking && a.asking->desk().asking() ? a.asking->frame_map() : a.view->fit_all(true);
@@ -345,19 +348,20 @@ const std::vector<KeyRow> kTable = {
      [](App& a, int, int) { return a.toggle_pause(), true; }},
     {"shift + R", "restart from the start map", {shifted(keys::letter('r'))}, nullptr,
      [](App& a, int, int) { return a.post(cmd::Restart{}), a.say("restarted from the start map"), true; }},
-    {"P / U", "pin / unpin the selection", {any(keys::letter('p'))}, nullptr,
-     [](App& a, int, int) {
+    {"P / U", "pin / unpin the selection", {any(keys::letter('p')), any(keys::letter('u'))}, nullptr,
+     [](App& a, int key, int) {
+       if (key == keys::letter('u')) return a.interaction->unpin_selection(), a.say("unpinned the selection"), true;
        a.interaction->pin_selection();
        return a.say("pinned " + std::to_string(a.view->selection().size()) + " where they are"), true;
      }},
-    {nullptr, "", {any(keys::letter('u'))}, nullptr,
-     [](App& a, int, int) { return a.interaction->unpin_selection(), a.say("unpinned the selection"), true; }},
     {"/", "search by id or tag (column=value for exact)", {plain(keys::kSlash)}, nullptr,
      [](App& a, int, int) { return a.show_panels = true, a.focus_search = true, true; }},
-    {"ctrl + A", "select all", {ctrl(keys::kA)}, nullptr, [](App& a, int, int) { return a.select_all(), true; }},
-    {"Esc", "close the help; clear the selection", {any(keys::kEscape)}, nullptr,
-     [](App& a, int, int) {
-       if (a.show_help) {
+    {"ctrl + A, Esc", "select all, clear the selection (Esc: first closes this help)",
+     {ctrl(keys::kA), any(keys::kEscape)}, nullptr,
+     [](App& a, int key, int) {
+       if (key == keys::kA) {
+         a.select_all();
+       } else if (a.show_help) {
          a.show_help = false;
        } else {
          a.view->selection().clear();
