@@ -223,22 +223,18 @@ TEST_CASE("viewer contract: through a session, a refused setting writes nothing 
 // ---- the real window ------------------------------------------------------------------------
 
 namespace {
-using kith::test::have_xvfb;
 using kith::test::kXvfb;
+using kith::test::open_with_script;
 int run(const std::string& command) { return kith::test::run_command(command); }
-void write(const std::string& path, const std::string& text) { std::ofstream(path) << text; }
 }  // namespace
 
 TEST_CASE("viewer contract window: the state dump lists every command, a slider drag is posted once, when let go") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("contract-slider");
-  const std::string open = std::string(kXvfb) + KITH_BINARY + " open --generate 200 --frames 200 --script ";
+  const std::string args = "--generate 200 --frames 200";
   // First where the blend slider is drawn (the panels open in the same place every time).
-  write(dir + "/where.txt", "20 dump " + dir + "/where.json\n21 quit\n");
-  REQUIRE_MESSAGE(run(open + dir + "/where.txt > " + dir + "/log1.txt 2>&1") == 0, "see " << dir << "/log1.txt");
+  REQUIRE_MESSAGE(open_with_script(args, dir, "where", "20 dump " + dir + "/where.json\n21 quit\n") == 0,
+                  "see " << dir << "/where.log");
   const auto where = load_json(dir + "/where.json");
   std::set<std::string> names;
   for (const auto& n : where["commands"]) names.insert(n.get<std::string>());
@@ -255,8 +251,7 @@ TEST_CASE("viewer contract window: the state dump lists every command, a slider 
   std::string script = "30 move " + std::to_string(int(x0) + 20) + " " + std::to_string(y) + "\n31 press left\n";
   for (int k = 0; k < 10; ++k) script += std::to_string(32 + k) + " move +9 +0\n";
   script += "44 release left\n46 wait-settle 3\n60 dump " + dir + "/state.json\n61 quit\n";
-  write(dir + "/drag.txt", script);
-  REQUIRE_MESSAGE(run(open + dir + "/drag.txt > " + dir + "/log2.txt 2>&1") == 0, "see " << dir << "/log2.txt");
+  REQUIRE_MESSAGE(open_with_script(args, dir, "drag", script) == 0, "see " << dir << "/drag.log");
   const auto state = load_json(dir + "/state.json");
   CHECK(count_kind(state, "set-blend") == 1);  // ten frames of dragging, one command
   const double now = state["parameters"]["blend"];
@@ -266,21 +261,17 @@ TEST_CASE("viewer contract window: the state dump lists every command, a slider 
 }
 
 TEST_CASE("viewer contract window: a 60-item session with every slider at its ends still opens, and refusals write nothing") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("contract-extremes");
   const std::string path = dir + "/s.kith";
   SessionStore::create(path, synthetic_collection(60, 4));
-  write(dir + "/script.txt",
+  const std::string script =
         "20 set blend min\n22 set blend max\n24 set theta min\n26 set theta max\n"
         "28 set perplexity min\n30 wait-settle 3\n40 set perplexity max\n42 wait-settle 3\n"
         "50 set perplexity 60\n52 set theta 9.99\n54 set blend -1\n"
-        "60 dump " + dir + "/state.json\n61 quit\n");
-  const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open " + path + " --frames 300 --script " + dir +
-                          "/script.txt > " + dir + "/log.txt 2>&1";
-  REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+        "60 dump " + dir + "/state.json\n61 quit\n";
+  REQUIRE_MESSAGE(open_with_script(path + " --frames 300", dir, "extremes", script) == 0,
+                  "kith open failed: see " << dir << "/extremes.log");
   const auto state = load_json(dir + "/state.json");
   double hi[3] = {0, 0, 0};
   for (size_t k = 0; k < kSettingCount; ++k) hi[k] = state["controls"][k]["hi"];
