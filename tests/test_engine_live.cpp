@@ -8,7 +8,9 @@
 #include <cmath>
 #include <random>
 #include <set>
+#include <string>
 #include <thread>
+#include <variant>
 
 #include "solver/live/engine.h"
 
@@ -153,6 +155,107 @@ TEST_CASE("engine: a judgment bends the map, retracted, it stops acting") {
   s = wait_until(e, [&](const Snapshot& s) { return s.iteration > it + 400 || s.settled; }, 30s);
   CHECK(d2(*s, 0, 60) > d2(*s, 0, 1));  // back with its own cluster
   CHECK(s->judgment_cost == 0.0);
+}
+
+TEST_CASE("engine: every command alternative has a distinct, non-empty name") {
+  std::set<std::string> names;
+  for (const char* name : kCommandNames) {
+    REQUIRE(name != nullptr);
+    CHECK(std::string(name).size() > 0);
+    names.insert(name);
+  }
+  CHECK(names.size() == std::variant_size_v<CommandBody>);  // distinct, one per alternative
+  // command_name() reads the same table for a value of any alternative.
+  CHECK(std::string(command_name(cmd::SetTheta{})) == "set-theta");
+  CHECK(std::string(command_name(cmd::SetFeatures{})) == kCommandNames.back());
+  CommandBody b = cmd::Pin{};
+  CHECK(std::string(command_name(b)) == kCommandNames[b.index()]);
+}
+
+TEST_CASE("engine: the snapshot carries the judgment set and the parameters in force, and what it refused") {
+  Collection c = clusters(20);  // 80 items
+  Judgment j;
+  j.id = 5, j.anchor = 3, j.nearer = 50, j.farther = 4;
+  Engine e(c, test_options(), {j});
+  e.start();
+  auto s = wait_until(e, [](const Snapshot& s) { return s.iteration > 5; });
+  REQUIRE(s->judgments != nullptr);
+  REQUIRE(s->judgments->size() == 1);
+  CHECK(s->judgments->find(5) != nullptr);
+  CHECK(s->parameters.perplexity == 20.0);
+  CHECK(s->parameters.blend == 1.0);
+  CHECK(s->refusals.empty());
+  // Unchanged judgments: the very same set in the next snapshots (publishing copies a pointer).
+  const auto first_set = s->judgments;
+  const uint64_t v0 = first_set->version();
+  s = wait_until(e, [&](const Snapshot& t) { return t.iteration > s->iteration + 20; });
+  CHECK(s->judgments.get() == first_set.get());
+
+  // Added without an id: the next free one; a new set with a larger version.
+  Judgment k;
+  k.anchor = 70, k.nearer = 1, k.farther = 71;
+  uint64_t seq = e.post(cmd::AddJudgment{k});
+  s = wait_until(e, [&](const Snapshot& t) { return t.last_command >= seq; });
+  REQUIRE(s->judgments->size() == 2);
+  CHECK(s->judgments->all()[1].id == 6);
+  CHECK(s->judgments->version() > v0);
+  CHECK(first_set->size() == 1);  // an earlier set is never changed
+  const uint64_t v1 = s->judgments->version();
+  // Retracted, then restored: a new version each time.
+  seq = e.post(cmd::RetractJudgment{5, true});
+  s = wait_until(e, [&](const Snapshot& t) { return t.last_command >= seq; });
+  CHECK(s->judgments->find(5)->retracted);
+  CHECK(s->judgments->active() == 1);
+  const uint64_t v2 = s->judgments->version();
+  CHECK(v2 > v1);
+  seq = e.post(cmd::RetractJudgment{5, false});
+  s = wait_until(e, [&](const Snapshot& t) { return t.last_command >= seq; });
+  CHECK_FALSE(s->judgments->find(5)->retracted);
+  CHECK(s->judgments->active() == 2);
+  CHECK(s->judgments->version() > v2);
+
+  // Settings: each one in force as soon as it is taken; the perplexity once its rebuild is in.
+  e.post(cmd::SetBlend{3.0});
+  e.post(cmd::SetTheta{0.8});
+  e.post(cmd::SetLearningRate{50.0});
+  seq = e.post(cmd::SetExaggeration{2.0});
+  s = wait_until(e, [&](const Snapshot& t) { return t.last_command >= seq; });
+  CHECK(s->parameters.blend == 3.0);
+  CHECK(s->parameters.theta == 0.8);
+  CHECK(s->parameters.learning_rate == 50.0);
+  CHECK(s->parameters.exaggeration == 2.0);
+  seq = e.post(cmd::SetPerplexity{10.0});
+  s = wait_until(e, [&](const Snapshot& t) { return t.last_command >= seq && !t.rebuilding; });
+  CHECK(s->parameters.perplexity == 10.0);
+  CHECK(s->refusals.empty());
+
+  // Refused: listed with the command's name and MapParameters' reason; nothing changes.
+  const uint64_t bad_theta = e.post(cmd::SetTheta{9.99});
+  const uint64_t bad_perplexity = e.post(cmd::SetPerplexity{80.0});  // not below the 80 items
+  const uint64_t bad_retract = e.post(cmd::RetractJudgment{999});
+  s = wait_until(e, [&](const Snapshot& t) { return t.last_command >= bad_retract && !t.rebuilding; });
+  REQUIRE(s->refusals.size() == 3);
+  CHECK(s->refusals[0].seq == bad_theta);
+  CHECK(s->refusals[0].command == "set-theta");
+  CHECK(s->refusals[0].reason == MapParameters::check_theta(9.99));
+  CHECK(s->refusals[1].seq == bad_perplexity);
+  CHECK(s->refusals[1].command == "set-perplexity");
+  CHECK(s->refusals[1].reason == MapParameters::check_perplexity(80.0, 80));
+  CHECK(s->refusals[2].command == "retract-judgment");
+  CHECK(s->refusals[2].reason == "judgment 999 is unknown");
+  CHECK(s->last_rejected == s->refusals[2].reason);
+  CHECK(s->parameters.theta == 0.8);
+  CHECK(s->parameters.perplexity == 10.0);
+  CHECK(s->judgments->active() == 2);
+  // Only the last few are kept, oldest first.
+  uint64_t last = 0;
+  for (int r = 0; r < 10; ++r) last = e.post(cmd::SetBlend{-1.0 - r});
+  s = wait_until(e, [&](const Snapshot& t) { return t.last_command >= last; });
+  REQUIRE(s->refusals.size() == Snapshot::kMaxRefusals);
+  CHECK(s->refusals.back().seq == last);
+  CHECK(s->refusals.front().seq == last - Snapshot::kMaxRefusals + 1);
+  CHECK(s->parameters.blend == 3.0);
+  e.stop();
 }
 
 TEST_CASE("engine: snapshots carry trustworthiness and neighbour recall, measured now and then") {

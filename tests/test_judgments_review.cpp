@@ -225,10 +225,22 @@ TEST_CASE("judgment review: agreement history keeps each person's series and a c
 // ---- the panel's actions, without a window -------------------------------------------------------
 
 namespace {
+std::vector<Judgment> six_judgments() {
+  std::vector<Judgment> js;
+  for (int k = 0; k < 6; ++k) {
+    Judgment j;
+    j.id = k + 1;
+    j.anchor = k, j.nearer = k + 1, j.farther = k + 20;
+    j.person = k % 2 ? "Ada" : "Bram";
+    js.push_back(j);
+  }
+  return js;
+}
+
 struct PanelRig {
   Collection collection = synthetic_collection(50, 4);
   MockRenderer renderer;
-  StillFeed feed{collection.ids, rough_positions(collection)};
+  StillFeed feed{collection.ids, rough_positions(collection), six_judgments()};
   MapView view{collection, renderer};
   std::vector<CommandBody> posted;
   std::string refuse;     // when set, every post is refused with this message
@@ -237,20 +249,13 @@ struct PanelRig {
   std::unique_ptr<JudgmentsPanel> panel;
   PanelRig() {
     view.set_snapshot(feed.latest());
-    std::vector<Judgment> js;
-    for (int k = 0; k < 6; ++k) {
-      Judgment j;
-      j.id = k + 1;
-      j.anchor = k, j.nearer = k + 1, j.farther = k + 20;
-      j.person = k % 2 ? "Ada" : "Bram";
-      js.push_back(j);
-    }
-    view.set_judgments(js);
     JudgmentsPanelLinks links;
     links.post = [this](CommandBody& body) {
       if (!refuse.empty()) return refuse;
       if (auto* a = std::get_if<cmd::AddJudgment>(&body)) a->judgment.id = next_id++;
       posted.push_back(body);
+      feed.post(body);                   // to the map, and the window shows its next snapshot
+      view.set_snapshot(feed.latest());
       return std::string();
     };
     links.say = [this](const std::string& s) { said.push_back(s); };
@@ -394,15 +399,15 @@ TEST_CASE(
   {
     SessionLink link(path);
     MockRenderer renderer;
-    StillFeed still{link.collection().ids, rough_positions(link.collection())};
+    StillFeed still{link.collection().ids, rough_positions(link.collection()), link.judgments()};
     auto feed = link.recording(still);
     MapView view{link.collection(), renderer};
     view.set_snapshot(still.latest());
-    view.set_judgments(link.judgments());
     JudgmentsPanelLinks links;
     links.post = [&](CommandBody& body) {  // the window's path: prepare (the session write), then post
       if (std::string refused = feed->prepare(body); !refused.empty()) return refused;
       feed->post(body);
+      view.set_snapshot(still.latest());  // the window shows the next snapshot
       return std::string();
     };
     JudgmentsPanel panel(link.collection(), view, links);
@@ -415,11 +420,10 @@ TEST_CASE(
     CHECK(panel.set_retracted(1, true).empty());
     // A judgment the session does not know (as if made elsewhere): the session refuses to retract
     // it, so the list stays as it was and says why.
-    std::vector<Judgment> with_stranger = view.judgments();
     Judgment stranger;
     stranger.id = 99, stranger.anchor = 9, stranger.nearer = 10, stranger.farther = 11;
-    with_stranger.push_back(stranger);
-    view.set_judgments(with_stranger);
+    still.post(cmd::AddJudgment{stranger});  // straight to the map, past the session
+    view.set_snapshot(still.latest());
     const std::string refused = panel.set_retracted(3, true);
     CHECK_FALSE(refused.empty());
     CHECK(refused.find("could not write to the session") != std::string::npos);

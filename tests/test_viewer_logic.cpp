@@ -341,7 +341,9 @@ TEST_CASE("viewer scene: legend counts tags, measures ramp, cards respect the li
   j.anchor = 3;
   j.nearer = 4;
   j.farther = 5;
-  r.view.set_judgments({j, j});
+  r.feed.post(cmd::AddJudgment{j});  // the view shows the judgments the snapshot carries
+  r.feed.post(cmd::AddJudgment{j});
+  r.view.set_snapshot(r.feed.latest());
   r.view.frame(0.f, 1000, 700);
   CHECK(r.view.colour_of(3).r == doctest::Approx(r.view.palette().ramp(1.f).r));
   CHECK(r.view.colour_of(9).r == doctest::Approx(r.view.palette().ramp(0.f).r));

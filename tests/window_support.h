@@ -4,6 +4,7 @@
 #include <sys/wait.h>
 
 #include <cstdlib>
+#include <fstream>
 #include <string>
 
 namespace kith::test {
@@ -13,10 +14,31 @@ constexpr const char* kXvfb = "xvfb-run -a -s '-screen 0 1280x800x24' ";
 
 inline bool have_xvfb() { return std::system("command -v xvfb-run >/dev/null 2>&1") == 0; }
 
+// At the top of a window test: without xvfb-run, say so and skip the rest of the test.
+#define KITH_SKIP_WITHOUT_XVFB()                               \
+  do {                                                         \
+    if (!kith::test::have_xvfb()) {                            \
+      MESSAGE("xvfb-run not installed: window test skipped");  \
+      return;                                                  \
+    }                                                          \
+  } while (0)
+
+// Runs `kith open ARGS --script DIR/NAME.txt` under Xvfb with SCRIPT written to that file, its
+// output in DIR/NAME.log; the exit code.
+inline int open_with_script(const std::string& args, const std::string& dir, const std::string& name,
+                            const std::string& script);
+
 // Runs COMMAND through the shell; its exit code, -1 if it did not exit normally.
 inline int run_command(const std::string& command) {
   const int status = std::system(command.c_str());
   return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+inline int open_with_script(const std::string& args, const std::string& dir, const std::string& name,
+                            const std::string& script) {
+  std::ofstream(dir + "/" + name + ".txt") << script;
+  return run_command(std::string(kXvfb) + KITH_BINARY + " open " + args + " --script " + dir + "/" + name + ".txt > " +
+                     dir + "/" + name + ".log 2>&1");
 }
 
 }  // namespace kith::test

@@ -124,4 +124,10 @@ static_assert(kCommandNames.size() == std::variant_size_v<CommandBody>, "every c
 // The item a command is about, or -1.
 int32_t command_item(const CommandBody& body);
 
+// For a command that changes a map setting (SetBlend, SetTheta, SetLearningRate, SetExaggeration,
+// SetPerplexity): MapParameters' message when its value is impossible on a map of item_count
+// items (0: the perplexity is not checked against a size), else "". "" for every other command.
+// The engine refuses with it; the window checks with it before anything is recorded.
+std::string setting_problem(const CommandBody& body, size_t item_count);
+
 }  // namespace kith

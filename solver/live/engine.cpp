@@ -11,6 +11,9 @@
 //                                   and is held there until ClearDrag; its neighbours follow
 //   SetBlend/Theta/LearningRate/Exaggeration   numbers, taken at once
 //   SetPerplexity (heavy)           neighbours and P rebuilt on the helper thread, then swapped
+// A setting is checked by setting_problem() (MapParameters) first; a refused command changes
+// nothing. Each snapshot carries the judgment set in force (a new JudgmentSet, version + 1, after
+// the judgments changed, else the same one) and the parameters in force.
 //   InsertItems (heavy)             features re-prepared, neighbours and P rebuilt on the helper;
 //                                   each new item starts at the affinity-weighted mean of its
 //                                   existing neighbours' positions, and for a while only the new
@@ -181,6 +184,7 @@ class EngineModel : public LiveModel {
   // ---- light commands ----
   std::string apply(const CommandBody& body) override {
     ensure_ready();
+    if (std::string e = setting_problem(body, n()); !e.empty()) return e;
     try {
       return std::visit([&](const auto& c) { return apply_one(c); }, body);
     } catch (const std::exception& e) {
@@ -200,17 +204,22 @@ class EngineModel : public LiveModel {
     Judgment j = c.judgment;
     const std::string problem = judgment_problem(j, n());
     if (!problem.empty()) return "judgment: " + problem;
-    if (j.id < 0) {  // not stored yet: the next free id, deterministic for replay
+    // The window's judgments come with the id the feed or the session gave them; one posted
+    // straight to the engine (tests, benchmarks) without one gets the next free id, deterministic
+    // for replay.
+    if (j.id < 0) {
       int64_t top = 0;
       for (const Judgment& k : objective_.judgments()) top = std::max(top, k.id);
       j.id = top + 1;
     }
     objective_.add_judgment(j);
+    judgments_changed_ = true;
     return "";
   }
   std::string apply_one(const cmd::RetractJudgment& c) {
     if (!objective_.set_retracted(c.judgment_id, c.retracted))
       return "judgment " + std::to_string(c.judgment_id) + " is unknown";
+    judgments_changed_ = true;
     return "";
   }
   std::string apply_one(const cmd::Pin& c) {
@@ -248,25 +257,21 @@ class EngineModel : public LiveModel {
     return "";
   }
   std::string apply_one(const cmd::SetBlend& c) {
-    if (std::string e = MapParameters::check_blend(c.blend); !e.empty()) return e;
     objective_.set_blend(c.blend);
     options_.blend = c.blend;
     return "";
   }
   std::string apply_one(const cmd::SetTheta& c) {
-    if (std::string e = MapParameters::check_theta(c.theta); !e.empty()) return e;
     options_.theta = c.theta;
     if (neighbour_) neighbour_->set_theta(c.theta);
     return "";
   }
   std::string apply_one(const cmd::SetLearningRate& c) {
-    if (std::string e = MapParameters::check_learning_rate(c.learning_rate); !e.empty()) return e;
     schedule_.learning_rate = c.learning_rate;
     options_.learning_rate = c.learning_rate;
     return "";
   }
   std::string apply_one(const cmd::SetExaggeration& c) {
-    if (std::string e = MapParameters::check_exaggeration(c.exaggeration); !e.empty()) return e;
     exaggeration_ = c.exaggeration;
     options_.exaggeration = c.exaggeration;
     return "";
@@ -317,7 +322,8 @@ class EngineModel : public LiveModel {
     for (size_t i = 0; i < remap.size(); ++i)
       if (remap[i] >= 0) ids.push_back(std::move(ids_[i]));
     ids_ = std::move(ids);
-    objective_.remove_items(rows);
+    objective_.remove_items(rows);  // and the judgments naming them
+    judgments_changed_ = true;
     optimizer_.remove_rows(rows);
     if (p_) {
       p_ = drop_items(*p_, remap, size_t(kept));
@@ -354,13 +360,14 @@ class EngineModel : public LiveModel {
     if (const auto* c = std::get_if<cmd::SetPerplexity>(&body)) {
       const double perplexity = c->perplexity;
       if (!has_features_) return *error = "perplexity: this collection has no features", nullptr;
-      if (std::string e = MapParameters::check_perplexity(perplexity, n()); !e.empty()) return *error = e, nullptr;
+      if (std::string e = setting_problem(body, n()); !e.empty()) return *error = e, nullptr;
       std::shared_ptr<const Points> x = prepared_;
       return [this, x, perplexity, o]() -> Finish {
         auto p = build_affinities(*x, perplexity, o);
         return [this, p, perplexity] {
           p_ = p;
           perplexity_ = perplexity;
+          options_.perplexity = perplexity;
           neighbour_->set_affinities(p_);
         };
       };
@@ -514,6 +521,13 @@ class EngineModel : public LiveModel {
   }
 
   void fill(Snapshot& s) override {
+    if (judgments_changed_ || !judgment_set_) {
+      judgment_set_ = std::make_shared<const JudgmentSet>(objective_.judgments(), ++judgment_version_);
+      judgments_changed_ = false;
+    }
+    s.judgments = judgment_set_;
+    s.parameters = options_;
+    s.parameters.perplexity = perplexity_;
     s.positions = y_;
     s.ids = ids_;
     s.pinned.assign(n(), 0);
@@ -586,6 +600,9 @@ class EngineModel : public LiveModel {
   double lr_scale_ = 1.0;
   std::shared_ptr<const SparseAffinities> p_;
   std::shared_ptr<NeighbourTerm> neighbour_;
+  std::shared_ptr<const JudgmentSet> judgment_set_;  // as last published; rebuilt when judgments_changed_
+  uint64_t judgment_version_ = 0;
+  bool judgments_changed_ = true;
   BlendedObjective objective_;
   GradientDescent optimizer_;
   Points y_, before_;

@@ -46,7 +46,11 @@ std::vector<Command> LiveLoop::command_log() const {
 
 void LiveLoop::log(Command c) {
   if (c.seq > last_command_) last_command_ = c.seq;
-  if (!c.rejected.empty()) last_rejected_ = c.rejected;
+  if (!c.rejected.empty()) {
+    last_rejected_ = c.rejected;
+    refusals_.push_back(Refusal{c.seq, command_name(c.body), c.rejected});
+    if (refusals_.size() > Snapshot::kMaxRefusals) refusals_.erase(refusals_.begin());
+  }
   std::lock_guard<std::mutex> lock(log_mutex_);
   log_.push_back(std::move(c));
 }
@@ -63,6 +67,7 @@ void LiveLoop::publish() {
   s->rebuilding = flight_ != nullptr;
   s->waiting_commands = pending_.size();
   s->last_rejected = last_rejected_;
+  s->refusals = refusals_;
   model_->fill(*s);  // last: the model may look at the loop's fields (e.g. settled)
   mailbox_.publish(std::move(s));
   last_publish_ = Clock::now();

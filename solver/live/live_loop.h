@@ -9,6 +9,8 @@
 //     others go on (the map keeps moving);
 //   - settling: after slow_after quiet iterations the worker sleeps a little between iterations,
 //     after settle_after it blocks on the inbox until any command arrives (no CPU while idle);
+//   - refusals: every command the model rejects is kept (the last few) with its name and reason,
+//     and each snapshot carries them, so the window can say which command was refused and why;
 //   - replay: the same model start and the same log give the same map, because commands are
 //     applied at their logged iterations and step() depends only on the model's state.
 // The model is touched only by the worker thread (or by replay()'s caller when no worker runs).
@@ -51,7 +53,8 @@ class LiveModel {
   virtual Job prepare(const CommandBody& body, std::string* error) = 0;
   virtual StepReport step() = 0;
   virtual bool may_settle() const = 0;  // false e.g. during early exaggeration
-  // Fills positions, ids, pinned, costs and health; the loop fills the rest.
+  // Fills positions, ids, pinned, costs, health, the judgment set and the parameters in force;
+  // the loop fills the rest (iteration, generation, states, refusals).
   virtual void fill(Snapshot& snapshot) = 0;  // called after the loop's own fields (iteration, settled...) are set
 };
 
@@ -109,6 +112,7 @@ class LiveLoop {
   double seconds_per_iteration_ = 0.0;  // running mean
   double movement_ = 0.0;
   std::string last_rejected_;
+  std::vector<Refusal> refusals_;  // the last Snapshot::kMaxRefusals, oldest first
   std::chrono::steady_clock::time_point last_publish_{};
 
   // The heavy job in flight: started by the worker, finished by the helper.

@@ -1,11 +1,17 @@
 // What the engine publishes: an immutable Snapshot of the live map, taken by the window once a
-// frame from the engine's mailbox (latest wins). Shared through shared_ptr<const Snapshot>;
-// never changed after publishing, so any thread may read it.
+// frame from the engine's mailbox (latest wins). Besides the map it carries everything the window
+// shows about the engine's state, so the window keeps no copies of its own: the judgment set in
+// force (shared between snapshots while unchanged), the map parameters in force, and the commands
+// refused lately with the reason. Shared through shared_ptr<const Snapshot>; never changed after
+// publishing, so any thread may read it.
 #pragma once
 #include <cstdint>
+#include <memory>
 #include <string>
 #include <vector>
 
+#include "solver/base/judgment_set.h"
+#include "solver/base/map_parameters.h"
 #include "solver/base/points.h"
 
 namespace kith {
@@ -17,7 +23,15 @@ struct HealthFigures {
   double neighbour_recall = -1.0;
 };
 
+// A command that was not applied, and why.
+struct Refusal {
+  uint64_t seq = 0;     // the command's sequence number
+  std::string command;  // its name (command_name(), e.g. "set-theta")
+  std::string reason;   // e.g. "theta must be between 0 and 1.5, got 9.99"
+};
+
 struct Snapshot {
+  static constexpr size_t kMaxRefusals = 8;  // refusals kept, newest last
   Points positions;                 // N x dims
   std::vector<std::string> ids;     // N, same order as positions
   std::vector<uint8_t> pinned;      // N, 1 where hard-pinned
@@ -35,6 +49,12 @@ struct Snapshot {
   bool rebuilding = false;          // a heavy rebuild (perplexity, new items) runs on the helper thread
   size_t waiting_commands = 0;      // taken from the inbox but waiting for that rebuild
   std::string last_rejected;        // why the most recent rejected command was rejected ("" if none)
+  std::vector<Refusal> refusals;    // the last kMaxRefusals refused commands, oldest first
+  // The judgments in force, retracted ones included; never null (JudgmentSet::none() before any).
+  std::shared_ptr<const JudgmentSet> judgments = JudgmentSet::none();
+  // The settings in force: the engine's after every setting it applied; perplexity is the one the
+  // affinities were built with (MapParameters::perplexity_for), updated when a rebuild is swapped in.
+  MapParameters parameters;
 };
 
 }  // namespace kith

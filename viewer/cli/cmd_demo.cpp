@@ -289,9 +289,6 @@ int run_live(const DemoData& d, const EngineOptions& eo, const DemoTrialOptions&
   wo.title = "Studio sample library";
   for (size_t t = 0; t < d.collection.tags.size(); ++t)  // colour by collection line
     if (d.collection.tags[t].name == "line") wo.view.colour_by = ColourBy{ColourKind::kTag, int(t)};
-  wo.blend = eo.blend;
-  wo.perplexity = eo.perplexity;
-  wo.theta = eo.theta;
   WindowHooks hooks;
   hooks.on_open = [&] { *opened = true; };
   hooks.on_key = [&](int key, int mods) -> std::string {
@@ -307,7 +304,7 @@ int run_live(const DemoData& d, const EngineOptions& eo, const DemoTrialOptions&
   hooks.panel_title = "Simulated people";
   hooks.panel_lines = [&] { return live.lines(); };
   SessionMenu menu(link, *recorded);
-  const int code = run_window(d.collection, *recorded, wo, {}, menu.hooks(link.hooks(hooks)));
+  const int code = run_window(d.collection, *recorded, wo, menu.hooks(link.hooks(hooks)));
   if (auto s = feed->latest()) link.final_checkpoint(*s);
   return code;
 }

@@ -50,16 +50,12 @@ int run_linked(SessionLink& link, WindowOptions wo, const EngineOptions& eo) {
   if (!feed) {
     Points start = link.start();
     if (start.rows() == 0) start = rough_positions(link.collection());
-    feed = std::make_unique<StillFeed>(link.collection().ids, start);
+    feed = std::make_unique<StillFeed>(link.collection().ids, start, link.judgments(), eo);
   }
   link.post_pins(*feed);
-  wo.blend = eo.blend;
-  wo.perplexity = eo.perplexity;
-  wo.theta = eo.theta;
   std::unique_ptr<MapFeed> recorded = link.recording(*feed);
   SessionMenu menu(link, *recorded);
-  const int code = run_window(link.collection(), *recorded, wo, link.judgments(),
-                              menu.hooks(link.hooks(default_window_hooks())));
+  const int code = run_window(link.collection(), *recorded, wo, menu.hooks(link.hooks(default_window_hooks())));
   if (auto s = feed->latest()) link.final_checkpoint(*s);
   return code;
 }

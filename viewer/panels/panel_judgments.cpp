@@ -42,9 +42,9 @@ JudgmentsPanel::JudgmentsPanel(const Collection& collection, MapView& view, Judg
 
 const std::vector<size_t>& JudgmentsPanel::rows() {
   const auto& all = view_.judgments();
-  if (filter_dirty_ || rows_for_count_ != all.size()) {
+  if (filter_dirty_ || rows_for_version_ != view_.judgment_set()->version()) {
     rows_ = filter_judgments(all, collection_.ids, filter_);
-    rows_for_count_ = all.size();
+    rows_for_version_ = view_.judgment_set()->version();
     retracted_count_ = size_t(std::count_if(all.begin(), all.end(), [](const Judgment& j) { return j.retracted; }));
     people_names_ = judgment_people(all);
     filter_dirty_ = false;
@@ -58,16 +58,12 @@ std::string JudgmentsPanel::set_retracted(size_t index, bool retracted) {
   if (all[index].retracted == retracted) return problem_ = "";
   if (all[index].id < 0) return problem_ = "this judgment has no stored id yet, so it cannot be retracted";
   CommandBody body = cmd::RetractJudgment{all[index].id, retracted};
+  const int64_t id = all[index].id;
   const std::string refused = links_.post ? links_.post(body) : "nowhere to send it";
   if (!refused.empty()) return problem_ = refused;  // the list stays as it was
-  std::vector<Judgment> changed = all;
-  changed[index].retracted = retracted;
-  view_.set_judgments(std::move(changed));
-  mark_judgments_changed();
+  // The list shows it once the map's next snapshot carries the changed judgment set.
   problem_.clear();
-  if (links_.say)
-    links_.say(std::string(retracted ? "retracted" : "restored") + " judgment " +
-               std::to_string(view_.judgments()[index].id));
+  if (links_.say) links_.say(std::string(retracted ? "retracted" : "restored") + " judgment " + std::to_string(id));
   return "";
 }
 
@@ -134,10 +130,10 @@ void JudgmentsPanel::compute_figures() {
   const bool have_map = s && s->positions.rows() == Eigen::Index(collection_.size());
   std::vector<PersonJudgmentAgreement> with_map;
   if (have_map) with_map = per_person_agreement(s->positions, all);
-  if (questions_dirty_ || questions_for_count_ != all.size()) {
+  if (questions_dirty_ || questions_for_version_ != view_.judgment_set()->version()) {
     questions_ = same_question_agreement(all);
     repeated_ = repeated_questions(all);
-    questions_for_count_ = all.size();
+    questions_for_version_ = view_.judgment_set()->version();
     questions_dirty_ = false;
   }
   for (const PersonQuestionAgreement& q : questions_) {
@@ -163,11 +159,9 @@ void JudgmentsPanel::compute_figures() {
 
 void JudgmentsPanel::tick(double now_seconds) {
   now_ = now_seconds;
-  // Judgments retracted or restored elsewhere (an undo in the question screens): a cheap count.
-  const auto& all = view_.judgments();
-  const size_t retracted = size_t(std::count_if(all.begin(), all.end(), [](const Judgment& j) { return j.retracted; }));
-  if (retracted != seen_retracted_ || all.size() != seen_count_) {
-    seen_retracted_ = retracted, seen_count_ = all.size();
+  // The judgments changed (here, in the question screens, anywhere): a new set, a new version.
+  if (view_.judgment_set()->version() != seen_version_) {
+    seen_version_ = view_.judgment_set()->version();
     mark_judgments_changed();
   }
   if (now_seconds < next_sample_) return;
@@ -192,10 +186,8 @@ size_t JudgmentsPanel::import_csv(const std::string& path, bool skip_bad_rows) {
                              ": none imported (fix them, or tick \"skip bad rows\")");
     return 0;
   }
-  // Every judgment goes through the window's post path (written to the session first, if any).
-  std::vector<Judgment> all = view_.judgments();
-  int64_t top = 0;
-  for (const Judgment& j : all) top = std::max(top, j.id);
+  // Every judgment goes through the window's post path (written to the session first, if any,
+  // which gives it its id); the list shows them with the map's next snapshot.
   size_t added = 0;
   std::string refused;
   for (Judgment j : r.judgments) {
@@ -203,15 +195,7 @@ size_t JudgmentsPanel::import_csv(const std::string& path, bool skip_bad_rows) {
     CommandBody body = cmd::AddJudgment{j};
     refused = links_.post ? links_.post(body) : "nowhere to send it";
     if (!refused.empty()) break;
-    Judgment stored = std::get<cmd::AddJudgment>(body).judgment;
-    if (stored.id < 0) stored.id = ++top;  // no session: the engine numbers it the same way
-    top = std::max(top, stored.id);
-    all.push_back(stored);
     ++added;
-  }
-  if (added > 0) {
-    view_.set_judgments(std::move(all));
-    mark_judgments_changed();
   }
   std::string summary = "imported " + std::to_string(added) + " judgment" + (added == 1 ? "" : "s") + " from " + path;
   if (r.bad_rows) summary += "; skipped " + std::to_string(r.bad_rows) + " bad row" + (r.bad_rows == 1 ? "" : "s");

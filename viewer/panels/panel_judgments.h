@@ -13,6 +13,9 @@
 //              judgments the map gives a t-STE probability below a threshold, to discuss.
 //   Files      import judgments from CSV (none of a bad file unless "skip bad rows" is ticked; every
 //              bad row listed with its line and cause) and export them (solver/io/judgment_io.h).
+// The list is the judgment set in force as the map's snapshot carries it (MapView::judgments()):
+// a retraction or an import is posted, and shows once the next snapshot has it; the panel keeps no
+// copy of its own and never numbers a judgment (the feed or the session does, MapFeed::prepare).
 // The actions are plain methods, so tests drive them without a window (draw() needs ImGui).
 // Window thread only.
 #pragma once
@@ -104,9 +107,9 @@ class JudgmentsPanel {
   JudgmentFilter filter_;
   std::vector<size_t> rows_;
   bool filter_dirty_ = true;
-  size_t rows_for_count_ = 0;  // judgments when rows_ was made
+  uint64_t rows_for_version_ = ~uint64_t(0);  // the judgment set's version when rows_ was made
   size_t retracted_count_ = 0;
-  size_t seen_retracted_ = 0, seen_count_ = 0;  // what tick() saw last
+  uint64_t seen_version_ = ~uint64_t(0);       // what tick() saw last
   size_t chosen_ = kNone;
   bool scroll_to_chosen_ = false;
   std::string problem_;
@@ -118,7 +121,7 @@ class JudgmentsPanel {
   // Same-question figures depend on the judgments only: made again when they change.
   std::vector<PersonQuestionAgreement> questions_;
   bool questions_dirty_ = true;
-  size_t questions_for_count_ = 0;
+  uint64_t questions_for_version_ = ~uint64_t(0);
   uint64_t figures_generation_ = 0;
   double figures_due_ = 0.0, next_sample_ = 0.0, now_ = 0.0;
   AgreementHistory history_;

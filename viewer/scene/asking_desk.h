@@ -89,7 +89,7 @@ struct DeskLinks {
   // WindowHooks::record_event: "" when written or when there is nowhere to write.
   std::function<std::string(const SessionEvent& event)> record_event;
   std::function<std::shared_ptr<const Snapshot>()> snapshot;  // the map the picker reads
-  std::function<std::vector<Judgment>()> judgments;           // judgments known to the window
+  std::function<std::vector<Judgment>()> judgments;           // the judgments in force (the snapshot's)
   std::function<std::vector<int>()> selection;                // for "about the selection"
   std::function<double()> now;                                // seconds since the epoch
 };

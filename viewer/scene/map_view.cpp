@@ -91,6 +91,16 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
   pinned_.assign(n, 0);
   for (size_t i = 0; i < n && i < snapshot_->pinned.size(); ++i) pinned_[i] = snapshot_->pinned[i];
   if (start_positions_.size() != n) start_positions_ = positions_;
+  if (judgment_set() != counted_) {  // a new set (added, retracted, restored): new counts and lines
+    counted_ = judgment_set();
+    judgment_count_.assign(collection_.size(), 0);
+    for (const auto& j : *counted_) {
+      if (j.retracted) continue;
+      for (int32_t i : {j.anchor, j.nearer, j.farther})
+        if (i >= 0 && size_t(i) < judgment_count_.size()) ++judgment_count_[i];
+    }
+    if (options_.colour_by.kind == ColourKind::kJudgments) dirty_colours_ = true;
+  }
   update_bounds();
   if (first) {
     fit_all(false);
@@ -119,16 +129,8 @@ void MapView::note_frame_time(float seconds) {
 
 bool MapView::pinned(int item) const { return item >= 0 && size_t(item) < pinned_.size() && pinned_[item]; }
 
-void MapView::set_judgments(std::vector<Judgment> judgments) {
-  judgments_ = std::move(judgments);
-  judgment_count_.assign(collection_.size(), 0);
-  for (const auto& j : judgments_) {
-    if (j.retracted) continue;
-    for (int32_t i : {j.anchor, j.nearer, j.farther})
-      if (i >= 0 && size_t(i) < judgment_count_.size()) ++judgment_count_[i];
-  }
-  dirty_lines_ = true;
-  if (options_.colour_by.kind == ColourKind::kJudgments) dirty_colours_ = true;
+const std::shared_ptr<const JudgmentSet>& MapView::judgment_set() const {
+  return snapshot_ && snapshot_->judgments ? snapshot_->judgments : JudgmentSet::none();
 }
 
 void MapView::update_bounds() {
@@ -400,7 +402,7 @@ void MapView::rebuild_lines() {
   const size_t n = positions_.size();
   const size_t kMaxLines = 4000;
   if (!selection_.empty()) {
-    for (const auto& j : judgments_) {
+    for (const auto& j : judgments()) {
       if (j.retracted || l.size() >= kMaxLines) continue;
       if (!selection_.contains(j.anchor) && !selection_.contains(j.nearer) && !selection_.contains(j.farther)) continue;
       if (size_t(j.anchor) >= n || size_t(j.nearer) >= n || size_t(j.farther) >= n || j.anchor < 0 || j.nearer < 0 ||

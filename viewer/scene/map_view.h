@@ -77,8 +77,10 @@ class MapView {
   const std::shared_ptr<const Snapshot>& snapshot() const { return snapshot_; }
   const std::vector<glm::vec3>& positions() const { return positions_; }  // as shown (drag included)
   bool pinned(int item) const;
-  void set_judgments(std::vector<Judgment> judgments);
-  const std::vector<Judgment>& judgments() const { return judgments_; }
+  // The judgments in force, as the snapshot shown carries them (Snapshot::judgments): the lines,
+  // the per-item counts and the judgments panel read them here; the view keeps no list of its own.
+  const std::vector<Judgment>& judgments() const { return judgment_set()->all(); }
+  const std::shared_ptr<const JudgmentSet>& judgment_set() const;
   glm::vec3 bounds_lo() const { return lo_; }
   glm::vec3 bounds_hi() const { return hi_; }
 
@@ -149,7 +151,7 @@ class MapView {
   std::shared_ptr<const Snapshot> snapshot_;
   std::vector<glm::vec3> positions_, start_positions_;
   std::vector<uint8_t> pinned_;
-  std::vector<Judgment> judgments_;
+  std::shared_ptr<const JudgmentSet> counted_;  // the judgment set judgment_count_ was made from
   std::vector<int> judgment_count_;
   glm::vec3 lo_{-1.f}, hi_{1.f};
   bool following_ = true;          // the camera keeps a growing map framed (until a pan/zoom/focus)

@@ -113,20 +113,20 @@ std::string SessionLink::record(CommandBody& body) {
   if (!store_ && worth_a_file(body)) {
     if (std::string problem = ensure_store("your first judgment or pin"); !problem.empty()) return last_error_ = problem;
   }
+  // The settings as they would be after this command; checked again here, so a session never
+  // holds a setting it could not be opened with (the window checked it before, MapFeed::prepare).
+  SessionSettings next = settings_;
+  if (auto* b = std::get_if<cmd::SetBlend>(&body)) next.blend = b->blend;
+  if (auto* pp = std::get_if<cmd::SetPerplexity>(&body)) next.perplexity = pp->perplexity;
+  if (auto* t = std::get_if<cmd::SetTheta>(&body)) next.theta = t->theta;
+  if (std::string e; next != settings_ && !next.IsValid(&e, collection_.size())) return last_error_ = e;
   if (!store_) {
-    // A generated collection: kept in memory, with ids of its own so undo and retraction work.
-    if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
-      int64_t next = 1;
-      for (const Judgment& j : judgments_) next = std::max(next, j.id + 1);
-      a->judgment.id = next;
-      judgments_.push_back(a->judgment);
-    }
+    // A generated collection: kept in memory (the feed gave a new judgment its id).
+    if (auto* a = std::get_if<cmd::AddJudgment>(&body)) judgments_.push_back(a->judgment);
     if (auto* r = std::get_if<cmd::RetractJudgment>(&body))
       for (Judgment& j : judgments_)
         if (j.id == r->judgment_id) j.retracted = r->retracted;
-    if (auto* b = std::get_if<cmd::SetBlend>(&body)) settings_.blend = b->blend;
-    if (auto* pp = std::get_if<cmd::SetPerplexity>(&body)) settings_.perplexity = pp->perplexity;
-    if (auto* t = std::get_if<cmd::SetTheta>(&body)) settings_.theta = t->theta;
+    settings_ = next;
     return "";
   }
   try {
@@ -145,10 +145,8 @@ std::string SessionLink::record(CommandBody& body) {
     } else if (auto* u = std::get_if<cmd::Unpin>(&body)) {
       store_->remove_pin(u->item);
     } else {
-      if (auto* b = std::get_if<cmd::SetBlend>(&body)) settings_.blend = b->blend;
-      if (auto* pp = std::get_if<cmd::SetPerplexity>(&body)) settings_.perplexity = pp->perplexity;
-      if (auto* t = std::get_if<cmd::SetTheta>(&body)) settings_.theta = t->theta;
-      store_->set_settings(settings_);
+      store_->set_settings(next);
+      settings_ = next;  // only once written
     }
     ++writes_;
     last_error_.clear();

@@ -27,8 +27,6 @@ struct WindowOptions {
   bool panels = true;            // (default: on; Tab toggles)
   bool auto_rotate = false;      // (default: off)
   std::vector<std::string> people;  // people listed for asking at the start, in turn order (default: none)
-  // What the controls show at first; the engine's own options decide (run_window(engine) copies them).
-  double blend = 1.0, perplexity = 30.0, theta = 0.5;
   // Test and benchmark hooks (hidden options of kith open):
   int frames = 0;                // quit after this many frames; 0 = until the window closes (default: 0)
   std::string script;            // replayable input events (viewer/window/input_script.h) (default: none)
@@ -41,8 +39,8 @@ struct WindowOptions {
 WindowHooks default_window_hooks();
 
 // Runs the window until closed (or options.frames). Returns a kith exit code; prints problems.
-int run_window(const Collection& collection, MapFeed& feed, const WindowOptions& options,
-               std::vector<Judgment> judgments = {}, WindowHooks hooks = {});
+// The judgments, the settings in force and the refusals it shows come from the feed's snapshots.
+int run_window(const Collection& collection, MapFeed& feed, const WindowOptions& options, WindowHooks hooks = {});
 
 // Convenience: starts the live engine (or a still map when the build has none) and runs the window.
 int run_window(const Collection& collection, const EngineOptions& engine, const WindowOptions& options,

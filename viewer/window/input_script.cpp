@@ -110,10 +110,24 @@ std::vector<InputEvent> parse_input_script(const std::string& text, const std::s
     } else if (verb == "wait-settle") {
       e.kind = InputEvent::kWaitIterations;
       if (!(ls >> e.amount) || e.amount < 0) fail("wait-settle needs a number of iterations");
+    } else if (verb == "set") {
+      e.kind = InputEvent::kSet;
+      if (!(ls >> e.text >> a)) fail("set needs a setting and a value (a number, min or max)");
+      if (a == "min" || a == "max") {
+        e.extreme = a == "min" ? -1 : 1;
+      } else {
+        try {
+          size_t used = 0;
+          e.amount = std::stof(a, &used);
+          if (used != a.size()) throw std::invalid_argument(a);
+        } catch (const std::exception&) {
+          fail("set: '" + a + "' is not a number, min or max");
+        }
+      }
     } else if (verb == "quit") {
       e.kind = InputEvent::kQuit;
     } else {
-      fail("unknown event '" + verb + "' (move, press, release, key, scroll, shot, dump, wait-settle, quit)");
+      fail("unknown event '" + verb + "' (move, press, release, key, scroll, set, shot, dump, wait-settle, quit)");
     }
     out.push_back(e);
   }

@@ -9,6 +9,8 @@
 //   21 key shift+R         LEFT, RIGHT, UP, DOWN, PAGE_UP, PAGE_DOWN, MINUS, EQUAL, SLASH),
 //                          optional shift+/ctrl+/alt+ prefixes
 //   25 scroll 2            wheel steps (> 0 zooms in)
+//   26 set blend 4         a setting's control let go at this value (blend, perplexity, theta), or
+//   26 set theta max       at the end of its range (min, max): the slider's own path (MapSettings)
 //   30 shot out.png        save the frame as PNG
 //   30 dump state.json     write the view's state as JSON (camera, projections, selection, log)
 //   40 wait-settle 200     hold the frame counter until the map is this many iterations on (max 10 s)
@@ -22,15 +24,16 @@
 namespace kith {
 
 struct InputEvent {
-  enum Kind { kMove, kMoveToItem, kMoveBy, kPress, kRelease, kScroll, kKey, kShot, kDump, kWaitIterations, kQuit };
+  enum Kind { kMove, kMoveToItem, kMoveBy, kPress, kRelease, kScroll, kKey, kSet, kShot, kDump, kWaitIterations, kQuit };
   int frame = 0;
   Kind kind = kMove;
   glm::vec2 pos{0.f};
-  std::string text;   // item id, file path
+  std::string text;   // item id, file path, setting name
   int button = 0;     // 0 left, 1 right, 2 middle
   int key = 0;        // GLFW key code
   int mods = 0;       // GLFW modifier bits
-  float amount = 0.f;
+  float amount = 0.f;  // scroll steps, iterations, a setting's value
+  int extreme = 0;     // set: -1 the control's minimum, +1 its maximum, 0 amount
 };
 
 // Throws std::runtime_error("FILE:LINE: ...") on a malformed line.

@@ -139,12 +139,11 @@ std::string render_map_pixels(const Collection& collection, const Points& positi
     ViewOptions vo = o.view;
     vo.moving_budget = 0;  // a picture is never in motion: every item, always
     view.set_options(vo);
-    StillFeed still(collection.ids, positions);
+    StillFeed still(collection.ids, positions, o.judgments);
     for (size_t i = 0; i < o.pinned.size() && i < collection.size(); ++i)
       if (o.pinned[i]) still.post(cmd::Pin{int32_t(i), {}});
     view.camera().set_viewport(o.width, o.height);
     view.set_snapshot(still.latest());
-    view.set_judgments(o.judgments);
     for (int i : o.selected) view.selection().add(i);
     view.selection_changed();
     view.fit_all(false);

@@ -1,0 +1,127 @@
+// The window's state file and pictures: what the window tests read (input script `dump` and
+// `shot`, kith open --screenshot). See app_state.h.
+#include <epoxy/gl.h>
+// epoxy first: GLFW must not pull in the system GL header.
+#define GLFW_INCLUDE_NONE
+#include <GLFW/glfw3.h>
+
+#include <cstdio>
+#include <ctime>
+#include <fstream>
+#include <nlohmann/json.hpp>
+
+#include "viewer/window/app_state.h"
+#include "viewer/window/offscreen_render.h"
+
+namespace kith {
+
+void App::save_picture(const std::string& path) {
+  int w = 0, h = 0;
+  glfwGetFramebufferSize(window, &w, &h);
+  glReadBuffer(GL_BACK);
+  const Picture pic = renderer->read_pixels(w, h);
+  const std::string e = write_png(path, pic);
+  say(e.empty() ? "saved " + path : e);
+  if (!e.empty()) std::fprintf(stderr, "kith open: %s\n", e.c_str());
+}
+
+void App::save_picture_now() {
+  char name[64];
+  const std::time_t t = std::time(nullptr);
+  std::strftime(name, sizeof name, "kith-map-%Y%m%d-%H%M%S.png", std::localtime(&t));
+  save_picture(name);
+}
+
+void App::dump_state(const std::string& path) {
+  using nlohmann::json;
+  json j;
+  j["frame"] = frame;
+  j["width"] = view->camera().width();
+  j["height"] = view->camera().height();
+  j["camera"] = view->camera().str();
+  j["live"] = feed.live();
+  json items = json::array();
+  const auto& pos = view->positions();
+  for (size_t i = 0; i < pos.size() && i < 20000; ++i) {
+    const Projected p = view->camera().project(pos[i]);
+    items.push_back({{"id", collection.ids[i]}, {"x", p.screen.x}, {"y", p.screen.y}, {"depth", p.depth},
+                     {"visible", p.visible}, {"world", {pos[i].x, pos[i].y, pos[i].z}}});
+  }
+  j["items"] = items;
+  json sel = json::array();
+  for (int i : view->selection().items()) sel.push_back(collection.ids[i]);
+  j["selection"] = sel;
+  j["hovered"] = view->hovered() >= 0 ? json(collection.ids[view->hovered()]) : json(nullptr);
+  const auto s = view->snapshot();
+  json pinned = json::array();
+  if (s)
+    for (size_t i = 0; i < s->pinned.size() && i < collection.size(); ++i)
+      if (s->pinned[i]) pinned.push_back(collection.ids[i]);
+  j["pinned"] = pinned;
+  if (s) {
+    j["snapshot"] = {{"generation", s->generation}, {"iteration", s->iteration}, {"last_command", s->last_command},
+                     {"paused", s->paused}};
+  }
+  const auto& drop = interaction->last_drop();
+  if (drop.item >= 0) {
+    json d = {{"item", collection.ids[drop.item]},
+              {"position", {drop.position.x, drop.position.y, drop.position.z}},
+              {"seq", drop.seq},
+              {"drag_targets", drop.drag_targets}};
+    if (s && drop.item < s->positions.rows()) {
+      std::vector<double> now;
+      for (Eigen::Index c = 0; c < s->positions.cols(); ++c) now.push_back(s->positions(drop.item, c));
+      d["snapshot_position"] = now;
+      d["snapshot_applied"] = s->last_command >= drop.seq;
+    }
+    j["drop"] = d;
+  }
+  json log = json::array();
+  for (const Command& c : feed.command_log())
+    log.push_back({{"seq", c.seq}, {"iteration", c.iteration}, {"kind", command_name(c.body)}, {"item", command_item(c.body)}});
+  j["log"] = log;
+  if (asking) j["asking"] = asking->state();
+  {
+    const auto& rows = judgments_panel->rows();
+    const size_t chosen = judgments_panel->chosen();
+    j["judgments_panel"] = {{"open", show_judgments},
+                            {"judgments", view->judgments().size()},
+                            {"rows", rows.size()},
+                            {"chosen", chosen < view->judgments().size() ? json(view->judgments()[chosen].id) : json(nullptr)},
+                            {"problem", judgments_panel->last_problem()}};
+  }
+  j["commands"] = kCommandNames;  // every command the window may send, by name
+  if (s) {
+    const MapParameters& p = s->parameters;
+    j["parameters"] = {{"perplexity", p.perplexity}, {"theta", p.theta},   {"blend", p.blend},
+                       {"learning_rate", p.learning_rate}, {"exaggeration", p.exaggeration}, {"dof", p.dof}};
+    json refusals = json::array();
+    for (const Refusal& r : s->refusals)
+      refusals.push_back({{"seq", r.seq}, {"command", r.command}, {"reason", r.reason}});
+    j["refusals"] = refusals;
+    j["judgment_set"] = {{"version", s->judgments->version()}, {"size", s->judgments->size()},
+                         {"active", s->judgments->active()}};
+  }
+  json controls = json::array();
+  for (const SettingControl& c : settings.controls(s ? s->ids.size() : collection.size())) {
+    const float* r = control_rects[size_t(c.setting)];
+    controls.push_back({{"name", c.name},
+                        {"value", settings.shown(c.setting, s.get())},
+                        {"lo", c.lo},
+                        {"hi", c.hi},
+                        {"enabled", c.enabled},
+                        {"pending", settings.pending(c.setting)},
+                        {"rect", {r[0], r[1], r[2], r[3]}}});
+  }
+  j["controls"] = controls;
+  j["notice"] = settings.notice_showing(seconds()) ? json(settings.notice()) : json(nullptr);
+  j["bounds"] = {{view->bounds_lo().x, view->bounds_lo().y, view->bounds_lo().z},
+                 {view->bounds_hi().x, view->bounds_hi().y, view->bounds_hi().z}};
+  std::ofstream out(path);
+  out << j.dump(1);
+  if (!out) std::fprintf(stderr, "kith open: cannot write %s\n", path.c_str());
+}
+
+void glfw_error(int code, const char* text) { std::fprintf(stderr, "kith: window system error %d: %s\n", code, text); }
+
+}  // namespace kith
