@@ -163,7 +163,8 @@ TEST_CASE("numbers are read exactly as strtod reads them") {
   // many styles.
   std::mt19937_64 rng(7);
   std::uniform_real_distribution<double> mantissa(-1.0, 1.0);
-  std::uniform_int_distribution<int> exponent(-300, 300), style(0, 4);
+  // Magnitudes stay within 1e100: larger features are refused (see below).
+  std::uniform_int_distribution<int> exponent(-300, 99), style(0, 4);
   const int rows = 300, cols = 4;
   std::string text = "id,a,b,c,d\n";
   std::vector<double> expected;
@@ -195,6 +196,10 @@ TEST_CASE("numbers are read exactly as strtod reads them") {
   // Values below double's range are numbers (they round towards 0), not errors.
   const Collection tiny = kith::load_collection_from_memory("id,w\na,1e-400\nb,2\n", "x.csv");
   CHECK(tiny.features(0, 0) == std::strtod("1e-400", nullptr));
+  // Above 1e100 in size, squared distances between items overflow: refused, with where.
+  CHECK(failure("id,w\na,1\nb,-5e200\n", "x.csv") ==
+        "x.csv:3:2: expected a number of at most 1e100 in size in feature column 'w', found '-5e200' "
+        "(distances between such numbers overflow)");
 }
 
 TEST_CASE("constant columns and missing pictures are warnings, not errors") {
@@ -262,7 +267,7 @@ TEST_CASE("index_of after changing ids by hand") {
 TEST_CASE("missing and unreadable files") {
   CHECK_THROWS_WITH_AS(kith::load_collection("/nonexistent/items.csv"),
                        "/nonexistent/items.csv: cannot open: No such file or directory", LoadError);
-  CHECK_THROWS_WITH_AS(kith::load_collection(KITH_TEST_DATA), (std::string(KITH_TEST_DATA) + ": expected a file, found a folder").c_str(),
+  CHECK_THROWS_WITH_AS(kith::load_collection(KITH_TEST_DATA), (std::string(KITH_TEST_DATA) + ": expected a regular file, found a folder").c_str(),
                        LoadError);
 }
 
