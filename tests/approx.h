@@ -4,12 +4,13 @@
 #include <doctest/doctest.h>
 
 #include <Eigen/Core>
-
-#include "solver/objective/objective_term.h"
 #include <cmath>
 #include <cstdio>
+#include <random>
 #include <sstream>
 #include <string>
+
+#include "solver/objective/objective_term.h"
 
 namespace kith::test {
 
@@ -27,8 +28,8 @@ void assert_near(const Eigen::MatrixBase<A>& a, const Eigen::MatrixBase<B>& b, d
       if (!ok) {
         std::ostringstream m;
         m.precision(17);
-        m << what << "(" << i << ", " << j << "): " << x << " vs " << y << " (diff " << std::abs(x - y)
-          << ", allowed " << abs_tol + rel_tol * std::abs(y) << ")";
+        m << what << "(" << i << ", " << j << "): " << x << " vs " << y << " (diff " << std::abs(x - y) << ", allowed "
+          << abs_tol + rel_tol * std::abs(y) << ")";
         FAIL(m.str());
         return;
       }
@@ -49,5 +50,17 @@ std::string run_reference(const std::string& script, const std::string& args = "
 
 // A fresh empty directory under the system temp folder, for one test's files.
 std::string temp_dir(const std::string& name);
+
+// N x D points: standard normal noise (seeded) plus SHIFT(i, c) on item i's coordinate c, which
+// places the items in clusters.
+template <class Shift>
+kith::Points normal_points(int n, int d, uint64_t seed, Shift shift) {
+  std::mt19937_64 rng(seed);
+  std::normal_distribution<double> g;
+  kith::Points x(n, d);
+  for (int i = 0; i < n; ++i)
+    for (int c = 0; c < d; ++c) x(i, c) = g(rng) + shift(i, c);
+  return x;
+}
 
 }  // namespace kith::test

@@ -80,6 +80,12 @@ void random_map(Snapshot* s, size_t n, uint32_t seed) {
     for (int d = 0; d < 3; ++d) s->positions(i, d) = g(rng);
 }
 
+// Lists NAMES at the desk, coloured 1, 2, 3...: each must be accepted.
+void add_people(AskingDesk& desk, std::initializer_list<const char*> names) {
+  uint32_t colour = 0;
+  for (const char* name : names) REQUIRE(desk.add_person(name, ++colour) == "");
+}
+
 QuestionFlowOptions no_reask() {
   QuestionFlowOptions o;
   o.reask_rate = 0.0;
@@ -234,8 +240,7 @@ TEST_CASE("asking desk: a refused write leaves the question and the turn where t
   FakeWindow w;
   random_map(w.snapshot.get(), c.size(), 6);
   AskingDesk desk(c, w.links(), no_reask());
-  desk.add_person("Ana", 1);
-  desk.add_person("Ben", 2);
+  add_people(desk, {"Ana", "Ben"});
   desk.set_mode(AskingMode::kGrid);
   const Question g = desk.question();
   w.refuse_judgment = 2;  // the third of the twelve fails
@@ -275,9 +280,7 @@ TEST_CASE("asking desk: own judgments by clicks carry the person whose turn it i
   FakeWindow w;
   random_map(w.snapshot.get(), c.size(), 7);
   AskingDesk desk(c, w.links(), no_reask());
-  desk.add_person("Ana", 1);
-  desk.add_person("Ben", 2);
-  desk.add_person("Caro", 3);
+  add_people(desk, {"Ana", "Ben", "Caro"});
   desk.key(GLFW_KEY_W, 0);
   CHECK(desk.turn_name() == "Ben");
   desk.key(GLFW_KEY_W, GLFW_MOD_SHIFT);

@@ -21,7 +21,6 @@
 
 namespace {
 
-using kith::test::have_xvfb;
 using kith::test::kXvfb;
 int run(const std::string& command) { return kith::test::run_command(command); }
 
@@ -53,10 +52,7 @@ using Triplet = std::tuple<std::string, std::string, std::string, std::string, s
 }  // namespace
 
 TEST_CASE("asking window: three people, can't tell, undo and a grid answer give exactly the expected judgments") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("asking-window");
   const std::string session = dir + "/round.kith";
   std::filesystem::remove(session);

@@ -81,15 +81,11 @@ TEST_CASE("judgments import: kith judge --import reports every bad row and leave
 }
 
 namespace {
-using kith::test::have_xvfb;
 int run(const std::string& command) { return kith::test::run_command(command); }
 }  // namespace
 
 TEST_CASE("judgments window: a session's judgments are listed and a scripted retract is written to it") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("judgments-window");
   const std::string path = dir + "/s.kith";
   {

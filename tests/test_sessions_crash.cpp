@@ -39,8 +39,10 @@ struct Ack {
     for (uint64_t k = 0;; ++k) {
       kith::Judgment j;
       j.anchor = item(rng);
-      do j.nearer = item(rng); while (j.nearer == j.anchor);
-      do j.farther = item(rng); while (j.farther == j.anchor || j.farther == j.nearer);
+      do j.nearer = item(rng);
+      while (j.nearer == j.anchor);
+      do j.farther = item(rng);
+      while (j.farther == j.anchor || j.farther == j.nearer);
       j.person = "round " + std::to_string(round);
       j.kind = kith::JudgmentKind::kPair;
       const Ack ack{store->add_judgment(j), j.anchor, j.nearer, j.farther, round};
@@ -68,6 +70,22 @@ std::string integrity_check(const std::string& path) {
   return result;
 }
 
+// Forks a child that runs CHILD(the write end of a new pipe) and then exits (127 if CHILD returns);
+// the parent gets the child's pid and keeps only the read end, in FDS[0].
+template <class Child>
+pid_t fork_piped(int fds[2], Child child) {
+  REQUIRE(::pipe(fds) == 0);
+  const pid_t pid = ::fork();
+  REQUIRE(pid >= 0);
+  if (pid == 0) {
+    ::close(fds[0]);
+    child(fds[1]);
+    ::_exit(127);
+  }
+  ::close(fds[1]);
+  return pid;
+}
+
 }  // namespace
 
 TEST_CASE("sessions: killed at random moments, a session keeps every acknowledged judgment") {
@@ -83,16 +101,9 @@ TEST_CASE("sessions: killed at random moments, a session keeps every acknowledge
   size_t acknowledged = 0, unacknowledged_but_kept = 0, kills_with_acks = 0;
   std::map<int64_t, Ack> all_acks;
   for (int round = 0; round < rounds; ++round) {
-    int fds[2];
-    REQUIRE(::pipe(fds) == 0);
     const int wait = delay_us(rng);
-    const pid_t pid = ::fork();
-    REQUIRE(pid >= 0);
-    if (pid == 0) {
-      ::close(fds[0]);
-      child_adds_judgments(path, fds[1], round, n_items);
-    }
-    ::close(fds[1]);
+    int fds[2];
+    const pid_t pid = fork_piped(fds, [&](int out) { child_adds_judgments(path, out, round, n_items); });
     // Odd rounds: killed at a random moment after the fork (start-up, opening, writing).
     // Even rounds: killed at a random moment after the first acknowledgement, so half the kills
     // land while judgments are being written however slow a loaded machine makes the start-up.
@@ -106,8 +117,10 @@ TEST_CASE("sessions: killed at random moments, a session keeps every acknowledge
     ::kill(pid, SIGKILL);
     int status = 0;
     ::waitpid(pid, &status, 0);
-    if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
-    else ++child_errors;
+    if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL)
+      ++kills;
+    else
+      ++child_errors;
     while (::read(fds[0], &ack, sizeof ack) == ssize_t(sizeof ack)) {
       all_acks[ack.id] = ack;
       ++this_round;
@@ -134,10 +147,11 @@ TEST_CASE("sessions: killed at random moments, a session keeps every acknowledge
     }
     unacknowledged_but_kept = kept.size() - all_acks.size();
   }
-  std::printf("sessions crash test: %d kills (SIGKILL), %zu rounds killed after at least one acknowledgement, "
-              "%zu judgments acknowledged, %d lost, %zu written but killed before acknowledging, "
-              "%d failed integrity checks\n",
-              kills, kills_with_acks, acknowledged, losses, unacknowledged_but_kept, failed_checks);
+  std::printf(
+      "sessions crash test: %d kills (SIGKILL), %zu rounds killed after at least one acknowledgement, "
+      "%zu judgments acknowledged, %d lost, %zu written but killed before acknowledging, "
+      "%d failed integrity checks\n",
+      kills, kills_with_acks, acknowledged, losses, unacknowledged_but_kept, failed_checks);
   CHECK(child_errors == 0);
   CHECK(kills >= 50);
   CHECK(kills_with_acks >= rounds / 2);  // the kills must land while judgments are being written, not only at start-up
@@ -222,27 +236,23 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
     std::vector<std::string> argv_s = {"kith", "judge", path, "--person", "cli"};
     for (int k = 0; k < 200; ++k) {
       int a = item(rng), b, c;
-      do b = item(rng); while (b == a);
-      do c = item(rng); while (c == a || c == b);
+      do b = item(rng);
+      while (b == a);
+      do c = item(rng);
+      while (c == a || c == b);
       argv_s.push_back("--add");
       argv_s.push_back(collection.ids[size_t(a)] + "," + collection.ids[size_t(b)] + "," + collection.ids[size_t(c)]);
     }
-    int fds[2];
-    REQUIRE(::pipe(fds) == 0);
     const int wait = delay_us(rng);
-    const pid_t pid = ::fork();
-    REQUIRE(pid >= 0);
-    if (pid == 0) {
-      ::dup2(fds[1], 1);
-      ::close(fds[0]);
-      ::close(fds[1]);
+    int fds[2];
+    const pid_t pid = fork_piped(fds, [&](int out) {
+      ::dup2(out, 1);
+      ::close(out);
       std::vector<char*> argv;
       for (auto& s : argv_s) argv.push_back(s.data());
       argv.push_back(nullptr);
       ::execv(KITH_BINARY, argv.data());
-      ::_exit(127);
-    }
-    ::close(fds[1]);
+    });
     std::string out;
     char buf[4096];
     ssize_t got;
@@ -288,9 +298,10 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
       if (stored != triple || j.person != "cli") ++losses;
     }
   }
-  std::printf("sessions crash test (kith judge): %d kills, %zu judgments reported added, %d lost, %d failed "
-              "integrity checks\n",
-              kills, acknowledged, losses, failed_checks);
+  std::printf(
+      "sessions crash test (kith judge): %d kills, %zu judgments reported added, %d lost, %d failed "
+      "integrity checks\n",
+      kills, acknowledged, losses, failed_checks);
   CHECK(kills + finished == rounds);  // every child was either killed or finished cleanly
   CHECK(kills >= rounds / 2);
   CHECK(acknowledged > 0);

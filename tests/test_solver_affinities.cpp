@@ -10,12 +10,7 @@
 
 namespace {
 kith::Points gaussian(int n, int d, uint64_t seed) {
-  std::mt19937_64 rng(seed);
-  std::normal_distribution<double> g;
-  kith::Points x(n, d);
-  for (int i = 0; i < n; ++i)
-    for (int c = 0; c < d; ++c) x(i, c) = g(rng) + (i % 4);
-  return x;
+  return kith::test::normal_points(n, d, seed, [](int i, int) { return double(i % 4); });
 }
 }  // namespace
 
@@ -84,7 +79,8 @@ TEST_CASE("solver: joint P is symmetric, sums to 1, equals (P_cond + P_cond^T) /
   const auto p = kith::joint_affinities(g, o);
   Eigen::MatrixXd dense = Eigen::MatrixXd::Zero(300, 300), ref = Eigen::MatrixXd::Zero(300, 300);
   for (size_t i = 0; i < p.n; ++i)
-    for (int64_t e = p.row_ptr[i]; e < p.row_ptr[i + 1]; ++e) dense(Eigen::Index(i), p.col[size_t(e)]) = p.val[size_t(e)];
+    for (int64_t e = p.row_ptr[i]; e < p.row_ptr[i + 1]; ++e)
+      dense(Eigen::Index(i), p.col[size_t(e)]) = p.val[size_t(e)];
   for (size_t i = 0; i < g.n; ++i)
     for (size_t c = 0; c < g.k; ++c) {
       ref(Eigen::Index(i), g.index[i * g.k + c]) += cond[i * g.k + c];

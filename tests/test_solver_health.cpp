@@ -4,18 +4,13 @@
 #include <random>
 
 #include "solver/features/feature_prep.h"
-#include "solver/measures/health.h"
 #include "solver/fit/schedule.h"
+#include "solver/measures/health.h"
 #include "tests/approx.h"
 
 namespace {
 kith::Points blobs(int n, int d, uint64_t seed) {
-  std::mt19937_64 rng(seed);
-  std::normal_distribution<double> g;
-  kith::Points x(n, d);
-  for (int i = 0; i < n; ++i)
-    for (int c = 0; c < d; ++c) x(i, c) = g(rng) + 5.0 * (i % 4 == c % 4);
-  return x;
+  return kith::test::normal_points(n, d, seed, [](int i, int c) { return 5.0 * (i % 4 == c % 4); });
 }
 }  // namespace
 

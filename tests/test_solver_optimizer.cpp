@@ -20,6 +20,12 @@ struct Quadratic : kith::ObjectiveTerm {
     return cost;
   }
 };
+kith::StepOptions step_options(double learning_rate, double momentum) {
+  kith::StepOptions o;
+  o.learning_rate = learning_rate;
+  o.momentum = momentum;
+  return o;
+}
 }  // namespace
 
 TEST_CASE("solver: gradient descent with momentum and gains finds a quadratic's minimum") {
@@ -27,9 +33,7 @@ TEST_CASE("solver: gradient descent with momentum and gains finds a quadratic's 
   q.m = kith::Points::Random(20, 3);
   kith::Points y = kith::Points::Zero(20, 3);
   kith::GradientDescent gd;
-  kith::StepOptions o;
-  o.learning_rate = 0.1;
-  o.momentum = 0.5;
+  const kith::StepOptions o = step_options(0.1, 0.5);
   kith::StepResult r;
   for (int it = 0; it < 500; ++it) r = gd.step(q, y, o);
   CHECK(r.finite);

@@ -8,19 +8,29 @@
 #include <set>
 #include <tuple>
 
+#include "viewer/cli/synthetic_collection.h"
 #include "viewer/scene/camera.h"
-#include "viewer/window/input_script.h"
 #include "viewer/scene/map_feed.h"
 #include "viewer/scene/map_interaction.h"
 #include "viewer/scene/map_view.h"
 #include "viewer/scene/picking.h"
-#include "viewer/cli/synthetic_collection.h"
+#include "viewer/window/input_script.h"
 
 namespace kith {
 namespace {
 
-constexpr float kPixelTol = 0.05f;   // pixels, float round trips through the projection
-constexpr float kWorldTol = 1e-3f;   // relative to the map's size
+constexpr float kPixelTol = 0.05f;  // pixels, float round trips through the projection
+constexpr float kWorldTol = 1e-3f;  // relative to the map's size
+
+// A camera on a W x H viewport turned to YAW.
+Camera camera_at(int w, int h, float yaw) {
+  Camera cam;
+  cam.set_viewport(w, h);
+  CameraPose p;
+  p.yaw = yaw;
+  cam.set_pose(p);
+  return cam;
+}
 
 std::vector<glm::vec3> random_points(size_t n, uint64_t seed, float spread = 10.f) {
   std::mt19937_64 rng(seed);
@@ -88,11 +98,7 @@ TEST_CASE("viewer camera: fit puts every point on screen, transitions converge s
   glm::vec3 lo(1e9f), hi(-1e9f);
   for (const auto& p : pts) lo = glm::min(lo, p), hi = glm::max(hi, p);
   for (float yaw : {0.f, 1.f, 2.5f}) {
-    Camera cam;
-    cam.set_viewport(1000, 500);
-    CameraPose p;
-    p.yaw = yaw;
-    cam.set_pose(p);
+    Camera cam = camera_at(1000, 500, yaw);
     cam.fit(lo, hi, true);
     float last_gap = 1e9f;
     for (int k = 0; k < 120; ++k) {  // two seconds at 60 fps
@@ -175,7 +181,8 @@ TEST_CASE("viewer picking: box selection matches brute force, search by id and b
   std::vector<int> want;
   for (size_t i = 0; i < pts.size(); ++i) {
     const Projected p = cam.project(pts[i]);
-    if (p.visible && p.screen.x >= 180 && p.screen.x <= 500 && p.screen.y >= 120 && p.screen.y <= 460) want.push_back(int(i));
+    if (p.visible && p.screen.x >= 180 && p.screen.x <= 500 && p.screen.y >= 120 && p.screen.y <= 460)
+      want.push_back(int(i));
   }
   CHECK(hits == want);
   CHECK(!hits.empty());
@@ -372,17 +379,20 @@ TEST_CASE("viewer scene: nearest lists agree with brute force in both spaces") {
   for (Eigen::Index i = 0; i < F.rows(); ++i) {
     if (i == item) continue;
     const double d = (F.row(i) - F.row(item)).squaredNorm();
-    if (std::count(f.begin(), f.end(), int(i))) worst_listed = std::max(worst_listed, d);
-    else best_unlisted = std::min(best_unlisted, d);
+    if (std::count(f.begin(), f.end(), int(i)))
+      worst_listed = std::max(worst_listed, d);
+    else
+      best_unlisted = std::min(best_unlisted, d);
   }
   CHECK(worst_listed <= best_unlisted);
   CHECK(std::count(m.begin(), m.end(), item) == 0);
 }
 
 TEST_CASE("viewer input script: parses events and reports the line of a mistake") {
-  const auto ev = parse_input_script("# a comment\n5 move 10 20\n5 move @s00003\n6 move +5 -3\n7 press left\n"
-                                     "8 key shift+R\n9 scroll -2\n10 shot a.png\n11 wait-settle 50\n12 quit\n",
-                                     "t.txt");
+  const auto ev = parse_input_script(
+      "# a comment\n5 move 10 20\n5 move @s00003\n6 move +5 -3\n7 press left\n"
+      "8 key shift+R\n9 scroll -2\n10 shot a.png\n11 wait-settle 50\n12 quit\n",
+      "t.txt");
   REQUIRE(ev.size() == 9);
   CHECK(ev[0].kind == InputEvent::kMove);
   CHECK(ev[1].kind == InputEvent::kMoveToItem);
@@ -480,11 +490,7 @@ TEST_CASE("viewer camera: fit_points frames every point, and tightly (some point
   std::vector<glm::vec3> pts(800);
   for (auto& p : pts) p = glm::vec3(g(rng) * 2.f, g(rng), g(rng) + 5.f);
   for (float yaw : {0.f, 0.9f, 2.2f}) {
-    Camera cam;
-    cam.set_viewport(1200, 700);
-    CameraPose p;
-    p.yaw = yaw;
-    cam.set_pose(p);
+    Camera cam = camera_at(1200, 700, yaw);
     cam.fit_points(pts, false, 0.05f);
     float edge = 0.f;  // the largest |offset from the centre| as a fraction of the half-size
     for (const auto& q : pts) {
@@ -521,7 +527,7 @@ TEST_CASE("viewer scene: level of detail draws a sample while the view moves, ev
   for (size_t k = 0; k < 1000; ++k) ++per_colour[renderer.points[k].rgba];
   CHECK(per_colour.size() == 5);
   for (const auto& [colour, count] : per_colour) CHECK(std::abs(count - 200) < 60);  // binomial sd ~13
-  for (int k = 0; k < 30; ++k) view.frame(1.f / 60, 800, 600);  // half a second at rest
+  for (int k = 0; k < 30; ++k) view.frame(1.f / 60, 800, 600);                       // half a second at rest
   CHECK_FALSE(view.reduced_detail());
   CHECK(renderer.last_frame.point_budget == 0);
   // Every item is in the buffer exactly once.
@@ -537,8 +543,7 @@ namespace {
 // A still map of `n` items in a MapView over the mock renderer; moving_frame turns the camera,
 // draws one frame and reports how long it took.
 struct MovingScene {
-  explicit MovingScene(size_t n)
-      : c(synthetic_collection(n, 3)), feed(c.ids, rough_positions(c)), view(c, renderer) {
+  explicit MovingScene(size_t n) : c(synthetic_collection(n, 3)), feed(c.ids, rough_positions(c)), view(c, renderer) {
     view.set_snapshot(feed.latest());
   }
   void moving_frame(float seconds) {
@@ -559,10 +564,10 @@ TEST_CASE("viewer scene: the level-of-detail budget shrinks when frames are slow
   moving_frame(0.02f);
   REQUIRE(view.reduced_detail());
   CHECK(view.detail_budget() == 40000);
-  for (int k = 0; k < 40; ++k) moving_frame(0.2f);  // 5 fps: far too slow
-  CHECK(view.detail_budget() == 5000);                // down to the floor
+  for (int k = 0; k < 40; ++k) moving_frame(0.2f);   // 5 fps: far too slow
+  CHECK(view.detail_budget() == 5000);               // down to the floor
   for (int k = 0; k < 80; ++k) moving_frame(0.01f);  // 100 fps: room to spare
-  CHECK(view.detail_budget() == 40000);               // back up to the cap, never beyond
+  CHECK(view.detail_budget() == 40000);              // back up to the cap, never beyond
   CHECK(scene.renderer.last_frame.point_budget == 40000);
 }
 

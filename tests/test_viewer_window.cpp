@@ -18,7 +18,6 @@
 
 namespace {
 
-using kith::test::have_xvfb;
 using kith::test::kXvfb;
 int run(const std::string& command) { return kith::test::run_command(command); }
 
@@ -51,10 +50,7 @@ int colour_distance(const unsigned char* a, const unsigned char* b) {
 void write(const std::string& path, const std::string& text) { std::ofstream(path) << text; }
 
 TEST_CASE("viewer window: the screenshot shows items where the camera projection puts them") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("viewer-shot");
   write(dir + "/script.txt", "20 dump " + dir + "/state.json\n20 shot " + dir + "/shot.png\n22 quit\n");
   const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open --generate 400 --paused --no-panels --frames 60 --script " +
@@ -101,10 +97,7 @@ TEST_CASE("viewer window: the screenshot shows items where the camera projection
 }
 
 TEST_CASE("viewer window: a scripted drag and pin reaches the engine and the item stays at the drop") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("viewer-drag");
   write(dir + "/script.txt",
         "30 move @s00005\n30 press left\n"
@@ -191,10 +184,7 @@ TEST_CASE("viewer render: kith render with DISPLAY unset writes a PNG of the ask
 namespace {
 
 TEST_CASE("viewer window: a session opens with its pins, and a pin made in the window is written to it") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("viewer-session");
   const std::string path = dir + "/s.kith";
   {
@@ -231,10 +221,7 @@ TEST_CASE("viewer window: a session opens with its pins, and a pin made in the w
 
 
 TEST_CASE("viewer window: a pin on a plain collection starts a session beside it, read-only writes nothing") {
-  if (!have_xvfb()) {
-    MESSAGE("xvfb-run not installed: window test skipped");
-    return;
-  }
+  KITH_SKIP_WITHOUT_XVFB();
   const std::string dir = kith::test::temp_dir("viewer-plain-session");
   std::filesystem::copy_file(std::string(KITH_SOURCE_DIR) + "/assets/tea_blends.csv", dir + "/teas.csv");
   const std::string csv_before = kith::test::file_bytes(dir + "/teas.csv");

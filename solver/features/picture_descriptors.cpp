@@ -12,6 +12,7 @@
 
 #include "solver/base/portable_math.h"
 #include "solver/features/colour.h"
+#include "solver/features/picture_file.h"
 
 namespace kith {
 namespace {
@@ -271,17 +272,12 @@ LinearImage image_from_srgb8(const uint8_t* pixels, int width, int height, int c
 }
 
 LinearImage read_picture(const std::string& path, const DescriptorOptions& options) {
-  std::error_code ec;
-  if (!std::filesystem::exists(path, ec)) throw PictureError(path, "no such file");
-  if (std::filesystem::is_directory(path, ec)) throw PictureError(path, "is a folder, not a picture");
+  // Decoded samples (up to 4 channels of 1 or 2 bytes) and the linear RGB floats made from them.
+  PictureHeader header;
+  if (const std::string problem = read_picture_header(path, 8.0 + 3 * sizeof(float), &header); !problem.empty())
+    throw PictureError(path, problem);
   int w = 0, h = 0, channels = 0;
-  if (!stbi_info(path.c_str(), &w, &h, &channels)) {
-    const char* why = stbi_failure_reason();
-    throw PictureError(path, std::string("not a readable PNG or JPEG picture (") + (why ? why : "unknown") + ")");
-  }
-  if (w <= 0 || h <= 0 || double(w) * h > 1e8) throw PictureError(path, "picture size " + std::to_string(w) + " x " +
-                                                                            std::to_string(h) + " is not supported");
-  const bool sixteen = stbi_is_16_bit(path.c_str());
+  const bool sixteen = header.sixteen_bit;
   LinearImage image;
   if (sixteen) {
     std::unique_ptr<stbi_us, void (*)(void*)> data(stbi_load_16(path.c_str(), &w, &h, &channels, 0), stbi_image_free);

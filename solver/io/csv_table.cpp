@@ -13,6 +13,7 @@
 #include <cstring>
 #include <sys/stat.h>
 
+#include "solver/base/memory.h"
 #include "solver/io/collection.h"
 
 namespace kith {
@@ -177,12 +178,6 @@ const char* file_kind(mode_t mode) {
   return "not a regular file";
 }
 
-std::string gigabytes(double bytes) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.1f GB", bytes / 1e9);
-  return buf;
-}
-
 }  // namespace
 
 std::string read_file(const std::string& path) {
@@ -196,12 +191,11 @@ std::string read_file(const std::string& path) {
     throw LoadError(Problem{path, 0, 0, "expected a regular file, found " + what});
   }
   // Bounded: the whole file is held in memory, so it must fit with room to spare.
-  const double pages = double(::sysconf(_SC_PHYS_PAGES)), page = double(::sysconf(_SC_PAGESIZE));
-  const double limit = pages > 0 && page > 0 ? 0.5 * pages * page : 8e9;
-  if (double(st.st_size) > limit) {
+  if (const std::string problem = memory_problem("reading the file (" + gigabytes(double(st.st_size)) + ")",
+                                                 double(st.st_size));
+      !problem.empty()) {
     ::close(fd);
-    throw LoadError(Problem{path, 0, 0, "the file is " + gigabytes(double(st.st_size)) + "; reading it needs more than half of this machine's " +
-                                            gigabytes(2 * limit) + " of memory"});
+    throw LoadError(Problem{path, 0, 0, problem});
   }
   std::string data(size_t(st.st_size), '\0');
   size_t done = 0;

@@ -36,16 +36,16 @@
 
 #include "solver/base/portable_random.h"
 #include "solver/features/affinities.h"
-#include "solver/objective/blended_objective.h"
 #include "solver/features/feature_prep.h"
-#include "solver/measures/health.h"
-#include "solver/measures/judgment_health.h"
-#include "solver/objective/judgment_term.h"
-#include "solver/live/live_loop.h"
-#include "solver/objective/neighbour_term.h"
 #include "solver/features/neighbours.h"
 #include "solver/fit/optimizer.h"
 #include "solver/fit/schedule.h"
+#include "solver/live/live_loop.h"
+#include "solver/measures/health.h"
+#include "solver/measures/judgment_health.h"
+#include "solver/objective/blended_objective.h"
+#include "solver/objective/judgment_term.h"
+#include "solver/objective/neighbour_term.h"
 
 namespace kith {
 
@@ -70,7 +70,6 @@ namespace {
 
 constexpr int kNewItemIterations = 100;  // iterations during which only newly inserted items move
 constexpr int kSettleGrace = 50;         // iterations after exaggeration before the map may settle
-
 
 bool finite_vector(const std::vector<double>& v) {
   for (double x : v)
@@ -111,7 +110,8 @@ class EngineModel : public LiveModel {
   EngineModel(const Collection& collection, const EngineOptions& options, std::vector<Judgment> judgments, Points start)
       : options_(options), ids_(collection.ids), objective_(collection.size(), options.dims) {
     const size_t n = collection.size();
-    if (n < 2) throw std::invalid_argument("the engine needs at least 2 items, the collection has " + std::to_string(n));
+    if (n < 2)
+      throw std::invalid_argument("the engine needs at least 2 items, the collection has " + std::to_string(n));
     if (collection.features.rows() != Eigen::Index(n))
       throw std::invalid_argument("the collection has " + std::to_string(n) + " ids but " +
                                   std::to_string(collection.features.rows()) + " feature rows");
@@ -222,10 +222,15 @@ class EngineModel : public LiveModel {
     judgments_changed_ = true;
     return "";
   }
+  // "" or "WHAT: what is wrong" with a command's item and position.
+  std::string target_problem(const char* what, int32_t item, const std::vector<double>& position,
+                             bool allow_empty) const {
+    std::string e = item_problem(item, n());
+    if (e.empty()) e = position_problem(position, allow_empty);
+    return e.empty() ? e : what + (": " + e);
+  }
   std::string apply_one(const cmd::Pin& c) {
-    std::string e = item_problem(c.item, n());
-    if (e.empty()) e = position_problem(c.position, true);
-    if (!e.empty()) return "pin: " + e;
+    if (std::string e = target_problem("pin", c.item, c.position, true); !e.empty()) return e;
     if (!c.position.empty())
       for (int d = 0; d < options_.dims; ++d) y_(c.item, d) = c.position[size_t(d)];
     pins_[c.item] = y_.row(c.item);
@@ -239,9 +244,7 @@ class EngineModel : public LiveModel {
     return "";
   }
   std::string apply_one(const cmd::DragTarget& c) {
-    std::string e = item_problem(c.item, n());
-    if (e.empty()) e = position_problem(c.position, false);
-    if (!e.empty()) return "drag: " + e;
+    if (std::string e = target_problem("drag", c.item, c.position, false); !e.empty()) return e;
     Eigen::RowVectorXd t(options_.dims);
     for (int d = 0; d < options_.dims; ++d) t(d) = c.position[size_t(d)];
     y_.row(c.item) = t;
@@ -375,9 +378,9 @@ class EngineModel : public LiveModel {
     if (const auto* c = std::get_if<cmd::SetFeatures>(&body)) {
       if (!has_features_) return *error = "features: this collection has no features to replace", nullptr;
       if (c->features.rows() != raw_->rows() || c->features.cols() != raw_->cols())
-        return *error = "features: the map has " + std::to_string(raw_->rows()) + " x " +
-                        std::to_string(raw_->cols()) + " features, got " + std::to_string(c->features.rows()) +
-                        " x " + std::to_string(c->features.cols()),
+        return *error = "features: the map has " + std::to_string(raw_->rows()) + " x " + std::to_string(raw_->cols()) +
+                        " features, got " + std::to_string(c->features.rows()) + " x " +
+                        std::to_string(c->features.cols()),
                nullptr;
       if (!c->features.allFinite()) return *error = "features: NaN or infinite values", nullptr;
       if (c->regroup_iterations < 0 || !(c->regroup_exaggeration >= 1.0) || !std::isfinite(c->regroup_exaggeration))
@@ -430,7 +433,8 @@ class EngineModel : public LiveModel {
       if (has_features) {
         prepared = std::make_shared<const Points>(prepare_features(*all, FeaturePrepOptions{}));
         NeighbourGraph graph;
-        p = std::make_shared<const SparseAffinities>(joint_affinities_for(*prepared, perplexity, {o.seed, o.threads}, &graph));
+        p = std::make_shared<const SparseAffinities>(
+            joint_affinities_for(*prepared, perplexity, {o.seed, o.threads}, &graph));
         AffinityOptions ao;
         ao.perplexity = perplexity;
         const std::vector<double> cond = conditional_affinities(graph, ao);
@@ -507,7 +511,7 @@ class EngineModel : public LiveModel {
       optimizer_.reset();
       lr_scale_ *= 0.5;
     }
-    for (const auto& [i, p] : pins_) y_.row(i) = p;   // exactly, whatever rounding did
+    for (const auto& [i, p] : pins_) y_.row(i) = p;  // exactly, whatever rounding did
     for (const auto& [i, t] : drags_) y_.row(i) = t;
     ++schedule_it_;
     const Eigen::RowVectorXd centre = y_.colwise().mean();
@@ -594,7 +598,7 @@ class EngineModel : public LiveModel {
   bool ready_ = false;
   double perplexity_ = 30.0;
   double exaggeration_ = 1.0;
-  int64_t regroup_until_ = 0;    // SetFeatures: exaggerate by regroup_factor_ until this iteration
+  int64_t regroup_until_ = 0;  // SetFeatures: exaggerate by regroup_factor_ until this iteration
   double regroup_factor_ = 1.0;
   double current_factor_ = 0.0;
   double lr_scale_ = 1.0;
@@ -639,7 +643,8 @@ struct Engine::Impl {
   LiveLoop loop;
 };
 
-Engine::Engine(const Collection& collection, const EngineOptions& options, std::vector<Judgment> judgments, Points start)
+Engine::Engine(const Collection& collection, const EngineOptions& options, std::vector<Judgment> judgments,
+               Points start)
     : impl_(std::make_unique<Impl>(collection, options, std::move(judgments), std::move(start))) {}
 Engine::~Engine() { stop(); }
 void Engine::start() { impl_->loop.start(); }

@@ -24,9 +24,7 @@ ImFont* g_huge = nullptr;    // whose turn, in large type
 ImU32 rgb32(uint32_t rgb, float alpha = 1.f) {
   return IM_COL32((rgb >> 16) & 255, (rgb >> 8) & 255, rgb & 255, int(alpha * 255.f));
 }
-ImU32 colour32(const Rgb& c, float alpha = 1.f) {
-  return ImGui::ColorConvertFloat4ToU32(ImVec4(c.r, c.g, c.b, alpha));
-}
+ImU32 colour32(const Rgb& c, float alpha = 1.f) { return ImGui::ColorConvertFloat4ToU32(ImVec4(c.r, c.g, c.b, alpha)); }
 ImFont* font_or_current(ImFont* f) { return f ? f : ImGui::GetFont(); }
 }  // namespace
 
@@ -60,7 +58,9 @@ void AskingPanel::load_fonts(float scale) {
 
 AskingPanel::AskingPanel(const Collection& collection, MapView& view, DeskLinks links,
                          const std::unordered_map<std::string, int>& index_of_id)
-    : collection_(collection), view_(view), index_of_id_(index_of_id),
+    : collection_(collection),
+      view_(view),
+      index_of_id_(index_of_id),
       desk_(std::make_unique<AskingDesk>(collection, std::move(links))) {}
 
 AskingPanel::~AskingPanel() {
@@ -79,7 +79,8 @@ const AskingPanel::Texture* AskingPanel::texture(int item) {
     }
     Texture t;
     Picture pic;
-    if (load_picture(collection_.pictures[size_t(item)], &pic) && pic.width > 0 && pic.height > 0) {
+    // Question cards are drawn larger than map cards: up to 512 pixels a side.
+    if (load_picture(collection_.pictures[size_t(item)], &pic, 512) && pic.width > 0 && pic.height > 0) {
       glGenTextures(1, &t.id);
       glBindTexture(GL_TEXTURE_2D, t.id);
       glTexParameteri(GL_TEXTURE_2D, GL_TEXTURE_MIN_FILTER, GL_LINEAR);
@@ -164,7 +165,8 @@ bool AskingPanel::question_out_of_view() const {
   for (int i : desk_->question_items()) {
     if (size_t(i) >= view_.positions().size()) continue;
     const Projected p = cam.project(view_.positions()[size_t(i)]);
-    if (!p.visible || p.screen.x < 0 || p.screen.x > cam.width() || p.screen.y < top || p.screen.y > bottom) return true;
+    if (!p.visible || p.screen.x < 0 || p.screen.x > cam.width() || p.screen.y < top || p.screen.y > bottom)
+      return true;
   }
   return false;
 }
@@ -227,8 +229,9 @@ void AskingPanel::draw_people(float top) {
   ImGui::SetNextWindowPos(ImVec2(10, top + 8), ImGuiCond_Always);
   ImGui::SetNextWindowSize(ImVec2(w, 0), ImGuiCond_Always);
   ImGui::SetNextWindowBgAlpha(0.92f);
-  if (!ImGui::Begin("People", nullptr, ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoMove |
-                                           ImGuiWindowFlags_NoFocusOnAppearing | ImGuiWindowFlags_NoResize)) {
+  if (!ImGui::Begin("People", nullptr,
+                    ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoFocusOnAppearing |
+                        ImGuiWindowFlags_NoResize)) {
     ImGui::End();
     return;
   }
@@ -301,8 +304,10 @@ void AskingPanel::draw_people(float top) {
     o.grid_choose = std::clamp(o.grid_choose, 1, std::max(1, o.grid_size - 1));
     if (changed) {
       std::string e;
-      if (o.IsValid(&e)) desk_->set_flow_options(o);
-      else panel_message_ = e;
+      if (o.IsValid(&e))
+        desk_->set_flow_options(o);
+      else
+        panel_message_ = e;
     }
     ImGui::TreePop();
   }
@@ -356,7 +361,8 @@ void AskingPanel::card(int item, float side, const char* key_label, bool picked,
   std::string text = key_label ? std::string(key_label) : std::string();
   if (!collection_.pictures.empty()) {
     const std::string with_id = text + (text.empty() ? "" : "   ") + collection_.ids[size_t(item)];
-    if (text.empty() || ImGui::CalcTextSize(with_id.c_str()).x <= side - 2 * pad) text = with_id;  // the key matters more
+    if (text.empty() || ImGui::CalcTextSize(with_id.c_str()).x <= side - 2 * pad)
+      text = with_id;  // the key matters more
   }
   if (!text.empty()) {
     const ImVec2 ts = ImGui::CalcTextSize(text.c_str());
@@ -365,8 +371,10 @@ void AskingPanel::card(int item, float side, const char* key_label, bool picked,
   }
   dl->PopClipRect();
   // Frame: the map colour; thick in the person's colour when picked.
-  if (picked) dl->AddRect(ImVec2(at.x - 3, at.y - 3), ImVec2(end.x + 3, end.y + 3), rgb32(frame_rgb), 10.f, 0, 6.f);
-  else dl->AddRect(at, end, colour32(col, 0.9f), 8.f, 0, 2.f);
+  if (picked)
+    dl->AddRect(ImVec2(at.x - 3, at.y - 3), ImVec2(end.x + 3, end.y + 3), rgb32(frame_rgb), 10.f, 0, 6.f);
+  else
+    dl->AddRect(at, end, colour32(col, 0.9f), 8.f, 0, 2.f);
   ImGui::Dummy(ImVec2(side, side + caption));
 }
 
@@ -392,6 +400,15 @@ void no_question(const char* why) {
   ImGui::Dummy(ImVec2(1, 30));
   centred_text(why, 0, ImGui::GetIO().DisplaySize.x, g_medium);
 }
+// The band's vertical measures: a text line, the heading, the key line at the foot, a caption.
+struct BandLines {
+  float line, title_h, foot_h, caption;
+};
+BandLines band_lines() {
+  const float line = ImGui::GetTextLineHeightWithSpacing();
+  const float medium = g_medium ? g_medium->FontSize : line;
+  return {line, medium * 1.3f, line * 1.6f, line * 1.1f};
+}
 }  // namespace
 
 void AskingPanel::draw_pair() {
@@ -404,9 +421,7 @@ void AskingPanel::draw_pair() {
   }
   const Question shown = q;
   const ImGuiIO& io = ImGui::GetIO();
-  const float line = ImGui::GetTextLineHeightWithSpacing();
-  const float medium = g_medium ? g_medium->FontSize : line;
-  const float title_h = medium * 1.3f, foot_h = line * 1.6f, caption = line * 1.1f;
+  const auto [line, title_h, foot_h, caption] = band_lines();
   const float anchor_side = std::max(60.f, band - title_h - foot_h - caption - 24.f);
   const float side = std::floor(anchor_side * 0.82f);
   const float gap = std::max(40.f, io.DisplaySize.x * 0.06f);
@@ -416,7 +431,8 @@ void AskingPanel::draw_pair() {
   centred_text("Which is more like the one in the middle?", 0, io.DisplaySize.x, g_medium);
   const float cards_y = y0 + title_h;
   const float cand_y = cards_y + (anchor_side - side) * 0.5f;
-  const uint32_t who = desk_->flow().turn() >= 0 ? desk_->flow().people()[size_t(desk_->flow().turn())].colour : 0x0072B2;
+  const uint32_t who =
+      desk_->flow().turn() >= 0 ? desk_->flow().people()[size_t(desk_->flow().turn())].colour : 0x0072B2;
   ImGui::SetCursorScreenPos(ImVec2(x0, cand_y));
   card(shown.candidates[0], side, "\xe2\x86\x90  or 1", false, who);
   ImGui::SetCursorScreenPos(ImVec2(x0 + side + gap, cards_y));
@@ -424,9 +440,10 @@ void AskingPanel::draw_pair() {
   ImGui::SetCursorScreenPos(ImVec2(x0 + side + gap + anchor_side + gap, cand_y));
   card(shown.candidates[1], side, "\xe2\x86\x92  or 2", false, who);
   ImGui::SetCursorScreenPos(ImVec2(0, io.DisplaySize.y - foot_h));
-  centred_text("\xe2\x86\x90 / \xe2\x86\x92  closer      \xe2\x86\x93 or 0  can't tell      Backspace  undo      "
-               "W  next person      A  grid questions      Esc  stop",
-               0, io.DisplaySize.x);
+  centred_text(
+      "\xe2\x86\x90 / \xe2\x86\x92  closer      \xe2\x86\x93 or 0  can't tell      Backspace  undo      "
+      "W  next person      A  grid questions      Esc  stop",
+      0, io.DisplaySize.x);
   ImGui::End();
 }
 
@@ -440,9 +457,7 @@ void AskingPanel::draw_grid() {
   }
   const Question shown = q;
   const ImGuiIO& io = ImGui::GetIO();
-  const float line = ImGui::GetTextLineHeightWithSpacing();
-  const float medium = g_medium ? g_medium->FontSize : line;
-  const float title_h = medium * 1.3f, foot_h = line * 1.6f, caption = line * 1.1f;
+  const auto [line, title_h, foot_h, caption] = band_lines();
   const int n = int(shown.candidates.size());
   const int cols = n <= 4 ? n : (n + 1) / 2, rows = n <= 4 ? 1 : 2;
   const float avail_h = band - title_h - foot_h - 16.f;
@@ -456,20 +471,21 @@ void AskingPanel::draw_grid() {
   const std::string title = "Pick the " + std::to_string(shown.choose) + " most like the one on the left";
   centred_text(title.c_str(), 0, io.DisplaySize.x, g_medium);
   const float cards_y = y0 + title_h;
-  const uint32_t who = desk_->flow().turn() >= 0 ? desk_->flow().people()[size_t(desk_->flow().turn())].colour : 0x0072B2;
+  const uint32_t who =
+      desk_->flow().turn() >= 0 ? desk_->flow().people()[size_t(desk_->flow().turn())].colour : 0x0072B2;
   ImGui::SetCursorScreenPos(ImVec2(x0, cards_y + (avail_h - anchor_side - caption) * 0.5f));
   card(shown.anchor, anchor_side, nullptr, true, who);
   const auto& picks = desk_->grid_picks();
   for (int k = 0; k < n; ++k) {
     const int r = k / cols, c = k % cols;
-    ImGui::SetCursorScreenPos(
-        ImVec2(x0 + anchor_side + 40.f + c * (side + gap), cards_y + r * (side + caption + gap)));
+    ImGui::SetCursorScreenPos(ImVec2(x0 + anchor_side + 40.f + c * (side + gap), cards_y + r * (side + caption + gap)));
     const std::string key = std::to_string(k + 1);
     const bool picked = std::find(picks.begin(), picks.end(), k) != picks.end();
     card(shown.candidates[size_t(k)], side, key.c_str(), picked, who);
   }
   ImGui::SetCursorScreenPos(ImVec2(0, io.DisplaySize.y - foot_h));
-  const std::string foot = "1.." + std::to_string(n) + "  pick / unpick      0  can't tell      Backspace  undo      "
+  const std::string foot = "1.." + std::to_string(n) +
+                           "  pick / unpick      0  can't tell      Backspace  undo      "
                            "W  next person      A  pair questions      Esc  stop";
   centred_text(foot.c_str(), 0, io.DisplaySize.x);
   ImGui::End();
@@ -520,9 +536,9 @@ void AskingPanel::draw_own(float top) {
     }
     return 0;
   };
-  if (ImGui::InputTextWithHint("##ownline", "or type ids: anchor nearer farther  (Tab completes)", own_line_,
-                               sizeof own_line_, ImGuiInputTextFlags_EnterReturnsTrue | ImGuiInputTextFlags_CallbackCompletion,
-                               complete, &ctx)) {
+  if (ImGui::InputTextWithHint(
+          "##ownline", "or type ids: anchor nearer farther  (Tab completes)", own_line_, sizeof own_line_,
+          ImGuiInputTextFlags_EnterReturnsTrue | ImGuiInputTextFlags_CallbackCompletion, complete, &ctx)) {
     std::array<int, 3> items{};
     const std::string e = parse_own_line(own_line_, index_of_id_, &items);
     if (!e.empty()) {
@@ -551,7 +567,8 @@ void AskingPanel::draw_own(float top) {
 
 void AskingPanel::draw_map_marks(float inv_scale) {
   std::vector<int> items;
-  const uint32_t who = desk_->flow().turn() >= 0 ? desk_->flow().people()[size_t(desk_->flow().turn())].colour : 0x0072B2;
+  const uint32_t who =
+      desk_->flow().turn() >= 0 ? desk_->flow().people()[size_t(desk_->flow().turn())].colour : 0x0072B2;
   if (desk_->mode() == AskingMode::kOwn) {
     for (int i : desk_->own().slots())
       if (i >= 0) items.push_back(i);
@@ -578,10 +595,14 @@ void AskingPanel::draw_map_marks(float inv_scale) {
     const ImVec2 p = at(items[k]);
     dl->AddCircle(p, k == 0 ? r * 1.4f : r, rgb32(who), 24, k == 0 ? 4.f : 2.5f);
     std::string label;
-    if (desk_->mode() == AskingMode::kOwn) label = k == 0 ? "this" : k == 1 ? "nearer" : "farther";
-    else if (k == 0) label = "anchor";
-    else if (desk_->mode() == AskingMode::kPair) label = k == 1 ? "left" : "right";
-    else label = std::to_string(k);
+    if (desk_->mode() == AskingMode::kOwn)
+      label = k == 0 ? "this" : k == 1 ? "nearer" : "farther";
+    else if (k == 0)
+      label = "anchor";
+    else if (desk_->mode() == AskingMode::kPair)
+      label = k == 1 ? "left" : "right";
+    else
+      label = std::to_string(k);
     dl->AddText(ImVec2(p.x + r + 4, p.y - r - 4), ink, label.c_str());
   }
 }
@@ -617,8 +638,11 @@ nlohmann::json AskingPanel::state() {
   for (const Answer& a : desk_->flow().answers()) {
     json js = json::array();
     for (const Judgment& t : a.judgments)
-      js.push_back({{"id", t.id}, {"anchor", collection_.ids[size_t(t.anchor)]}, {"nearer", collection_.ids[size_t(t.nearer)]},
-                    {"farther", collection_.ids[size_t(t.farther)]}, {"person", t.person}});
+      js.push_back({{"id", t.id},
+                    {"anchor", collection_.ids[size_t(t.anchor)]},
+                    {"nearer", collection_.ids[size_t(t.nearer)]},
+                    {"farther", collection_.ids[size_t(t.farther)]},
+                    {"person", t.person}});
     answers.push_back({{"person", a.person >= 0 ? desk_->flow().people()[size_t(a.person)].name : ""},
                        {"cant_tell", a.cant_tell},
                        {"undone", a.undone},

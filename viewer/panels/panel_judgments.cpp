@@ -11,6 +11,7 @@
 #include <filesystem>
 
 #include "solver/io/judgment_io.h"
+#include "viewer/panels/ui_style.h"
 
 namespace kith {
 
@@ -33,6 +34,13 @@ const std::string& name_of(const std::vector<std::string>& ids, int32_t item) {
   return item >= 0 && size_t(item) < ids.size() ? ids[size_t(item)] : unknown;
 }
 std::string person_label(const std::string& person) { return person.empty() ? "(no name)" : person; }
+// Three table columns: the judgment's anchor, nearer and farther item.
+void name_columns(const std::vector<std::string>& ids, const Judgment& j) {
+  for (const int32_t item : {j.anchor, j.nearer, j.farther}) {
+    ImGui::TableNextColumn();
+    ImGui::TextUnformatted(name_of(ids, item).c_str());
+  }
+}
 }  // namespace
 
 // ============================================================================ [SECTION] actions (no ImGui)
@@ -313,17 +321,15 @@ void JudgmentsPanel::tab_list() {
   const ImGuiTableFlags flags = ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV |
                                 ImGuiTableFlags_Resizable | ImGuiTableFlags_SizingFixedFit;
   if (!ImGui::BeginTable("judgments", 9, flags, ImVec2(0, ImGui::GetContentRegionAvail().y))) return;
-  ImGui::TableSetupScrollFreeze(0, 1);
-  ImGui::TableSetupColumn("id");
-  ImGui::TableSetupColumn("anchor", ImGuiTableColumnFlags_WidthStretch);
-  ImGui::TableSetupColumn("nearer", ImGuiTableColumnFlags_WidthStretch);
-  ImGui::TableSetupColumn("farther", ImGuiTableColumnFlags_WidthStretch);
-  ImGui::TableSetupColumn("person");
-  ImGui::TableSetupColumn("time (UTC)");
-  ImGui::TableSetupColumn("kind");
-  ImGui::TableSetupColumn("state");
-  ImGui::TableSetupColumn("");
-  ImGui::TableHeadersRow();
+  table_heading({{"id"},
+                 {"anchor", 0.f, true},
+                 {"nearer", 0.f, true},
+                 {"farther", 0.f, true},
+                 {"person"},
+                 {"time (UTC)"},
+                 {"kind"},
+                 {"state"},
+                 {""}});
   ImGuiListClipper clipper;
   clipper.Begin(int(r.size()));
   const float row_height = ImGui::GetFrameHeight();
@@ -355,12 +361,7 @@ void JudgmentsPanel::tab_list() {
       if (ImGui::IsItemHovered())
         ImGui::SetTooltip("show %s, %s and %s in the map", name_of(collection_.ids, j.anchor).c_str(),
                           name_of(collection_.ids, j.nearer).c_str(), name_of(collection_.ids, j.farther).c_str());
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(name_of(collection_.ids, j.anchor).c_str());
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(name_of(collection_.ids, j.nearer).c_str());
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(name_of(collection_.ids, j.farther).c_str());
+      name_columns(collection_.ids, j);
       ImGui::TableNextColumn();
       if (!j.retracted)
         ImGui::TextColored(to_imvec(person_colour(j.person)), "%s", person_label(j.person).c_str());
@@ -481,13 +482,7 @@ void JudgmentsPanel::tab_agreement() {
   const ImGuiTableFlags list_flags = flags | ImGuiTableFlags_ScrollY;
   const float h = std::max(ImGui::GetContentRegionAvail().y, 4 * ImGui::GetFrameHeight());
   if (!violated_.empty() && ImGui::BeginTable("violated", 5, list_flags, ImVec2(0, h))) {
-    ImGui::TableSetupScrollFreeze(0, 1);
-    ImGui::TableSetupColumn("p");
-    ImGui::TableSetupColumn("anchor", ImGuiTableColumnFlags_WidthStretch);
-    ImGui::TableSetupColumn("nearer", ImGuiTableColumnFlags_WidthStretch);
-    ImGui::TableSetupColumn("farther", ImGuiTableColumnFlags_WidthStretch);
-    ImGui::TableSetupColumn("person");
-    ImGui::TableHeadersRow();
+    table_heading({{"p"}, {"anchor", 0.f, true}, {"nearer", 0.f, true}, {"farther", 0.f, true}, {"person"}});
     ImGuiListClipper clipper;
     clipper.Begin(int(violated_.size()));
     size_t click = kNone;
@@ -502,12 +497,7 @@ void JudgmentsPanel::tab_agreement() {
         char p[16];
         std::snprintf(p, sizeof p, "%.3f", v.probability);
         if (ImGui::Selectable(p, v.index == chosen_, ImGuiSelectableFlags_SpanAllColumns)) click = v.index;
-        ImGui::TableNextColumn();
-        ImGui::TextUnformatted(name_of(collection_.ids, j.anchor).c_str());
-        ImGui::TableNextColumn();
-        ImGui::TextUnformatted(name_of(collection_.ids, j.nearer).c_str());
-        ImGui::TableNextColumn();
-        ImGui::TextUnformatted(name_of(collection_.ids, j.farther).c_str());
+        name_columns(collection_.ids, j);
         ImGui::TableNextColumn();
         ImGui::TextUnformatted(person_label(j.person).c_str());
         ImGui::PopID();

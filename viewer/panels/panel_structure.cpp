@@ -10,6 +10,7 @@
 
 #include "solver/fit/fit.h"
 #include "solver/measures/neighbour_compare.h"
+#include "viewer/panels/ui_style.h"
 
 namespace kith {
 
@@ -154,12 +155,7 @@ void StructurePanel::tab_suspects() {
   const float list_h = chosen_suspect_ >= 0 ? 180.f : 0.f;
   if (ImGui::BeginTable("suspects", 4, ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerH,
                         ImVec2(0, list_h))) {
-    ImGui::TableSetupScrollFreeze(0, 1);
-    ImGui::TableSetupColumn("item");
-    ImGui::TableSetupColumn("tag");
-    ImGui::TableSetupColumn("score");
-    ImGui::TableSetupColumn("leans to");
-    ImGui::TableHeadersRow();
+    table_heading({{"item"}, {"tag"}, {"score"}, {"leans to"}});
     ImGuiListClipper clipper;
     clipper.Begin(int(s.ranking.size()));
     while (clipper.Step())
@@ -208,8 +204,10 @@ void StructurePanel::tab_suspects() {
         const int j = g->index[size_t(i) * g->k + r];
         const std::string& t = tag_of(j);
         const std::string text = collection_.ids[size_t(j)] + "  " + t;
-        if (t != tag_of(i)) ImGui::TextColored(to_imvec(differ), "%s", text.c_str());
-        else ImGui::TextUnformatted(text.c_str());
+        if (t != tag_of(i))
+          ImGui::TextColored(to_imvec(differ), "%s", text.c_str());
+        else
+          ImGui::TextUnformatted(text.c_str());
       }
     }
     ImGui::EndTable();
@@ -227,20 +225,17 @@ void StructurePanel::tab_groups() {
     view_.set_groups("groups", std::vector<int>(g.label.begin(), g.label.end()), names);
   }
   if (ImGui::BeginTable("groups", 4, ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerH)) {
-    ImGui::TableSetupScrollFreeze(0, 1);
-    ImGui::TableSetupColumn("group", ImGuiTableColumnFlags_WidthFixed, 50);
-    ImGui::TableSetupColumn("size", ImGuiTableColumnFlags_WidthFixed, 50);
-    ImGui::TableSetupColumn("tags");
-    ImGui::TableSetupColumn("purity", ImGuiTableColumnFlags_WidthFixed, 50);
-    ImGui::TableHeadersRow();
+    table_heading({{"group", 50.f}, {"size", 50.f}, {"tags"}, {"purity", 50.f}});
     for (size_t k = 0; k < g.groups.size(); ++k) {
       const Group& grp = g.groups[k];
       ImGui::TableNextRow();
       ImGui::TableNextColumn();
       ImGui::PushID(int(k));
-      ImGui::ColorButton("##c", to_imvec(view_.palette().category(int(k))), ImGuiColorEditFlags_NoTooltip, ImVec2(10, 10));
+      ImGui::ColorButton("##c", to_imvec(view_.palette().category(int(k))), ImGuiColorEditFlags_NoTooltip,
+                         ImVec2(10, 10));
       ImGui::SameLine();
-      if (ImGui::Selectable(std::to_string(k + 1).c_str(), int(k) == chosen_group_, ImGuiSelectableFlags_SpanAllColumns)) {
+      if (ImGui::Selectable(std::to_string(k + 1).c_str(), int(k) == chosen_group_,
+                            ImGuiSelectableFlags_SpanAllColumns)) {
         chosen_group_ = int(k);
         view_.selection().set(std::vector<int>(grp.members.begin(), grp.members.end()));
         view_.selection_changed();
@@ -258,8 +253,10 @@ void StructurePanel::tab_groups() {
       }
       ImGui::TextUnformatted(tags.c_str());
       ImGui::TableNextColumn();
-      if (grp.tags.empty()) ImGui::TextDisabled("-");
-      else ImGui::Text("%.2f", grp.purity);
+      if (grp.tags.empty())
+        ImGui::TextDisabled("-");
+      else
+        ImGui::Text("%.2f", grp.purity);
     }
     ImGui::EndTable();
   }
@@ -309,21 +306,7 @@ void StructurePanel::tab_neighbours() {
     view_.set_measure("neighbours kept", std::vector<float>(found_->kept.begin(), found_->kept.end()));
   const std::vector<int32_t> worst = worst_kept(found_->kept, 50);
   if (ImGui::BeginTable("worst", 3, ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg, ImVec2(0, 160))) {
-    for (int32_t i : worst) {
-      ImGui::TableNextRow();
-      ImGui::TableNextColumn();
-      ImGui::PushID(i);
-      if (ImGui::Selectable(collection_.ids[size_t(i)].c_str(), false, ImGuiSelectableFlags_SpanAllColumns)) {
-        view_.selection().set({i});
-        view_.selection_changed();
-        view_.focus_selection();
-      }
-      ImGui::PopID();
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(tag_of(i).c_str());
-      ImGui::TableNextColumn();
-      ImGui::Text("%.2f", found_->kept[size_t(i)]);
-    }
+    for (int32_t i : worst) item_row(i, false, "%.2f", found_->kept[size_t(i)]);
     ImGui::EndTable();
   }
 }
@@ -331,6 +314,24 @@ void StructurePanel::tab_neighbours() {
 }  // namespace kith
 
 namespace kith {
+
+// One table row of three columns: the item's id (choosing it selects it and flies there), its
+// tag, and VALUE printed with FORMAT.
+void StructurePanel::item_row(int item, bool selected, const char* format, double value) {
+  ImGui::TableNextRow();
+  ImGui::TableNextColumn();
+  ImGui::PushID(item);
+  if (ImGui::Selectable(collection_.ids[size_t(item)].c_str(), selected, ImGuiSelectableFlags_SpanAllColumns)) {
+    view_.selection().set({item});
+    view_.selection_changed();
+    view_.focus_selection();
+  }
+  ImGui::PopID();
+  ImGui::TableNextColumn();
+  ImGui::TextUnformatted(tag_of(item).c_str());
+  ImGui::TableNextColumn();
+  ImGui::Text(format, value);
+}
 
 void StructurePanel::fit_reference() {
   if (reference_job_.valid() || collection_.features.cols() == 0) return;
@@ -384,24 +385,12 @@ void StructurePanel::tab_moved() {
   ImGui::SameLine();
   if (ImGui::Button("Colour by displacement"))
     view_.set_measure("moved by judgments", std::vector<float>(moved_->distance.begin(), moved_->distance.end()));
-  ImGui::TextDisabled("aligned by rotation, scale %.3g and shift; rms %.3g", moved_->alignment.scale, moved_->alignment.rms);
+  ImGui::TextDisabled("aligned by rotation, scale %.3g and shift; rms %.3g", moved_->alignment.scale,
+                      moved_->alignment.rms);
   if (ImGui::BeginTable("moved", 3, ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg, ImVec2(0, 200))) {
     for (size_t r = 0; r < std::min<size_t>(100, moved_->ranking.size()); ++r) {
       const int32_t i = moved_->ranking[r];
-      ImGui::TableNextRow();
-      ImGui::TableNextColumn();
-      ImGui::PushID(i);
-      if (ImGui::Selectable(collection_.ids[size_t(i)].c_str(), view_.selection().contains(i),
-                            ImGuiSelectableFlags_SpanAllColumns)) {
-        view_.selection().set({i});
-        view_.selection_changed();
-        view_.focus_selection();
-      }
-      ImGui::PopID();
-      ImGui::TableNextColumn();
-      ImGui::TextUnformatted(tag_of(i).c_str());
-      ImGui::TableNextColumn();
-      ImGui::Text("%.3g", moved_->distance[size_t(i)]);
+      item_row(i, view_.selection().contains(i), "%.3g", moved_->distance[size_t(i)]);
     }
     ImGui::EndTable();
   }

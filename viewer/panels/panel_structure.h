@@ -15,8 +15,8 @@
 // tags (nothing shared); the panel polls its result each frame. Window thread only.
 #pragma once
 #include <future>
-#include <optional>
 #include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -52,6 +52,7 @@ class StructurePanel {
   void tab_moved();
   void poll_reference();
   const std::string& tag_of(int item) const;
+  void item_row(int item, bool selected, const char* format, double value);
 
   const Collection& collection_;
   MapView& view_;
@@ -67,8 +68,8 @@ class StructurePanel {
   std::future<std::shared_ptr<Points>> reference_job_;
   std::shared_ptr<Points> reference_;
   std::optional<Displacement> moved_;
-  Points moved_map_;                 // the map the displacement was measured on
-  int pulls_item_ = -1;              // item whose judgment pulls are cached
+  Points moved_map_;     // the map the displacement was measured on
+  int pulls_item_ = -1;  // item whose judgment pulls are cached
   std::vector<JudgmentPull> pulls_;
 };
 

@@ -3,6 +3,7 @@
 #include <imgui.h>
 
 #include <filesystem>
+#include <utility>
 
 namespace kith {
 
@@ -15,9 +16,7 @@ void apply_ui_style(bool dark) {
   ImGuiStyle& s = ImGui::GetStyle();
   s = ImGuiStyle();
   s.WindowRounding = 6.f;
-  s.FrameRounding = 4.f;
-  s.GrabRounding = 4.f;
-  s.PopupRounding = 4.f;
+  s.FrameRounding = s.GrabRounding = s.PopupRounding = 4.f;
   s.WindowBorderSize = 1.f;
   s.FrameBorderSize = 0.f;
   s.WindowPadding = ImVec2(10, 8);
@@ -29,39 +28,53 @@ void apply_ui_style(bool dark) {
   const Rgb frame_hover = dark ? rgb_hex(0x3F464E) : rgb_hex(0xDED7C7);
   const Rgb accent = rgb_hex(0x0072B2);
   const Rgb accent_soft = dark ? rgb_hex(0x1F4D6B) : rgb_hex(0xC9DDEB);
-  ImVec4* col = s.Colors;
-  col[ImGuiCol_Text] = c(p.ink);
-  col[ImGuiCol_TextDisabled] = c(p.muted);
-  col[ImGuiCol_WindowBg] = c(panel, 0.96f);
-  col[ImGuiCol_ChildBg] = c(panel, 0.f);
-  col[ImGuiCol_PopupBg] = c(panel, 0.98f);
-  col[ImGuiCol_Border] = c(p.faint);
-  col[ImGuiCol_FrameBg] = c(frame);
-  col[ImGuiCol_FrameBgHovered] = c(frame_hover);
-  col[ImGuiCol_FrameBgActive] = c(accent_soft);
-  col[ImGuiCol_TitleBg] = c(frame);
-  col[ImGuiCol_TitleBgActive] = c(frame_hover);
-  col[ImGuiCol_TitleBgCollapsed] = c(frame, 0.8f);
-  col[ImGuiCol_MenuBarBg] = c(frame);
-  col[ImGuiCol_ScrollbarBg] = c(panel, 0.f);
-  col[ImGuiCol_ScrollbarGrab] = c(frame_hover);
-  col[ImGuiCol_CheckMark] = c(accent);
-  col[ImGuiCol_SliderGrab] = c(accent);
-  col[ImGuiCol_SliderGrabActive] = c(rgb_hex(0xD55E00));
-  col[ImGuiCol_Button] = c(frame);
-  col[ImGuiCol_ButtonHovered] = c(accent_soft);
-  col[ImGuiCol_ButtonActive] = c(accent, 0.7f);
-  col[ImGuiCol_Header] = c(accent_soft, 0.7f);
-  col[ImGuiCol_HeaderHovered] = c(accent_soft);
-  col[ImGuiCol_HeaderActive] = c(accent, 0.6f);
-  col[ImGuiCol_Separator] = c(p.faint);
-  col[ImGuiCol_Tab] = c(frame);
-  col[ImGuiCol_TabHovered] = c(accent_soft);
-  col[ImGuiCol_TabActive] = c(accent_soft);
-  col[ImGuiCol_PlotLines] = c(accent);
-  col[ImGuiCol_PlotHistogram] = c(accent);
-  col[ImGuiCol_TableHeaderBg] = c(frame);
-  col[ImGuiCol_TableRowBgAlt] = c(frame, 0.35f);
+  // Which colour each part of the interface takes.
+  const std::pair<ImGuiCol, ImVec4> colours[] = {
+      {ImGuiCol_Text, c(p.ink)},
+      {ImGuiCol_TextDisabled, c(p.muted)},
+      {ImGuiCol_WindowBg, c(panel, 0.96f)},
+      {ImGuiCol_ChildBg, c(panel, 0.f)},
+      {ImGuiCol_PopupBg, c(panel, 0.98f)},
+      {ImGuiCol_Border, c(p.faint)},
+      {ImGuiCol_FrameBg, c(frame)},
+      {ImGuiCol_FrameBgHovered, c(frame_hover)},
+      {ImGuiCol_FrameBgActive, c(accent_soft)},
+      {ImGuiCol_TitleBg, c(frame)},
+      {ImGuiCol_TitleBgActive, c(frame_hover)},
+      {ImGuiCol_TitleBgCollapsed, c(frame, 0.8f)},
+      {ImGuiCol_MenuBarBg, c(frame)},
+      {ImGuiCol_ScrollbarBg, c(panel, 0.f)},
+      {ImGuiCol_ScrollbarGrab, c(frame_hover)},
+      {ImGuiCol_CheckMark, c(accent)},
+      {ImGuiCol_SliderGrab, c(accent)},
+      {ImGuiCol_SliderGrabActive, c(rgb_hex(0xD55E00))},
+      {ImGuiCol_Button, c(frame)},
+      {ImGuiCol_ButtonHovered, c(accent_soft)},
+      {ImGuiCol_ButtonActive, c(accent, 0.7f)},
+      {ImGuiCol_Header, c(accent_soft, 0.7f)},
+      {ImGuiCol_HeaderHovered, c(accent_soft)},
+      {ImGuiCol_HeaderActive, c(accent, 0.6f)},
+      {ImGuiCol_Separator, c(p.faint)},
+      {ImGuiCol_Tab, c(frame)},
+      {ImGuiCol_TabHovered, c(accent_soft)},
+      {ImGuiCol_TabActive, c(accent_soft)},
+      {ImGuiCol_PlotLines, c(accent)},
+      {ImGuiCol_PlotHistogram, c(accent)},
+      {ImGuiCol_TableHeaderBg, c(frame)},
+      {ImGuiCol_TableRowBgAlt, c(frame, 0.35f)},
+  };
+  for (const auto& [part, colour] : colours) s.Colors[part] = colour;
+}
+
+void table_heading(std::initializer_list<TableColumn> columns) {
+  ImGui::TableSetupScrollFreeze(0, 1);
+  for (const TableColumn& c : columns) {
+    const ImGuiTableColumnFlags flags = c.stretch           ? ImGuiTableColumnFlags_WidthStretch
+                                        : c.fixed_width > 0 ? ImGuiTableColumnFlags_WidthFixed
+                                                            : ImGuiTableColumnFlags_None;
+    ImGui::TableSetupColumn(c.name, flags, c.fixed_width);
+  }
+  ImGui::TableHeadersRow();
 }
 
 void load_ui_font(float pixels) {

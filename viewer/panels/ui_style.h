@@ -3,6 +3,7 @@
 // box drawn over the map, shared by the window and the windowless PNG path.
 // Call with the ImGui context current, from the thread that owns it.
 #pragma once
+#include <initializer_list>
 #include <string>
 
 #include "viewer/scene/map_view.h"
@@ -11,6 +12,16 @@ namespace kith {
 
 void apply_ui_style(bool dark);
 void load_ui_font(float pixels);
+
+// A table column: its heading, and a fixed width in pixels or a share of what is left (stretch).
+struct TableColumn {
+  const char* name;
+  float fixed_width = 0.f;  // 0: ImGui's default sizing
+  bool stretch = false;
+};
+// Inside BeginTable: sets the columns up and draws the heading row, which stays in view while the
+// rows scroll.
+void table_heading(std::initializer_list<TableColumn> columns);
 
 // The title and colour legend in the top-left corner. Returns the tag value clicked, if any
 // (column, value) so the caller can select those items; column -1 when nothing was clicked.

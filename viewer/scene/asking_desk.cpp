@@ -1,11 +1,11 @@
 #include "viewer/scene/asking_desk.h"
 
-#include "viewer/scene/keys.h"
-
 #include <algorithm>
 #include <cctype>
 #include <cstdio>
 #include <sstream>
+
+#include "viewer/scene/keys.h"
 
 namespace kith {
 
@@ -15,9 +15,9 @@ KeyAction asking_key_action(AskingMode mode, int key, int mods, int grid_size) {
   const bool shift = mods & keys::kShift, ctrl = mods & (keys::kControl | keys::kAlt | keys::kSuper);
   KeyAction a;
   if (ctrl) return a;  // ctrl+A, ctrl+Q stay the window's
-  const int digit = key >= keys::k0 && key <= keys::k9   ? key - keys::k0
+  const int digit = key >= keys::k0 && key <= keys::k9       ? key - keys::k0
                     : key >= keys::kKp0 && key <= keys::kKp9 ? key - keys::kKp0
-                                                               : -1;
+                                                             : -1;
   // Keys that mean the same everywhere.
   if (key == keys::letter('b')) return {AskingAction::kLargeType};
   if (key == keys::letter('w')) return {shift ? AskingAction::kPrevPerson : AskingAction::kNextPerson};
@@ -99,8 +99,7 @@ size_t last_word_start(const std::string& line) {
 std::string parse_own_line(const std::string& line, const std::unordered_map<std::string, int>& index_of_id,
                            std::array<int, 3>* items) {
   const std::vector<std::string> words = words_of(line);
-  if (words.size() != 3)
-    return "three ids are needed (anchor, nearer, farther), got " + std::to_string(words.size());
+  if (words.size() != 3) return "three ids are needed (anchor, nearer, farther), got " + std::to_string(words.size());
   std::array<int, 3> out{};
   for (size_t k = 0; k < 3; ++k) {
     auto it = index_of_id.find(words[k]);
@@ -150,7 +149,8 @@ AskingDesk::AskingDesk(const Collection& collection, DeskLinks links, QuestionFl
               picker_.set_selection(selection);
               PickerInput in;
               in.map = &s->positions;
-              const bool features = collection_.features.rows() == s->positions.rows() && collection_.features.cols() > 0;
+              const bool features =
+                  collection_.features.rows() == s->positions.rows() && collection_.features.cols() > 0;
               in.features = features ? &collection_.features : nullptr;
               in.judgments = &js;
               return picker_.next(in, kind, n, k);
@@ -293,8 +293,7 @@ std::string AskingDesk::post_answer(std::vector<Judgment> judgments) {
   }
   flow_.set_judgment_ids(ids);
   const Answer& a = flow_.answers().back();
-  if (a.question.reask)
-    record(event::Reasked{turn_name(), asked(a.question), ids});
+  if (a.question.reask) record(event::Reasked{turn_name(), asked(a.question), ids});
   return "";
 }
 
@@ -383,22 +382,22 @@ bool AskingDesk::key(int k, int mods) {
   return act(asking_key_action(mode_, k, mods, n));
 }
 
+bool AskingDesk::start(AskingMode mode, std::string message) {
+  set_mode(mode);
+  message_ = std::move(message);
+  return true;
+}
+
 bool AskingDesk::act(KeyAction a) {
   switch (a.action) {
     case AskingAction::kNone:
       return false;
     case AskingAction::kStartPair:
-      set_mode(AskingMode::kPair);
-      message_ = "pair questions";
-      return true;
+      return start(AskingMode::kPair, "pair questions");
     case AskingAction::kStartGrid:
-      set_mode(AskingMode::kGrid);
-      message_ = "grid questions: pick " + std::to_string(flow_.options().grid_choose);
-      return true;
+      return start(AskingMode::kGrid, "grid questions: pick " + std::to_string(flow_.options().grid_choose));
     case AskingAction::kStartOwn:
-      set_mode(AskingMode::kOwn);
-      message_ = "your own judgment: click the anchor, then the nearer, then the farther item";
-      return true;
+      return start(AskingMode::kOwn, "your own judgment: click the anchor, then the nearer, then the farther item");
     case AskingAction::kLeave:
       if (mode_ == AskingMode::kOwn && own_.filled() > 0) {
         own_.clear();

@@ -19,12 +19,12 @@
 #include <unordered_map>
 #include <vector>
 
-#include "solver/io/collection.h"
-#include "solver/live/commands.h"
-#include "solver/live/snapshot.h"
 #include "solver/asking/picker.h"
 #include "solver/asking/question_flow.h"
 #include "solver/asking/session_event.h"
+#include "solver/io/collection.h"
+#include "solver/live/commands.h"
+#include "solver/live/snapshot.h"
 
 namespace kith {
 
@@ -45,7 +45,7 @@ enum class AskingAction {
   kCommit,      // Enter (own): store the judgment
   kNextPerson,  // W / shift+W: the facilitator moves the turn on / back
   kPrevPerson,
-  kLargeType,   // B: big (large) type on/off
+  kLargeType,  // B: big (large) type on/off
 };
 struct KeyAction {
   AskingAction action = AskingAction::kNone;
@@ -60,7 +60,7 @@ class OwnDraft {
  public:
   // Fills the next empty slot; returns "" or why not (the draft is full, the item is already in it).
   std::string add(int item);
-  void back();   // empties the last filled slot
+  void back();  // empties the last filled slot
   void clear() { slots_ = {-1, -1, -1}; }
   int filled() const;  // 0..3
   bool complete() const { return filled() == 3; }
@@ -138,6 +138,7 @@ class AskingDesk {
   std::string commit_own();
 
  private:
+  bool start(AskingMode mode, std::string message);  // set_mode, then say MESSAGE
   std::string post_answer(std::vector<Judgment> judgments);
   std::string answer_pair(bool left);
   std::string answer_cant_tell();

@@ -1,6 +1,5 @@
 #include "viewer/scene/map_view.h"
 
-#include <stb_image.h>
 
 #include <algorithm>
 #include <cmath>
@@ -8,6 +7,7 @@
 #include <numeric>
 #include <random>
 
+#include "solver/features/picture_file.h"
 #include "viewer/scene/picking.h"
 
 namespace kith {
@@ -22,17 +22,17 @@ std::string ViewOptions::IsValid() const {
   return "";
 }
 
-bool load_picture(const std::string& path, Picture* out) {
-  int w = 0, h = 0, channels = 0;
-  unsigned char* data = stbi_load(path.c_str(), &w, &h, &channels, 4);
-  if (!data) {
+bool load_picture(const std::string& path, Picture* out, int max_side, std::string* why) {
+  Rgba8Picture pic;
+  const std::string problem = decode_picture_rgba8(path, max_side, &pic);
+  if (why) *why = problem;
+  if (!problem.empty()) {
     *out = Picture{};
     return false;
   }
-  out->width = w;
-  out->height = h;
-  out->rgba.assign(data, data + size_t(w) * h * 4);
-  stbi_image_free(data);
+  out->width = pic.width;
+  out->height = pic.height;
+  out->rgba = std::move(pic.rgba);
   return true;
 }
 

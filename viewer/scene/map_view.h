@@ -188,7 +188,9 @@ class MapView {
   float grid_floor_y_ = 0.f;
 };
 
-// Decodes a PNG/JPEG with stb_image; false (and an empty picture) if it cannot.
-bool load_picture(const std::string& path, Picture* out);
+// Decodes a PNG/JPEG shrunk to at most MAX_SIDE pixels a side (solver/features/picture_file.h);
+// false (and an empty picture, with the reason in *WHY) if it cannot.
+constexpr int kCardPictureSide = 256;  // map cards are drawn at most 240 pixels wide
+bool load_picture(const std::string& path, Picture* out, int max_side = kCardPictureSide, std::string* why = nullptr);
 
 }  // namespace kith

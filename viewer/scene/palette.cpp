@@ -16,30 +16,16 @@ Rgb Palette::ramp(float t) const {
   return t < 0.6f ? mix(low, mid, t / 0.6f) : mix(mid, high, (t - 0.6f) / 0.4f);
 }
 
+// Each ground's colours in the order of the struct: ground, ink, faint, muted, nearer, farther,
+// card frame.
 Palette Palette::paper() {
-  Palette p;
-  p.ground = rgb_hex(0xF3EFE6);
-  p.ink = rgb_hex(0x2B2A28);
-  p.faint = rgb_hex(0xD9D3C5);
-  p.muted = rgb_hex(0xA8A49B);
-  p.nearer = rgb_hex(0x009E73);
-  p.farther = rgb_hex(0xD55E00);
-  p.card_frame = rgb_hex(0xFFFDF8);
-  p.dark = false;
-  return p;
+  return {rgb_hex(0xF3EFE6), rgb_hex(0x2B2A28), rgb_hex(0xD9D3C5), rgb_hex(0xA8A49B),
+          rgb_hex(0x009E73), rgb_hex(0xD55E00), rgb_hex(0xFFFDF8), false};
 }
 
 Palette Palette::night() {
-  Palette p;
-  p.ground = rgb_hex(0x1F2226);
-  p.ink = rgb_hex(0xECE8DF);
-  p.faint = rgb_hex(0x343A40);
-  p.muted = rgb_hex(0x6B6F75);
-  p.nearer = rgb_hex(0x2BC59A);
-  p.farther = rgb_hex(0xF07B3F);
-  p.card_frame = rgb_hex(0x2E3238);
-  p.dark = true;
-  return p;
+  return {rgb_hex(0x1F2226), rgb_hex(0xECE8DF), rgb_hex(0x343A40), rgb_hex(0x6B6F75),
+          rgb_hex(0x2BC59A), rgb_hex(0xF07B3F), rgb_hex(0x2E3238), true};
 }
 
 }  // namespace kith
