@@ -5,10 +5,14 @@
 #include <doctest/doctest.h>
 #include <signal.h>
 #include <sqlite3.h>
+#include <fcntl.h>
+#include <poll.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
 #include <cstdio>
+#include <filesystem>
+#include <fstream>
 #include <map>
 #include <random>
 #include <sstream>
@@ -16,6 +20,7 @@
 #include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
+#include "tests/window_support.h"
 
 using kith::SessionError;
 using kith::SessionStore;
@@ -84,6 +89,44 @@ pid_t fork_piped(int fds[2], Child child) {
   }
   ::close(fds[1]);
   return pid;
+}
+
+// The acknowledgements in a child's output, printed with FORMAT ("... %lld: %255s"): id -> the
+// "anchor,nearer,farther" ids. A line cut by the kill is not one: a whole line ends in a newline.
+size_t read_acks(const std::string& out, const char* format, std::map<int64_t, std::string>* acks) {
+  size_t found = 0;
+  std::istringstream lines(out);
+  std::string line;
+  while (std::getline(lines, line)) {
+    long long id = 0;
+    char triple[256] = {};
+    if (std::sscanf(line.c_str(), format, &id, triple) == 2 && !lines.eof()) {
+      (*acks)[id] = triple;
+      ++found;
+    }
+  }
+  return found;
+}
+
+// How many of ACKS the session at PATH does not hold as acknowledged (missing, other items, or
+// another person).
+int count_losses(const std::string& path, const std::map<int64_t, std::string>& acks, const std::string& person) {
+  auto store = SessionStore::open(path);
+  const std::vector<std::string> ids = store->item_ids();
+  std::map<int64_t, kith::Judgment> kept;
+  for (const auto& j : store->judgments()) kept[j.id] = j;
+  int losses = 0;
+  for (const auto& [id, triple] : acks) {
+    auto it = kept.find(id);
+    if (it == kept.end()) {
+      ++losses;
+      continue;
+    }
+    const auto& j = it->second;
+    const std::string stored = ids[size_t(j.anchor)] + "," + ids[size_t(j.nearer)] + "," + ids[size_t(j.farther)];
+    if (stored != triple || j.person != person) ++losses;
+  }
+  return losses;
 }
 
 }  // namespace
@@ -270,33 +313,9 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
     if (WIFEXITED(status) && WEXITSTATUS(status) == 0) ++finished;
     while ((got = ::read(fds[0], buf, sizeof buf)) > 0) out.append(buf, size_t(got));
     ::close(fds[0]);
-    std::istringstream lines(out);
-    std::string line;
-    while (std::getline(lines, line)) {
-      long long id = 0;
-      char triple[256] = {};
-      // A line cut by the kill is not an acknowledgement; a whole one ends in a newline, which
-      // getline removed, so only parse lines followed by one.
-      if (std::sscanf(line.c_str(), "added judgment %lld: %255s", &id, triple) == 2 && !lines.eof()) {
-        all_acks[id] = triple;
-        ++acknowledged;
-      }
-    }
+    acknowledged += read_acks(out, "added judgment %lld: %255s", &all_acks);
     if (integrity_check(path) != "ok") ++failed_checks;
-    auto store = SessionStore::open(path);
-    std::map<int64_t, kith::Judgment> kept;
-    for (const auto& j : store->judgments()) kept[j.id] = j;
-    for (const auto& [id, triple] : all_acks) {
-      auto it = kept.find(id);
-      if (it == kept.end()) {
-        ++losses;
-        continue;
-      }
-      const auto& j = it->second;
-      const std::string stored = collection.ids[size_t(j.anchor)] + "," + collection.ids[size_t(j.nearer)] + "," +
-                                 collection.ids[size_t(j.farther)];
-      if (stored != triple || j.person != "cli") ++losses;
-    }
+    losses += count_losses(path, all_acks, "cli");
   }
   std::printf(
       "sessions crash test (kith judge): %d kills, %zu judgments reported added, %d lost, %d failed "
@@ -307,4 +326,111 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
   CHECK(acknowledged > 0);
   CHECK(losses == 0);
   CHECK(failed_checks == 0);
+}
+
+namespace {
+
+// An X server for a whole test (Xvfb, which xvfb-run starts too), so a test can kill the window
+// alone. The display is chosen by the server (-displayfd); stopped when this goes.
+struct XServer {
+  pid_t pid = -1;
+  std::string display;
+  XServer() {
+    // Two servers starting at once can pick the same display and one then exits: try again.
+    for (int attempt = 0; attempt < 5 && display.empty(); ++attempt) {
+      int fds[2];
+      pid = fork_piped(fds, [](int out) {
+        const std::string fd = std::to_string(out);
+        ::execlp("Xvfb", "Xvfb", "-displayfd", fd.c_str(), "-screen", "0", "1280x800x24", "-nolisten", "tcp",
+                 static_cast<char*>(nullptr));
+      });
+      std::string number;
+      char c = 0;
+      while (::read(fds[0], &c, 1) == 1 && c != '\n') number += c;
+      ::close(fds[0]);
+      ::usleep(300000);
+      const bool alive = ::waitpid(pid, nullptr, WNOHANG) == 0;
+      if (alive && !number.empty() && std::filesystem::exists("/tmp/.X11-unix/X" + number)) display = ":" + number;
+      else stop();
+    }
+  }
+  void stop() {
+    ::kill(pid, SIGTERM);
+    ::waitpid(pid, nullptr, 0);
+  }
+  ~XServer() {
+    if (!display.empty()) stop();
+  }
+};
+
+}  // namespace
+
+TEST_CASE("sessions window: killed with SIGKILL mid-answer 20 times, every saved judgment is kept and the file opens") {
+  KITH_SKIP_WITHOUT_XVFB();
+  const std::string dir = kith::test::temp_dir("sessions-window-crash");
+  const std::string path = dir + "/workshop.kith";
+  SessionStore::create(path, kith::test::swatch_collection(60, 4, 21)).reset();
+  // Pair questions (A), then an answer every third frame, left and right in turn.
+  {
+    std::ofstream script(dir + "/answers.txt");
+    script << "3 key A\n";
+    for (int f = 8, k = 0; f < 60000; f += 3, ++k) script << f << " key " << (k % 2 ? "RIGHT" : "LEFT") << "\n";
+  }
+  XServer x;
+  REQUIRE_MESSAGE(!x.display.empty(), "Xvfb did not start");
+  std::mt19937 rng(404);  // fixed: the same kill moments every run
+  std::uniform_int_distribution<int> delay_us(30000, 900000);
+  const int rounds = 20;
+  int kills = 0, losses = 0, failed_checks = 0, failed_opens = 0, rounds_with_acks = 0;
+  size_t acknowledged = 0;
+  std::map<int64_t, std::string> all_acks;
+  for (int round = 0; round < rounds; ++round) {
+    const int wait = delay_us(rng);
+    int fds[2];
+    const pid_t pid = fork_piped(fds, [&](int out) {
+      ::setenv("DISPLAY", x.display.c_str(), 1);
+      ::dup2(out, 1);
+      ::close(out);
+      const std::string log = dir + "/window-" + std::to_string(round) + ".log";
+      const int err = ::open(log.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+      ::dup2(err, 2);
+      const std::string script = dir + "/answers.txt";
+      ::execl(KITH_BINARY, "kith", "open", path.c_str(), "--people", "Ana", "--frames", "60000", "--no-vsync",
+              "--script", script.c_str(), "--print-saved", static_cast<char*>(nullptr));
+    });
+    // The delay starts at the first saved judgment, so the kill lands while answers are written
+    // (or after a minute without one: the round then counts no acknowledgement).
+    std::string out;
+    char buf[4096];
+    ssize_t got;
+    pollfd ready{fds[0], POLLIN, 0};
+    while (out.find('\n') == std::string::npos && ::poll(&ready, 1, 60000) == 1 &&
+           (got = ::read(fds[0], buf, sizeof buf)) > 0)
+      out.append(buf, size_t(got));
+    ::usleep(useconds_t(wait));
+    ::kill(pid, SIGKILL);
+    int status = 0;
+    ::waitpid(pid, &status, 0);
+    if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
+    while ((got = ::read(fds[0], buf, sizeof buf)) > 0) out.append(buf, size_t(got));
+    ::close(fds[0]);
+    const size_t acks = read_acks(out, "saved judgment %lld: %255s", &all_acks);
+    acknowledged += acks;
+    rounds_with_acks += acks > 0;
+    if (integrity_check(path) != "ok") ++failed_checks;
+    try {
+      losses += count_losses(path, all_acks, "Ana");
+    } catch (const std::exception& e) {
+      ++failed_opens;
+      MESSAGE("round " << round << ": the session does not open: " << e.what());
+    }
+  }
+  std::printf("sessions crash test (window): %d kills, %zu judgments saved, %d lost, %d failed integrity checks, "
+              "%d failed opens\n",
+              kills, acknowledged, losses, failed_checks, failed_opens);
+  CHECK(kills == rounds);
+  CHECK(rounds_with_acks >= rounds / 2);  // most kills landed after answers were being written
+  CHECK(losses == 0);
+  CHECK(failed_checks == 0);
+  CHECK(failed_opens == 0);
 }

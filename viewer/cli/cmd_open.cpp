@@ -38,8 +38,8 @@ const char* const kOptions =
     "                        default for a session: the people who answered in it before)\n"
     "  --read-only           with a session: look without writing (e.g. while another kith has it open)\n";
 const char* const kHidden =
-    "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync";  // test hooks, not in
-                                                                                                  // the help
+    // Test hooks, not in the help.
+    "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync, --print-saved";
 
 }  // namespace
 
@@ -53,6 +53,7 @@ int run_linked(SessionLink& link, WindowOptions wo, const EngineOptions& eo) {
     feed = std::make_unique<StillFeed>(link.collection().ids, start, link.judgments(), eo);
   }
   link.post_pins(*feed);
+  link.print_saved(wo.print_saved);
   std::unique_ptr<MapFeed> recorded = link.recording(*feed);
   SessionMenu menu(link, *recorded);
   const int code = run_window(link.collection(), *recorded, wo, menu.hooks(link.hooks(default_window_hooks())));
@@ -106,6 +107,7 @@ int cmd_open(const Args& args) {
   wo.screenshot = flags.text("--screenshot");
   wo.fps_report = flags.text("--fps-report");
   if (flags.has("--no-vsync")) wo.vsync = false;
+  wo.print_saved = flags.has("--print-saved");
   eo.start_paused = flags.has("--paused");
   const bool read_only = flags.has("--read-only");
   const std::vector<std::string>& positional = flags.positional();

@@ -133,6 +133,13 @@ std::string SessionLink::record(CommandBody& body) {
     if (auto* a = std::get_if<cmd::AddJudgment>(&body)) {
       a->judgment.id = store_->add_judgment(a->judgment);
       judgments_.push_back(a->judgment);
+      if (print_saved_) {
+        const Judgment& j = a->judgment;
+        const auto& ids = collection_.ids;
+        std::printf("saved judgment %lld: %s,%s,%s\n", static_cast<long long>(j.id), ids[size_t(j.anchor)].c_str(),
+                    ids[size_t(j.nearer)].c_str(), ids[size_t(j.farther)].c_str());
+        std::fflush(stdout);
+      }
     } else if (auto* r = std::get_if<cmd::RetractJudgment>(&body)) {
       store_->set_retracted(r->judgment_id, r->retracted);
       for (Judgment& j : judgments_)

@@ -59,6 +59,9 @@ class SessionLink {
   SessionStore* store() { return store_.get(); }          // null while there is no file
   std::string last_error() const { return last_error_; }  // the newest write that failed, "" if none
   size_t writes() const { return writes_; }               // commits made by this window
+  // Print "saved judgment ID: ANCHOR,NEARER,FARTHER" to stdout for each judgment once it is on
+  // disk (for scripts and the crash test: a printed line is a promise). (default: off)
+  void print_saved(bool on) { print_saved_ = on; }
 
   // Where a session for a collection read from `source` would be created (see above).
   static std::string path_for(const std::string& source);
@@ -80,6 +83,7 @@ class SessionLink {
   bool read_only_ = false;
   std::string last_error_;
   size_t writes_ = 0;
+  bool print_saved_ = false;
 };
 
 }  // namespace kith

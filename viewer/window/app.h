@@ -32,6 +32,7 @@ struct WindowOptions {
   std::string script;            // replayable input events (viewer/window/input_script.h) (default: none)
   std::string screenshot;        // PNG of the last frame (default: none)
   std::string fps_report;        // JSON with frame-time figures at the end (default: none)
+  bool print_saved = false;      // with a session: print each judgment once saved (SessionLink::print_saved)
   std::string IsValid() const;
 };
 
