@@ -43,8 +43,9 @@ TEST_CASE("demo reach: answers about 2 % of the swatches raise agreement on trip
   const auto unnamed = kith::unnamed_triplets(heldout, answers, swatches.size());
   REQUIRE(unnamed.size() > 2500);  // 12 named swatches leave most of the 3000
 
-  kith::FitOptions fo;
+  kith::FitOptions fo;  // both maps alike: 400 steps (of which 250 exaggerated) keep the test fast
   fo.threads = 2;
+  fo.iterations = 400;
   kith::BlockWeightsResult block_weights;
   kith::FeatureMetricResult column_metric;
   const kith::Points reweighted =
@@ -55,8 +56,9 @@ TEST_CASE("demo reach: answers about 2 % of the swatches raise agreement on trip
                                        << "reweighted by the answers " << after << " ("
                                        << block_weights.report(blocks) << ")");
   // Measured with this procedure over seeds 42-46 (tests/bench/RESULTS-demo.md, "Reach beyond the
-  // named items"): gains of +0.0xx .. +0.0xx, median +0.0xx; the assertion takes the smallest
-  // seed's gain less a margin, and the run gives the same bits on every machine.
-  constexpr double kReachGain = 0.02;
+  // named items"): gains of +0.085, +0.039, +0.098, +0.086, +0.096 (median +0.086); the bound is
+  // the smallest seed's gain less 0.009. The run gives the same bits on every machine (fixed
+  // seeds, kith's own maths, chunked sums), so the spread is over seeds, not machines.
+  constexpr double kReachGain = 0.03;
   CHECK(after >= before + kReachGain);
 }

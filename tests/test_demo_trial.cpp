@@ -57,8 +57,11 @@ std::string reduced_trial_fingerprint(int threads) {
   for (const auto& j : r.judgments) out << " " << j.anchor << "," << j.nearer << "," << j.farther;
   out << "\nweights";
   for (double w : r.weights.weights) out << " " << w;
-  out << "\ncolumn weights";
-  for (double w : r.column_metric.weights) out << " " << w;
+  // The other metric (--weights columns) from the same answers: its validation, L-BFGS and weights.
+  const auto columns = kith::learn_feature_metric(features, r.blocks, r.judgments);
+  out << "\ncolumn weights (lambda " << columns.lambda << ")";
+  for (double w : columns.weights) out << " " << w;
+  for (double v : columns.validation) out << " " << v;
   out << "\nunnamed " << r.unnamed_triplets << " " << r.unnamed_before << " " << r.unnamed_after << " "
       << r.unnamed_control;
   for (const auto& p : r.curve) out << "\nafter " << p.answered << ": " << p.agreement << " " << p.agreement_control << " " << p.local;

@@ -96,23 +96,26 @@ TEST_CASE("feature metric: where only some columns of each block matter, the col
                                   unseen);
   const double columns = planted_agreement(kith::apply_column_weights(rest, r.weights), unseen);
   MESSAGE("unseen items: features " << plain << ", block weights " << blocks << ", column weights " << columns);
-  // Measured 0.66 / 0.66 / 0.9x: the planted truth is far from any block weighting, so the margin is wide.
+  // Measured 0.655 / 0.662 / 0.925: the planted truth is far from any block weighting, so the margin is wide.
   constexpr double kClearGain = 0.1;
   CHECK(columns >= blocks + kClearGain);
   CHECK(columns >= plain + kClearGain);
 }
 
-TEST_CASE("feature metric: answers that say nothing keep the block weights alone") {
+TEST_CASE("feature metric: answers that say nothing leave every weight near the blocks' (near 1)") {
   const kith::Points x = random_features(200, 12, 21);
-  // Coin-flip answers: no metric predicts unseen ones, so the most regularized candidate (the
-  // blocks alone) should validate best or nearly so; its weights stay close to the blocks'.
+  // Coin-flip answers: no metric predicts unseen ones, so validation should not let the columns
+  // wander: measured 0.76 .. 1.63 (lambda 0.1 chosen); a factor 2 either way would be fitting noise.
   std::mt19937_64 rng(22);
   auto answers = planted_triplets(x, std::vector<double>(12, 1.0), 400, 23);
   for (auto& j : answers)
     if (rng() & 1) std::swap(j.nearer, j.farther);
   const auto r = kith::learn_feature_metric(x, kBlocks, answers);
   MESSAGE(r.report());
-  for (size_t c = 0; c < r.weights.size(); ++c) CHECK(r.weights[c] == doctest::Approx(1.0).epsilon(0.5));
+  for (size_t c = 0; c < r.weights.size(); ++c) {
+    CHECK(r.weights[c] >= 0.5);
+    CHECK(r.weights[c] <= 2.0);
+  }
 }
 
 TEST_CASE("feature metric: bad options and bad weights are refused") {

@@ -7,7 +7,8 @@
 //                          [--blend B] [--weights on|off] [--checkpoints 25,50,100,200]
 //                          [--count SWATCHES] [--ceilings on|off] [--svg FILE] [--threads T]
 //                          [--scenario demo|hue-blind|scale-heavy|pattern-first|light-first]
-//                          [--metric blocks|columns] [--pool ITEMS]
+//                          [--metric blocks|columns] [--pool ITEMS] [--regroup STEPS]
+//                          [--regroup-exaggeration E]
 // --pool lets the questions name only that many items (drawn once), to measure the answers' reach:
 // agreement on the held-out triplets none of whose items an answer named ("unnamed"), per seed and
 // as medians (features-only map, after the last checkpoint, control).
@@ -93,7 +94,8 @@ int main(int argc, char** argv) {
   double blend = kith::DemoTrialOptions{}.blend;
   std::string questions = "grid", picker = "informative", weights = "on", ceilings = "on", svg, scenario = "demo",
               metric = "blocks";
-  int pool = 0;
+  int pool = 0, regroup = kith::DemoTrialOptions{}.regroup_iterations;
+  double regroup_exaggeration = kith::DemoTrialOptions{}.regroup_exaggeration;
   std::vector<int> checkpoints = {25, 50, 100, 200};
   for (int i = 1; i + 1 < argc; i += 2) {
     const std::string k = argv[i], v = argv[i + 1];
@@ -109,6 +111,8 @@ int main(int argc, char** argv) {
     else if (k == "--threads") threads = std::atoi(v.c_str());
     else if (k == "--metric") metric = v;
     else if (k == "--pool") pool = std::atoi(v.c_str());
+    else if (k == "--regroup") regroup = std::atoi(v.c_str());
+    else if (k == "--regroup-exaggeration") regroup_exaggeration = std::atof(v.c_str());
     else if (k == "--checkpoints") checkpoints = kith::bench::int_list(v);
     else {
       std::fprintf(stderr, "bench_demo: unknown option %s\n", k.c_str());
@@ -144,11 +148,8 @@ int main(int argc, char** argv) {
   for (int s = 0; s < seeds; ++s) {
     kith::DemoTrialOptions o;
     kith::SimulatedPeopleOptions po;
-    kith::set_trial_seed(uint64_t(42 + s), &o, &po);
-    if (!kith::people_scenario(scenario, &po)) {
-      std::fprintf(stderr, "bench_demo: unknown scenario %s\n", scenario.c_str());
-      return 2;
-    }
+    if (!kith::bench::seeded_scenario(uint64_t(42 + s), scenario, &o, &po))
+      return std::fprintf(stderr, "bench_demo: unknown scenario %s\n", scenario.c_str()), 2;
     o.answers = checkpoints.empty() ? 0 : checkpoints.back();
     o.checkpoints = checkpoints;
     o.blend = blend;
@@ -158,6 +159,8 @@ int main(int argc, char** argv) {
     o.threads = threads;
     o.metric = metric == "blocks" ? kith::FeatureMetricKind::kBlocks : kith::FeatureMetricKind::kColumns;
     o.ask_pool = pool;
+    o.regroup_iterations = regroup;
+    o.regroup_exaggeration = regroup_exaggeration;
     kith::SimulatedPeople people(kith::perceptual_items(swatches), po);
     const auto r = kith::run_demo_trial(f, people, o);
     kith::DemoCeilings ceil;

@@ -79,11 +79,8 @@ int main(int argc, char** argv) {
     for (int p = 0; p < 2; ++p) {
       kith::DemoTrialOptions o;
       kith::SimulatedPeopleOptions po;
-      kith::set_trial_seed(uint64_t(42 + s), &o, &po);
-      if (!kith::people_scenario(scenario, &po)) {
-        std::fprintf(stderr, "bench_picker_features: unknown scenario %s\n", scenario.c_str());
-        return 2;
-      }
+      if (!kith::bench::seeded_scenario(uint64_t(42 + s), scenario, &o, &po))
+        return std::fprintf(stderr, "bench_picker_features: unknown scenario %s\n", scenario.c_str()), 2;
       o.answers = 100;
       o.checkpoints = checkpoints;
       o.control = false;
