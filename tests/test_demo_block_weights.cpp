@@ -9,44 +9,18 @@
 #include <thread>
 
 #include "solver/features/block_weights.h"
+#include "tests/metric_planted.h"
 #include "solver/live/engine.h"
 
 namespace {
 
-kith::Points random_features(int n, int cols, uint64_t seed) {
-  std::mt19937_64 rng(seed);
-  std::normal_distribution<double> g(0.0, 1.0);
-  kith::Points x(n, cols);
-  for (int i = 0; i < n; ++i)
-    for (int c = 0; c < cols; ++c) x(i, c) = g(rng);
-  return x;
-}
+using kith::test::planted_agreement;
+using kith::test::random_features;
 
 // Triplets stated by a squared distance that uses the blocks with the given true weights.
 std::vector<kith::Judgment> planted_triplets(const kith::Points& x, const std::vector<kith::ColumnBlock>& blocks,
                                              const std::vector<double>& truth, size_t count, uint64_t seed) {
-  const kith::Points xw = kith::apply_block_weights(x, blocks, truth);
-  std::mt19937_64 rng(seed);
-  std::uniform_int_distribution<int32_t> pick(0, int32_t(x.rows()) - 1);
-  std::vector<kith::Judgment> out;
-  while (out.size() < count) {
-    kith::Judgment j;
-    j.anchor = pick(rng);
-    j.nearer = pick(rng);
-    j.farther = pick(rng);
-    if (j.anchor == j.nearer || j.anchor == j.farther || j.nearer == j.farther) continue;
-    if ((xw.row(j.anchor) - xw.row(j.nearer)).squaredNorm() > (xw.row(j.anchor) - xw.row(j.farther)).squaredNorm())
-      std::swap(j.nearer, j.farther);
-    out.push_back(j);
-  }
-  return out;
-}
-
-double agreement(const kith::Points& x, const std::vector<kith::Judgment>& t) {
-  double s = 0;
-  for (const auto& j : t)
-    s += (x.row(j.anchor) - x.row(j.nearer)).squaredNorm() < (x.row(j.anchor) - x.row(j.farther)).squaredNorm();
-  return s / double(t.size());
+  return kith::test::planted_triplets(kith::apply_block_weights(x, blocks, truth), count, seed);
 }
 
 const std::vector<kith::ColumnBlock> kBlocks = {{"hue", 0, 3}, {"texture", 3, 5}, {"layout", 8, 4}};
@@ -96,7 +70,7 @@ TEST_CASE("block weights: planted features where only one block matters") {
   CHECK(r.weights[1] < kOthersAtMost);
   CHECK(r.weights[2] < kOthersAtMost);
   // And distances in the reweighted features agree with fresh triplets much better than before.
-  const double before = agreement(x, fresh), after = agreement(kith::apply_block_weights(x, kBlocks, r.weights), fresh);
+  const double before = planted_agreement(x, fresh), after = planted_agreement(kith::apply_block_weights(x, kBlocks, r.weights), fresh);
   MESSAGE("fresh triplets agreeing: " << before << " -> " << after);
   constexpr double kClearGain = 0.15;
   CHECK(after > before + kClearGain);

@@ -20,19 +20,6 @@
 
 namespace {
 
-// The library's features, computed in memory from the same drawings the PNG files hold (PNG is
-// lossless, so these equal what `kith demo` reads from disk; test_demo_library checks the files).
-kith::Points library_features(const std::vector<kith::Swatch>& swatches) {
-  kith::Points f(Eigen::Index(swatches.size()), kith::descriptor_size());
-  for (size_t i = 0; i < swatches.size(); ++i) {
-    const auto px = kith::draw_swatch(swatches[i], 80, kith::SampleLibraryOptions{}.seed);
-    const auto v = kith::describe_image(kith::image_from_srgb8(px.data(), 80, 80, 3));
-    for (int c = 0; c < kith::descriptor_size(); ++c) f(Eigen::Index(i), c) = v[size_t(c)];
-  }
-  kith::weight_descriptor_blocks(f);
-  return f;
-}
-
 uint64_t hash_bits(const kith::Points& m) {  // FNV-1a over every coordinate's bits
   uint64_t h = 1469598103934665603ull;
   for (Eigen::Index i = 0; i < m.size(); ++i) {
@@ -49,15 +36,14 @@ std::string reduced_trial_fingerprint(int threads) {
   kith::SampleLibraryOptions lo;
   lo.count = 300;
   const auto swatches = kith::make_swatches(lo);
-  const kith::Points features = library_features(swatches);
+  const kith::Points features = kith::swatch_features(swatches);
   kith::SimulatedPeople people(kith::perceptual_items(swatches));
   kith::DemoTrialOptions o;
   o.threads = threads;
   o.fit_iterations = 300;
   o.answers = 24;
   o.iterations_between = 5;
-  o.reweight_from = 10;
-  o.reweight_every = 10;
+  o.reweight_from = o.reweight_every = 10;
   o.regroup_iterations = 30;
   o.settle_iterations = 60;
   o.heldout_triplets = 1000;
@@ -71,6 +57,13 @@ std::string reduced_trial_fingerprint(int threads) {
   for (const auto& j : r.judgments) out << " " << j.anchor << "," << j.nearer << "," << j.farther;
   out << "\nweights";
   for (double w : r.weights.weights) out << " " << w;
+  // The other metric (--weights columns) from the same answers: its validation, L-BFGS and weights.
+  const auto columns = kith::learn_feature_metric(features, r.blocks, r.judgments);
+  out << "\ncolumn weights (lambda " << columns.lambda << ")";
+  for (double w : columns.weights) out << " " << w;
+  for (double v : columns.validation) out << " " << v;
+  out << "\nunnamed " << r.unnamed_triplets << " " << r.unnamed_before << " " << r.unnamed_after << " "
+      << r.unnamed_control;
   for (const auto& p : r.curve) out << "\nafter " << p.answered << ": " << p.agreement << " " << p.agreement_control << " " << p.local;
   return out.str() + "\n";
 }
@@ -116,7 +109,7 @@ TEST_CASE("demo trial: the same bits with 1 or 2 threads, without AVX2 and with 
 
 TEST_CASE("demo trial: 100 most-informative grid answers clearly raise held-out agreement over the features-only map and the control") {
   const auto swatches = kith::make_swatches();
-  const kith::Points features = library_features(swatches);
+  const kith::Points features = kith::swatch_features(swatches);
   kith::SimulatedPeople people(kith::perceptual_items(swatches));
   // The README's claim exactly: 100 grid answers (8 candidates, pick 2, as the window asks), most
   // informative picker, blend and weights at their defaults, seed 42.

@@ -17,6 +17,7 @@
 #include "solver/objective/neighbour_term.h"
 #include "solver/features/neighbours.h"
 #include "solver/features/picture_descriptors.h"
+#include "solver/base/portable_random.h"
 
 namespace kith {
 
@@ -50,12 +51,43 @@ bool DemoTrialOptions::IsValid(std::string* error) const {
   if (regroup_iterations < 0) return fail("regroup_iterations must be >= 0");
   if (!(regroup_exaggeration >= 1.0) || !std::isfinite(regroup_exaggeration))
     return fail("regroup_exaggeration must be >= 1");
+  if (ask_pool != 0 && ask_pool < grid_size + 1) return fail("ask_pool must be 0 or hold at least a grid (grid_size + 1 items)");
   if (!weights.IsValid(error)) return false;
+  if (!column_metric.IsValid(error)) return false;
   return picker.IsValid(error);
 }
 
 double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets) {
   return judgment_agreement(y, triplets);  // the one definition (solver/measures/judgment_health.h)
+}
+
+std::vector<Judgment> unnamed_triplets(const std::vector<Judgment>& triplets, const std::vector<Judgment>& judgments,
+                                       size_t items) {
+  std::vector<uint8_t> named(items, 0);
+  auto name = [&](int32_t i) {
+    if (i >= 0 && size_t(i) < items) named[size_t(i)] = 1;
+  };
+  for (const Judgment& j : judgments) name(j.anchor), name(j.nearer), name(j.farther);
+  auto is_named = [&](int32_t i) { return i >= 0 && size_t(i) < items && named[size_t(i)]; };
+  std::vector<Judgment> out;
+  for (const Judgment& t : triplets)
+    if (!is_named(t.anchor) && !is_named(t.nearer) && !is_named(t.farther)) out.push_back(t);
+  return out;
+}
+
+Points reweighted_features(const Points& features, const std::vector<ColumnBlock>& blocks,
+                           const std::vector<Judgment>& judgments, const DemoTrialOptions& options,
+                           BlockWeightsResult* block_weights, FeatureMetricResult* column_metric) {
+  if (options.metric == FeatureMetricKind::kColumns) {
+    FeatureMetricOptions mo = options.column_metric;
+    mo.blocks = options.weights;  // the first stage is the block weights' own
+    *column_metric = learn_feature_metric(features, blocks, judgments, mo);
+    *block_weights = column_metric->blocks;
+    return apply_column_weights(features, column_metric->weights);
+  }
+  *block_weights = learn_block_weights(features, blocks, judgments, options.weights);
+  *column_metric = {};
+  return apply_block_weights(features, blocks, block_weights->weights);
 }
 
 void set_trial_seed(uint64_t seed, DemoTrialOptions* trial, SimulatedPeopleOptions* people) {
@@ -111,6 +143,12 @@ std::string DemoTrialResult::BriefReport() const {
                 agreement_before, agreement_after, answered, judgments.size(), agreement_control, heldout,
                 local_before, local_after, local_control);
   std::string out = buf;
+  if (unnamed_triplets > 0) {
+    std::snprintf(buf, sizeof buf, "; on the %zu held-out triplets no answer named %.3f -> %.3f (control %.3f)",
+                  unnamed_triplets, unnamed_before, unnamed_after, unnamed_control);
+    out += buf;
+  }
+  if (!column_metric.weights.empty()) out += "; " + column_metric.report();
   if (!blocks.empty() && !weights.weights.empty())
     out += "; block weights learned from the answers: " + weights.report(blocks);
   else if (!blocks.empty())
@@ -173,9 +211,8 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
   prep.max_dims = fo.pca_dims;
   Points picker_features = fit.features;
   // Weights from the judgments so far; the prepared reweighted features and their affinities.
-  auto relearn = [&](BlockWeightsResult* weights, Points* prepared) {
-    *weights = learn_block_weights(features, r.blocks, r.judgments, options.weights);
-    *prepared = prepare_features(apply_block_weights(features, r.blocks, weights->weights), prep);
+  auto relearn = [&](BlockWeightsResult* weights, FeatureMetricResult* columns, Points* prepared) {
+    *prepared = prepare_features(reweighted_features(features, r.blocks, r.judgments, options, weights, columns), prep);
     return std::make_shared<SparseAffinities>(joint_affinities_for(*prepared, fo.perplexity_for(n), {fo.seed, fo.threads}));
   };
   auto relearning_due_at_end = [&](int answered) {
@@ -218,13 +255,20 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
     branch.set_judgments(r.judgments);
     if (relearning_due_at_end(answered)) {
       BlockWeightsResult w;
+      FeatureMetricResult c;
       Points prepared;
-      branch_term->set_affinities(relearn(&w, &prepared));
+      branch_term->set_affinities(relearn(&w, &c, &prepared));
       continue_map(branch, *branch_term, yb, &at_b, options.regroup_iterations, options.regroup_exaggeration, &finish);
     }
     continue_map(branch, *branch_term, yb, &at_b, options.settle_iterations, 1.0, &finish);
     point.agreement = triplet_agreement(yb, heldout);
     point.local = local_agreement(yb, hidden, local_k);
+    const auto unnamed = unnamed_triplets(heldout, r.judgments, n);
+    point.unnamed_triplets = unnamed.size();
+    if (!unnamed.empty()) {
+      point.unnamed = triplet_agreement(yb, unnamed);
+      point.unnamed_before = triplet_agreement(fit.map, unnamed);
+    }
     if (options.control) {
       catch_up_control();
       Points ycb = yc;
@@ -235,6 +279,7 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
       for (const auto& [steps, exaggeration] : finish) continue_map(cbranch, *cterm, ycb, &at_cb, steps, exaggeration, nullptr);
       point.agreement_control = triplet_agreement(ycb, heldout);
       point.local_control = local_agreement(ycb, hidden, local_k);
+      if (!unnamed.empty()) point.unnamed_control = triplet_agreement(ycb, unnamed);
     }
     r.curve.push_back(point);
   };
@@ -243,14 +288,47 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
   size_t next_checkpoint = 0;
   while (next_checkpoint < checkpoints.size() && checkpoints[next_checkpoint] <= 0) ++next_checkpoint;
 
+  // The items questions may name: all, or a fixed few (the picker sees only their rows).
+  if (options.ask_pool > 0) {
+    if (size_t(options.ask_pool) > n) throw std::invalid_argument("ask_pool is larger than the collection");
+    std::vector<int32_t> all(n);
+    for (size_t i = 0; i < n; ++i) all[i] = int32_t(i);
+    std::mt19937_64 pool_rng(options.pool_seed);
+    shuffle(all.begin(), all.end(), pool_rng);
+    r.pool.assign(all.begin(), all.begin() + options.ask_pool);
+    std::sort(r.pool.begin(), r.pool.end());
+  }
+  std::vector<int32_t> pool_index(n, -1);
+  for (size_t k = 0; k < r.pool.size(); ++k) pool_index[size_t(r.pool[k])] = int32_t(k);
   Picker picker(options.picker);
+  const bool grid = options.question == QuestionKind::kGrid;
+  auto ask = [&](PickerInput in) {
+    if (r.pool.empty())
+      return grid ? picker.grid(in, options.grid_size, options.grid_choose) : picker.pair(in);
+    const Eigen::Index m = Eigen::Index(r.pool.size());
+    Points sub_map(m, y.cols()), sub_features(m, picker_features.cols());
+    for (Eigen::Index k = 0; k < m; ++k) {
+      sub_map.row(k) = y.row(r.pool[size_t(k)]);
+      sub_features.row(k) = picker_features.row(r.pool[size_t(k)]);
+    }
+    std::vector<Judgment> sub_judgments = r.judgments;  // every one names pool items only
+    for (Judgment& j : sub_judgments)
+      j.anchor = pool_index[size_t(j.anchor)], j.nearer = pool_index[size_t(j.nearer)],
+      j.farther = pool_index[size_t(j.farther)];
+    in.map = &sub_map;
+    in.features = &sub_features;
+    in.judgments = &sub_judgments;
+    Question q = grid ? picker.grid(in, options.grid_size, options.grid_choose) : picker.pair(in);
+    if (q.anchor >= 0) q.anchor = r.pool[size_t(q.anchor)];
+    for (int32_t& c : q.candidates) c = r.pool[size_t(c)];
+    return q;
+  };
   for (int q = 0; q < options.answers; ++q) {
     PickerInput in;
     in.map = &y;
     in.features = &picker_features;
     in.judgments = &r.judgments;
-    const bool grid = options.question == QuestionKind::kGrid;
-    const Question question = grid ? picker.grid(in, options.grid_size, options.grid_choose) : picker.pair(in);
+    const Question question = ask(in);
     if (question.anchor < 0 || question.candidates.size() < 2) break;
     if (q == 0) r.first_question = question;
     std::vector<Judgment> given;
@@ -265,7 +343,7 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
     }
     r.answered = q + 1;
     if (!r.blocks.empty() && q + 1 >= options.reweight_from && (q + 1) % options.reweight_every == 0) {
-      term->set_affinities(relearn(&r.weights, &picker_features));
+      term->set_affinities(relearn(&r.weights, &r.column_metric, &picker_features));
       continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, &stretches);
     }
     continue_map(objective, *term, y, &at, options.iterations_between, 1.0, &stretches);
@@ -274,7 +352,7 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
       measure_branch(q + 1);
   }
   if (relearning_due_at_end(r.answered)) {
-    term->set_affinities(relearn(&r.weights, &picker_features));
+    term->set_affinities(relearn(&r.weights, &r.column_metric, &picker_features));
     continue_map(objective, *term, y, &at, options.regroup_iterations, options.regroup_exaggeration, &stretches);
   }
   continue_map(objective, *term, y, &at, options.settle_iterations, 1.0, &stretches);
@@ -283,9 +361,16 @@ DemoTrialResult run_demo_trial(const Points& features, SimulatedPeople& people, 
   r.local_after = local_agreement(y, hidden, local_k);
   r.answers_satisfied = r.judgments.empty() ? -1.0 : triplet_agreement(y, r.judgments);
 
+  const auto unnamed = unnamed_triplets(heldout, r.judgments, n);
+  r.unnamed_triplets = unnamed.size();
+  if (!unnamed.empty()) {
+    r.unnamed_before = triplet_agreement(r.features_only_map, unnamed);
+    r.unnamed_after = triplet_agreement(y, unnamed);
+  }
   if (options.control) {
     catch_up_control();
     r.control_map = yc;
+    if (!unnamed.empty()) r.unnamed_control = triplet_agreement(yc, unnamed);
     r.agreement_control = triplet_agreement(yc, heldout);
     r.local_control = local_agreement(yc, hidden, local_k);
   }

@@ -10,11 +10,14 @@
 //      pair (one judgment) -- the simulated people answers it, the judgments join the blended
 //      objective (KL + blend * t-STE) and the map takes `iterations_between` more steps;
 //      Every `reweight_every` answers from `reweight_from` on (and after the last) the answers also teach the features'
-//      metric: block weights are learned from all answers so far (solver/features/block_weights.h) and the
-//      t-SNE affinities are rebuilt from the reweighted features, so the whole map follows the
+//      metric: block weights (solver/features/block_weights.h, the default) or a weight per feature
+//      column pulled toward them (solver/features/feature_metric.h) are learned from all answers so
+//      far and the t-SNE affinities are rebuilt from the reweighted features, so the whole map follows the
 //      people, not only the items it was asked about (learn_weights; on by default), and the map
 //      takes `regroup_iterations` steps with exaggerated affinities to regroup;
-//   4. `settle_iterations` more steps, then the same measures again.
+//   4. `settle_iterations` more steps, then the same measures again, also on the held-out triplets
+//      none of whose items any answer named (the reach of the answers; with `ask_pool` the
+//      questions name only a fixed few items).
 // At each of `checkpoints` (numbers of answers) a copy of the map is finished as in 4 (relearning
 // first when due, then settling) and measured, and so is the control, which gives the curve of
 // agreement against answers from one run.
@@ -28,6 +31,7 @@
 #include <vector>
 
 #include "solver/features/block_weights.h"
+#include "solver/features/feature_metric.h"
 #include "solver/base/judgment.h"
 #include "solver/base/points.h"
 #include "solver/asking/question_flow.h"
@@ -43,6 +47,9 @@ namespace kith {
 // random) gave 0.704: with noisy people, a grid of near neighbours asks mostly what they cannot
 // tell apart (tests/bench/RESULTS-demo.md).
 PickerOptions demo_picker();
+
+// What the answers teach about the features' metric (see DemoTrialOptions::metric).
+enum class FeatureMetricKind { kBlocks, kColumns };
 
 struct DemoTrialOptions {
   int answers = 100;               // questions the people answers (default: 100)
@@ -69,6 +76,14 @@ struct DemoTrialOptions {
   std::vector<ColumnBlock> blocks; // the feature blocks; empty = the picture descriptors' blocks when the
                                    // features have descriptor_size() columns, else no reweighting (default: empty)
   BlockWeightOptions weights;      // (default: see block_weights.h)
+  FeatureMetricKind metric = FeatureMetricKind::kBlocks;  // what the answers teach about the features:
+                                   // one weight per block, or per column pulled toward them; the blocks
+                                   // reach unnamed items as far or further (default: blocks;
+                                   // tests/bench/RESULTS-demo.md "Reach beyond the named items")
+  FeatureMetricOptions column_metric;  // (default: see feature_metric.h)
+  int ask_pool = 0;                // questions name only this many items, drawn once from pool_seed,
+                                   // to measure the reach of answers beyond them; 0 = any item (default: 0)
+  uint64_t pool_seed = 99;         // (default: 99)
   int regroup_iterations = 100;    // after each reweighting, steps with the affinities exaggerated, so that
                                    // groups can move past each other into the new arrangement (default: 100)
   double regroup_exaggeration = 12; // (default: 12, as the first fit)
@@ -82,6 +97,10 @@ struct TrialPoint {
   size_t judgments = 0;
   double agreement = -1.0, agreement_control = -1.0;  // held-out triplets
   double local = -1.0, local_control = -1.0;          // the local measure
+  // Held-out triplets none of whose three items any answer so far named: the map, the control and
+  // the features-only map on the same triplets (-1 when there are none).
+  double unnamed = -1.0, unnamed_control = -1.0, unnamed_before = -1.0;
+  size_t unnamed_triplets = 0;
 };
 
 struct DemoTrialResult {
@@ -100,6 +119,11 @@ struct DemoTrialResult {
   size_t heldout = 0;                // number of held-out triplets
   std::vector<ColumnBlock> blocks;   // the blocks reweighted (empty if the weights were not learned)
   BlockWeightsResult weights;        // the block weights learned from all the answers
+  FeatureMetricResult column_metric; // the columns' weights, with FeatureMetricKind::kColumns
+  std::vector<int32_t> pool;         // the items questions could name (empty = any)
+  // Held-out triplets no answer named (see TrialPoint), for the features-only, final and control maps.
+  double unnamed_before = -1.0, unnamed_after = -1.0, unnamed_control = -1.0;
+  size_t unnamed_triplets = 0;
   std::string BriefReport() const;   // one line
 };
 
@@ -107,10 +131,21 @@ struct DemoTrialResult {
 // Fraction of the triplets the map satisfies (a tie counts one half).
 double triplet_agreement(const Points& y, const std::vector<Judgment>& triplets);
 
+// The triplets none of whose three items any of the judgments names.
+std::vector<Judgment> unnamed_triplets(const std::vector<Judgment>& triplets, const std::vector<Judgment>& judgments,
+                                       size_t items);
+
 // Each item's k nearest by the hidden distance (ties by index), row-major n x k.
 std::vector<int32_t> hidden_neighbours(const SimulatedPeople& people, int k);
 // The local measure: mean over items of |hidden k nearest ∩ k nearest in the map| / k.
 double local_agreement(const Points& y, const std::vector<int32_t>& hidden, int k);
+
+// The features reweighted by what the judgments teach, as options.metric says: block weights, or a
+// weight per column pulled toward them (options.column_metric; its block stage is options.weights).
+// Fills both results (column_metric empty with kBlocks). The trial and the window's demo use it.
+Points reweighted_features(const Points& features, const std::vector<ColumnBlock>& blocks,
+                           const std::vector<Judgment>& judgments, const DemoTrialOptions& options,
+                           BlockWeightsResult* block_weights, FeatureMetricResult* column_metric);
 
 // Every seed of a run from one number: the map's, the held-out triplets', the picker's and the
 // people's. Seed 42 gives the defaults above (and SimulatedPeopleOptions' seed 7).

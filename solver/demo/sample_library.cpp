@@ -10,6 +10,7 @@
 #include <stdexcept>
 
 #include "solver/base/portable_math.h"
+#include "solver/features/picture_descriptors.h"
 #include "solver/io/png_file.h"
 #include "solver/io/safe_file.h"
 
@@ -301,6 +302,18 @@ SampleLibrary ensure_sample_library(const SampleLibraryOptions& options_in) {
   write_text(stamp, stamp_text(options));
   lib.generated = true;
   return lib;
+}
+
+Points swatch_features(const std::vector<Swatch>& swatches, const SampleLibraryOptions& options) {
+  const int size = options.picture_size;
+  Points f(Eigen::Index(swatches.size()), descriptor_size());
+  for (size_t i = 0; i < swatches.size(); ++i) {
+    const auto px = draw_swatch(swatches[i], size, options.seed);
+    const auto v = describe_image(image_from_srgb8(px.data(), size, size, 3));
+    for (int c = 0; c < descriptor_size(); ++c) f(Eigen::Index(i), c) = v[size_t(c)];
+  }
+  weight_descriptor_blocks(f);
+  return f;
 }
 
 }  // namespace kith

@@ -12,6 +12,7 @@
 #include <string>
 #include <vector>
 
+#include "solver/base/points.h"
 #include "solver/features/colour.h"
 
 namespace kith {
@@ -45,6 +46,11 @@ std::vector<Swatch> make_swatches(const SampleLibraryOptions& options = {});
 
 // Draws one swatch: size x size RGB, 8 bits per channel, row-major.
 std::vector<uint8_t> draw_swatch(const Swatch& swatch, int size, uint64_t seed);
+
+// The swatches' picture features computed in memory from the same drawings the PNG files hold
+// (PNG is lossless, so these equal what `kith demo` reads from disk), blocks weighted as
+// describe_collection does (solver/features/picture_descriptors.h): one row per swatch.
+Points swatch_features(const std::vector<Swatch>& swatches, const SampleLibraryOptions& options = {});
 
 // $XDG_CACHE_HOME/kith/demo, else $HOME/.cache/kith/demo, else <temp>/kith-demo.
 std::string default_sample_folder();

@@ -45,6 +45,7 @@ bool people_scenario(const std::string& name, SimulatedPeopleOptions* options) {
   else if (name == "hue-blind") o.distance.colour.kH = 1000.0;
   else if (name == "scale-heavy") o.distance.scale_weight = 30.0;
   else if (name == "pattern-first") o.distance.pattern_weight = 60.0;
+  else if (name == "light-first") o.distance.colour.kL = 0.4, o.distance.colour.kC = 2.5, o.distance.pattern_weight = 10.0;
   else return false;
   *options = o;
   return true;

@@ -57,6 +57,8 @@ struct SimulatedPeopleOptions {
 //   "hue-blind"     colour without its hue term (kH = 1000): lightness, chroma, pattern and scale;
 //   "scale-heavy"   pattern scale weighs 30 per doubling instead of 8;
 //   "pattern-first" a different pattern kind costs 60 instead of 20, so pattern outweighs colour.
+//   "light-first"   lightness counts 2.5 times (kL = 0.4), chroma 0.4 times (kC = 2.5) and a
+//                   different pattern 10: people who sort by light and dark first.
 // Returns false (options unchanged) for an unknown name.
 bool people_scenario(const std::string& name, SimulatedPeopleOptions* options);
 

@@ -6,7 +6,12 @@
 //   build/tests/bench_demo [--seeds S] [--questions grid|pairs] [--picker informative|random]
 //                          [--blend B] [--weights on|off] [--checkpoints 25,50,100,200]
 //                          [--count SWATCHES] [--ceilings on|off] [--svg FILE] [--threads T]
-//                          [--scenario demo|hue-blind|scale-heavy|pattern-first]
+//                          [--scenario demo|hue-blind|scale-heavy|pattern-first|light-first]
+//                          [--metric blocks|columns] [--pool ITEMS] [--regroup STEPS]
+//                          [--regroup-exaggeration E]
+// --pool lets the questions name only that many items (drawn once), to measure the answers' reach:
+// agreement on the held-out triplets none of whose items an answer named ("unnamed"), per seed and
+// as medians (features-only map, after the last checkpoint, control).
 // The last lines give trustworthiness against the features and a one-line summary (scenario, blend,
 // held-out before / after the last checkpoint / control / t-SNE ceiling, local after / ceiling,
 // trustworthiness before / after), for choosing the defaults.
@@ -15,7 +20,6 @@
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
-#include <sstream>
 #include <string>
 #include <vector>
 
@@ -24,15 +28,11 @@
 #include "solver/demo/sample_library.h"
 #include "solver/features/picture_descriptors.h"
 #include "solver/measures/health.h"
+#include "tests/bench/bench_common.h"
 
 namespace {
 
-double median(std::vector<double> v) {
-  if (v.empty()) return -1.0;
-  std::sort(v.begin(), v.end());
-  const size_t m = v.size() / 2;
-  return v.size() % 2 ? v[m] : 0.5 * (v[m - 1] + v[m]);
-}
+using kith::bench::median;
 
 // The curve: x = answers, y = median agreement; the ceilings as flat lines. Two panels.
 void write_svg(const std::string& path, const std::vector<int>& xs, const std::vector<double> after[2],
@@ -92,7 +92,10 @@ void write_svg(const std::string& path, const std::vector<int>& xs, const std::v
 int main(int argc, char** argv) {
   int seeds = 5, count = kith::SampleLibraryOptions{}.count, threads = 2;
   double blend = kith::DemoTrialOptions{}.blend;
-  std::string questions = "grid", picker = "informative", weights = "on", ceilings = "on", svg, scenario = "demo";
+  std::string questions = "grid", picker = "informative", weights = "on", ceilings = "on", svg, scenario = "demo",
+              metric = "blocks";
+  int pool = 0, regroup = kith::DemoTrialOptions{}.regroup_iterations;
+  double regroup_exaggeration = kith::DemoTrialOptions{}.regroup_exaggeration;
   std::vector<int> checkpoints = {25, 50, 100, 200};
   for (int i = 1; i + 1 < argc; i += 2) {
     const std::string k = argv[i], v = argv[i + 1];
@@ -106,12 +109,12 @@ int main(int argc, char** argv) {
     else if (k == "--svg") svg = v;
     else if (k == "--scenario") scenario = v;
     else if (k == "--threads") threads = std::atoi(v.c_str());
-    else if (k == "--checkpoints") {
-      checkpoints.clear();
-      std::stringstream in(v);
-      std::string part;
-      while (std::getline(in, part, ',')) checkpoints.push_back(std::atoi(part.c_str()));
-    } else {
+    else if (k == "--metric") metric = v;
+    else if (k == "--pool") pool = std::atoi(v.c_str());
+    else if (k == "--regroup") regroup = std::atoi(v.c_str());
+    else if (k == "--regroup-exaggeration") regroup_exaggeration = std::atof(v.c_str());
+    else if (k == "--checkpoints") checkpoints = kith::bench::int_list(v);
+    else {
       std::fprintf(stderr, "bench_demo: unknown option %s\n", k.c_str());
       return 2;
     }
@@ -120,15 +123,14 @@ int main(int argc, char** argv) {
   kith::SampleLibraryOptions lo;
   lo.count = count;
   const auto swatches = kith::make_swatches(lo);
-  kith::Points f(Eigen::Index(swatches.size()), kith::descriptor_size());
-  for (size_t i = 0; i < swatches.size(); ++i) {
-    const auto px = kith::draw_swatch(swatches[i], 80, kith::SampleLibraryOptions{}.seed);
-    const auto v = kith::describe_image(kith::image_from_srgb8(px.data(), 80, 80, 3));
-    for (int c = 0; c < kith::descriptor_size(); ++c) f(Eigen::Index(i), c) = v[size_t(c)];
+  const kith::Points f = kith::swatch_features(swatches);
+  if (metric != "columns" && metric != "blocks") {
+    std::fprintf(stderr, "bench_demo: --metric is columns or blocks, not %s\n", metric.c_str());
+    return 2;
   }
-  kith::weight_descriptor_blocks(f);
-  std::printf("scenario %s, swatches %d, %s questions, %s picker, blend %.2f, weights %s, checkpoints", scenario.c_str(), count, questions.c_str(),
-              picker.c_str(), blend, weights.c_str());
+  std::printf("scenario %s, swatches %d, %s questions, %s picker, blend %.2f, weights %s (%s), questions name %s, "
+              "checkpoints", scenario.c_str(), count, questions.c_str(), picker.c_str(), blend, weights.c_str(),
+              metric.c_str(), pool ? (std::to_string(pool) + " items").c_str() : "any item");
   for (int c : checkpoints) std::printf(" %d", c);
   std::printf("\n\n| seed | measure | features only |");
   for (int c : checkpoints) std::printf(" %d answers | control |", c);
@@ -142,14 +144,12 @@ int main(int argc, char** argv) {
   for (int m = 0; m < 2; ++m) after[m].assign(C, {}), control[m].assign(C, {});
   std::vector<size_t> judgments(C, 0);
   std::vector<double> trust_before, trust_after;  // against the features, k = 10
+  std::vector<double> unnamed[3], unnamed_count;  // features only, after the last checkpoint, control
   for (int s = 0; s < seeds; ++s) {
     kith::DemoTrialOptions o;
     kith::SimulatedPeopleOptions po;
-    kith::set_trial_seed(uint64_t(42 + s), &o, &po);
-    if (!kith::people_scenario(scenario, &po)) {
-      std::fprintf(stderr, "bench_demo: unknown scenario %s\n", scenario.c_str());
-      return 2;
-    }
+    if (!kith::bench::seeded_scenario(uint64_t(42 + s), scenario, &o, &po))
+      return std::fprintf(stderr, "bench_demo: unknown scenario %s\n", scenario.c_str()), 2;
     o.answers = checkpoints.empty() ? 0 : checkpoints.back();
     o.checkpoints = checkpoints;
     o.blend = blend;
@@ -157,6 +157,10 @@ int main(int argc, char** argv) {
     o.question = questions == "pairs" ? kith::QuestionKind::kPair : kith::QuestionKind::kGrid;
     if (picker == "random") o.picker.rule = kith::PickerRule::kRandom;
     o.threads = threads;
+    o.metric = metric == "blocks" ? kith::FeatureMetricKind::kBlocks : kith::FeatureMetricKind::kColumns;
+    o.ask_pool = pool;
+    o.regroup_iterations = regroup;
+    o.regroup_exaggeration = regroup_exaggeration;
     kith::SimulatedPeople people(kith::perceptual_items(swatches), po);
     const auto r = kith::run_demo_trial(f, people, o);
     kith::DemoCeilings ceil;
@@ -165,6 +169,17 @@ int main(int argc, char** argv) {
       kith::CeilingOptions co;
       co.threads = threads;
       ceil = kith::demo_ceilings(people, heldout, kith::hidden_neighbours(people, o.local_k), o.local_k, co);
+    }
+    if (!r.curve.empty()) {
+      const auto& last = r.curve.back();
+      unnamed[0].push_back(last.unnamed_before);
+      unnamed[1].push_back(last.unnamed);
+      unnamed[2].push_back(last.unnamed_control);
+      unnamed_count.push_back(double(last.unnamed_triplets));
+      std::printf("| %d | unnamed (%zu triplets) | %.3f | after %d answers %.3f | control %.3f | %s |\n", 42 + s,
+                  last.unnamed_triplets, last.unnamed_before, last.answered, last.unnamed, last.unnamed_control,
+                  o.metric == kith::FeatureMetricKind::kColumns ? r.column_metric.report().c_str()
+                                                                : r.weights.report(r.blocks).c_str());
     }
     trust_before.push_back(kith::trustworthiness(f, r.features_only_map, 10, threads));
     trust_after.push_back(kith::trustworthiness(f, r.final_map, 10, threads));
@@ -208,6 +223,9 @@ int main(int argc, char** argv) {
               median(before[0]), C ? median(after[0][C - 1]) : -1.0, C ? median(control[0][C - 1]) : -1.0,
               median(tsne[0]), C ? median(after[1][C - 1]) : -1.0, median(tsne[1]), median(trust_before),
               median(trust_after));
+  std::printf("reach | %s | %s | pool %d | unnamed triplets %.0f | features only %.3f | after %.3f | control %.3f |\n",
+              scenario.c_str(), metric.c_str(), pool, median(unnamed_count), median(unnamed[0]), median(unnamed[1]),
+              median(unnamed[2]));
   std::printf("\njudgments at the checkpoints:");
   for (size_t c = 0; c < C; ++c) std::printf(" %d answers = %zu judgments;", checkpoints[c], judgments[c]);
   std::printf("\n");

@@ -55,10 +55,12 @@ const char* const kOptions =
     "  --questions grid|pairs  grid: which 2 of 8 swatches are most like the one shown (12\n"
     "                        judgments an answer, as the window asks); pairs: which of 2 (one\n"
     "                        judgment) (default: grid)\n"
-    "  --weights on|off      the answers also teach how much each block of picture features\n"
-    "                        (colour, texture, layout) matters, and the map is rebuilt from the\n"
+    "  --weights blocks|columns|off  the answers also teach how much the picture features\n"
+    "                        matter (blocks: one weight for each block -- colour, texture, layout;\n"
+    "                        columns: a weight per feature, pulled toward the blocks' and kept where\n"
+    "                        it predicts held-out answers better), and the map is rebuilt from the\n"
     "                        reweighted features, so it follows the people also where nobody was\n"
-    "                        asked (default: on)\n"
+    "                        asked; on = blocks (default: blocks)\n"
     "  --out DIR             where the headless run writes its PNGs (default: the library folder)\n"
     "  --library DIR         the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
     "                        ~/.cache/kith/demo)\n"
@@ -184,6 +186,7 @@ struct LiveDemo {
   DemoTrialOptions trial;           // regroup settings and weight options, as in the headless run
   std::vector<ColumnBlock> blocks;
   BlockWeightsResult weights;
+  FeatureMetricResult column_metric;
 
   LiveDemo(const DemoData& d, MapFeed& f)
       : data(d), feed(f), people(d.perceptual), truth(people.truth_triplets(3000, 0, 3.0, 1234)) {
@@ -195,8 +198,8 @@ struct LiveDemo {
   // from the reweighted features off its hot loop and regroups (solver/features/block_weights.h).
   void reweight() {
     if (!learn_weights || blocks.empty() || answered < trial.reweight_from) return;
-    weights = learn_block_weights(data.collection.features, blocks, answers, trial.weights);
-    feed.post(cmd::SetFeatures{apply_block_weights(data.collection.features, blocks, weights.weights),
+    feed.post(cmd::SetFeatures{reweighted_features(data.collection.features, blocks, answers, trial, &weights,
+                                                   &column_metric),
                                trial.regroup_iterations, trial.regroup_exaggeration});
   }
 
@@ -261,6 +264,7 @@ struct LiveDemo {
         std::snprintf(buf, sizeof buf, "  %-20s %.2f", blocks[b].name.c_str(), weights.weights[b]);
         out.push_back(buf);
       }
+      if (!column_metric.weights.empty()) out.push_back("  and per feature: " + column_metric.report());
     } else if (!learn_weights) {
       out.push_back("feature block weights: off (--weights off)");
     }
@@ -318,10 +322,12 @@ int cmd_demo(const Args& args) {
   FlagReader flags("demo", kUsage, kOptions + map_flags({"--blend", "--seed"}, settings), kFooter, kHidden);
   if (!flags.read(args)) return flags.stop();
   int width = 1280, height = 800;
-  std::string weights = trial.learn_weights ? "on" : "off";
+  std::string weights = !trial.learn_weights                              ? "off"
+                        : trial.metric == FeatureMetricKind::kColumns ? "columns"
+                                                                      : "blocks";
   std::string questions = trial.question == QuestionKind::kGrid ? "grid" : "pairs";
   WindowOptions hidden;  // undocumented test hooks, as for kith open
-  if (!flags.integer("--answers", &trial.answers, 0, 100000) || !flags.choice("--weights", &weights, {"on", "off"}) ||
+  if (!flags.integer("--answers", &trial.answers, 0, 100000) || !flags.choice("--weights", &weights, {"blocks", "columns", "on", "off"}) ||
       !flags.choice("--questions", &questions, {"grid", "pairs"}) ||
       !flags.size("--size", &width, &height) || !flags.integer("--frames", &hidden.frames, 0) ||
       !read_map_flags(flags, &settings))
@@ -329,7 +335,8 @@ int cmd_demo(const Args& args) {
   if (std::string e; !settings.IsValid(&e)) return flags.usage_error(e);
   if (!flags.positional().empty()) return flags.usage_error("unexpected '" + flags.positional().front() + "'");
   trial.blend = settings.blend;
-  trial.learn_weights = weights == "on";
+  trial.learn_weights = weights != "off";
+  trial.metric = weights == "columns" ? FeatureMetricKind::kColumns : FeatureMetricKind::kBlocks;
   trial.question = questions == "grid" ? QuestionKind::kGrid : QuestionKind::kPair;
   const uint64_t seed = settings.seed;
   const std::string library = flags.text("--library", default_sample_folder());

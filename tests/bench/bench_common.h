@@ -1,0 +1,42 @@
+// Small helpers the benchmarks in tests/bench share: the median of figures over seeds, and a
+// comma-separated list of numbers from the command line, a seeded demo scenario. Header-only.
+#pragma once
+#include <algorithm>
+#include <cstdlib>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "solver/demo/demo_trial.h"
+#include "solver/demo/simulated_people.h"
+
+namespace kith::bench {
+
+// The median (the mean of the middle two for an even count; -1 for none).
+inline double median(std::vector<double> v) {
+  if (v.empty()) return -1.0;
+  std::sort(v.begin(), v.end());
+  const size_t m = v.size() / 2;
+  return v.size() % 2 ? v[m] : 0.5 * (v[m - 1] + v[m]);
+}
+
+// The demo trial's and the people's options for one seed (set_trial_seed) judging by the named
+// scenario (people_scenario); false for an unknown scenario.
+inline bool seeded_scenario(uint64_t seed, const std::string& scenario, DemoTrialOptions* trial,
+                            SimulatedPeopleOptions* people) {
+  *trial = {};
+  *people = {};
+  set_trial_seed(seed, trial, people);
+  return people_scenario(scenario, people);
+}
+
+// "25,50,100" -> {25, 50, 100}.
+inline std::vector<int> int_list(const std::string& text) {
+  std::vector<int> out;
+  std::stringstream in(text);
+  std::string part;
+  while (std::getline(in, part, ',')) out.push_back(std::atoi(part.c_str()));
+  return out;
+}
+
+}  // namespace kith::bench
