@@ -91,6 +91,25 @@ pid_t fork_piped(int fds[2], Child child) {
   return pid;
 }
 
+// Waits for the child's first line of output on FD (when FIRST_LINE; a minute at most), then
+// WAIT_US more; kills it with SIGKILL, reaps it and reads the rest of its output into *OUT
+// (closing FD). Returns its wait status.
+int kill_mid_output(pid_t pid, int fd, int wait_us, bool first_line, std::string* out) {
+  char buf[4096];
+  ssize_t got;
+  pollfd ready{fd, POLLIN, 0};
+  while (first_line && out->find('\n') == std::string::npos && ::poll(&ready, 1, 60000) == 1 &&
+         (got = ::read(fd, buf, sizeof buf)) > 0)
+    out->append(buf, size_t(got));
+  ::usleep(useconds_t(wait_us));
+  ::kill(pid, SIGKILL);
+  int status = 0;
+  ::waitpid(pid, &status, 0);
+  while ((got = ::read(fd, buf, sizeof buf)) > 0) out->append(buf, size_t(got));
+  ::close(fd);
+  return status;
+}
+
 // The acknowledgements in a child's output, printed with FORMAT ("... %lld: %255s"): id -> the
 // "anchor,nearer,farther" ids. A line cut by the kill is not one: a whole line ends in a newline.
 size_t read_acks(const std::string& out, const char* format, std::map<int64_t, std::string>* acks) {
@@ -296,23 +315,13 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
       argv.push_back(nullptr);
       ::execv(KITH_BINARY, argv.data());
     });
-    std::string out;
-    char buf[4096];
-    ssize_t got;
     // Even rounds: the random delay starts at the first line kith prints, so these kills land
     // while judgments are being written even when start-up is slow (a loaded or sanitized build).
-    if (round % 2 == 0)
-      while (out.find('\n') == std::string::npos && (got = ::read(fds[0], buf, sizeof buf)) > 0)
-        out.append(buf, size_t(got));
-    ::usleep(useconds_t(wait));
-    ::kill(pid, SIGKILL);
-    int status = 0;
-    ::waitpid(pid, &status, 0);
+    std::string out;
+    const int status = kill_mid_output(pid, fds[0], wait, round % 2 == 0, &out);
     if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
     // A round whose child finished its adds before the kill landed is a clean run, not a failure.
     if (WIFEXITED(status) && WEXITSTATUS(status) == 0) ++finished;
-    while ((got = ::read(fds[0], buf, sizeof buf)) > 0) out.append(buf, size_t(got));
-    ::close(fds[0]);
     acknowledged += read_acks(out, "added judgment %lld: %255s", &all_acks);
     if (integrity_check(path) != "ok") ++failed_checks;
     losses += count_losses(path, all_acks, "cli");
@@ -398,22 +407,10 @@ TEST_CASE("sessions window: killed with SIGKILL mid-answer 20 times, every saved
       ::execl(KITH_BINARY, "kith", "open", path.c_str(), "--people", "Ana", "--frames", "60000", "--no-vsync",
               "--script", script.c_str(), "--print-saved", static_cast<char*>(nullptr));
     });
-    // The delay starts at the first saved judgment, so the kill lands while answers are written
-    // (or after a minute without one: the round then counts no acknowledgement).
+    // The delay starts at the first saved judgment, so the kill lands while answers are written.
     std::string out;
-    char buf[4096];
-    ssize_t got;
-    pollfd ready{fds[0], POLLIN, 0};
-    while (out.find('\n') == std::string::npos && ::poll(&ready, 1, 60000) == 1 &&
-           (got = ::read(fds[0], buf, sizeof buf)) > 0)
-      out.append(buf, size_t(got));
-    ::usleep(useconds_t(wait));
-    ::kill(pid, SIGKILL);
-    int status = 0;
-    ::waitpid(pid, &status, 0);
+    const int status = kill_mid_output(pid, fds[0], wait, true, &out);
     if (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL) ++kills;
-    while ((got = ::read(fds[0], buf, sizeof buf)) > 0) out.append(buf, size_t(got));
-    ::close(fds[0]);
     const size_t acks = read_acks(out, "saved judgment %lld: %255s", &all_acks);
     acknowledged += acks;
     rounds_with_acks += acks > 0;
