@@ -347,11 +347,12 @@ std::string format_judgments_csv(const std::vector<Judgment>& judgments, const s
 }
 
 std::string write_judgments_csv(const std::string& path, const std::vector<Judgment>& judgments,
-                                const std::vector<std::string>& ids, const JudgmentWriteOptions& options) {
+                                const std::vector<std::string>& ids, const JudgmentWriteOptions& options,
+                                const SafeWriteOptions& file) {
   for (const auto& j : judgments)
     for (int32_t i : {j.anchor, j.nearer, j.farther})
       if (i < 0 || size_t(i) >= ids.size()) return "a judgment names item " + std::to_string(i) + ", which has no id";
-  return write_file_safely(path, format_judgments_csv(judgments, ids, options));
+  return write_file_safely(path, format_judgments_csv(judgments, ids, options), file);
 }
 
 bool people_from_string(const std::string& text, PeopleInExport* out) {

@@ -72,7 +72,7 @@ std::string layout_json(const Layout& l, const LayoutFormat& f) {
   doc["dims"] = map.cols();
   for (const auto& field : l.header.items()) doc[field.key()] = field.value();
   doc["items"] = std::move(items);
-  return doc.dump(1) + "\n";
+  return doc.dump(1, ' ', false, json::error_handler_t::replace) + "\n";  // invalid UTF-8: U+FFFD
 }
 
 std::string write_layout(const std::string& path, const Layout& l, const LayoutFormat& f,
