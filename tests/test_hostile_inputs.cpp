@@ -25,6 +25,7 @@
 #include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
+#include "tests/window_support.h"
 
 namespace fs = std::filesystem;
 using kith::SessionStore;
@@ -426,4 +427,23 @@ TEST_CASE("hostile inputs: Latin-1 ids to JSON, /dev/zero and a FIFO as input, f
   CHECK(has(r, "kith fit: --seed"));
   r = run_kith("fit " + items + " -o " + dir + "/seeded.csv --iterations 250 --perplexity 3 --seed 9223372036854775807");
   CHECK(r.code == 0);
+}
+
+TEST_CASE("hostile inputs: the window's pictures take a fresh name instead of writing over a file or a session") {
+  KITH_SKIP_WITHOUT_XVFB();
+  const std::string dir = kith::test::temp_dir("hostile-window-pictures");
+  const std::string items = kith::test::write_swatches_csv(dir, 30);
+  const std::string session = session_with_map(dir, "box.kith", items);
+  write_bytes(dir + "/shot.png", "an old picture\n");
+  const auto before = snapshot(dir);
+  const int code = kith::test::open_with_script(
+      items + " --frames 40 --screenshot " + session, dir, "script",
+      "5 shot " + dir + "/shot.png\n10 shot " + dir + "/shot.png\n");
+  CHECK(code == 0);
+  for (const auto& [path, bytes] : before) CHECK(file_bytes(path) == bytes);
+  CHECK(file_bytes(dir + "/shot-2.png").substr(0, 8) == kPngSignature);
+  CHECK(file_bytes(dir + "/shot-3.png").substr(0, 8) == kPngSignature);
+  CHECK(file_bytes(dir + "/box-2.kith").substr(0, 8) == kPngSignature);  // the screenshot, beside the session
+  const std::string log = file_bytes(dir + "/script.log");
+  CHECK(log.find("saved " + dir + "/shot-2.png (" + dir + "/shot.png is already there)") != std::string::npos);
 }
