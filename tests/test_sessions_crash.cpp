@@ -1,7 +1,8 @@
 // Crash safety and locking with real processes: a child adds judgments through the store and is
 // killed with SIGKILL at random moments; every judgment it acknowledged (through a pipe, after
 // add_judgment returned) must be in the file afterwards, and the file must pass
-// PRAGMA integrity_check. A second process opening a session is refused read-write.
+// PRAGMA integrity_check. A second process opening a session is refused read-write. A session
+// open in a kith window under Xvfb, killed mid-answer, keeps every judgment the window showed.
 #include <doctest/doctest.h>
 #include <signal.h>
 #include <sqlite3.h>
@@ -9,13 +10,16 @@
 #include <unistd.h>
 
 #include <cstdio>
+#include <filesystem>
 #include <map>
+#include <nlohmann/json.hpp>
 #include <random>
 #include <sstream>
 
 #include "solver/session/session_store.h"
 #include "tests/approx.h"
 #include "tests/sessions_support.h"
+#include "tests/window_support.h"
 
 using kith::SessionError;
 using kith::SessionStore;
@@ -296,4 +300,83 @@ TEST_CASE("sessions: kith judge killed at random moments loses no judgment it re
   CHECK(acknowledged > 0);
   CHECK(losses == 0);
   CHECK(failed_checks == 0);
+}
+
+TEST_CASE("sessions: a window killed mid-answer keeps every judgment it showed as made, and the file opens") {
+  KITH_SKIP_WITHOUT_XVFB();
+  const std::string dir = kith::test::temp_dir("sessions-crash-window");
+  const std::string path = dir + "/round.kith";
+  const kith::Collection collection = kith::test::swatch_collection(120, 6, 11);
+  SessionStore::create(path, collection).reset();
+  std::mt19937 rng(515);  // fixed seed: the same kill points every run
+  std::uniform_int_distribution<int> after_dump(1, 12), delay_ms(0, 120);
+  const int rounds = 20, answers = 40;
+  int kills = 0, kills_mid_answering = 0, losses = 0, failed_checks = 0, refused_opens = 0;
+  std::map<int64_t, std::string> acknowledged;  // stored id -> "anchor,nearer,farther"
+  for (int round = 0; round < rounds; ++round) {
+    // Each answer is preceded by a state dump (written whole, then renamed): the judgments a dump
+    // lists under the asking panel's answers are the ones the window showed as made.
+    std::ostringstream script;
+    script << "2 key A\n";  // asking at once: the map need not settle for questions to be asked
+    const std::string prefix = dir + "/r" + std::to_string(round) + "-";
+    for (int k = 0; k < answers; ++k)
+      script << 4 + 3 * k << " dump " << prefix << k << ".json\n" << 5 + 3 * k << (k % 2 ? " key LEFT\n" : " key RIGHT\n");
+    script << 4 + 3 * answers << " quit\n";
+    kith::test::write_bytes(dir + "/script.txt", script.str());
+    const std::string pid_file = dir + "/kith.pid";
+    std::filesystem::remove(pid_file);
+    const std::string command = std::string(kith::test::kXvfb) + "sh -c 'echo $$ > " + pid_file + "; exec " +
+                                KITH_BINARY + " open " + path + " --people Ana,Ben --size 640x400 --no-vsync --frames 1000 --script " + dir +
+                                "/script.txt' > " + dir + "/window.log 2>&1";
+    const pid_t shell = ::fork();
+    REQUIRE(shell >= 0);
+    if (shell == 0) {
+      ::execl("/bin/sh", "sh", "-c", command.c_str(), static_cast<char*>(nullptr));
+      ::_exit(127);
+    }
+    // Killed a random time after a random dump (so mid-answering, however slow the start-up).
+    const int wait_for = after_dump(rng);
+    bool reached = false;
+    for (int tick = 0; tick < 1200 && !reached; ++tick) {  // at most 60 s
+      reached = std::filesystem::exists(prefix + std::to_string(wait_for) + ".json");
+      if (!reached) ::usleep(50000);
+    }
+    ::usleep(useconds_t(delay_ms(rng)) * 1000);
+    const long pid = std::atol(kith::test::file_bytes(pid_file).c_str());
+    if (pid > 0 && ::kill(pid_t(pid), SIGKILL) == 0) ++kills;
+    int status = 0;
+    ::waitpid(shell, &status, 0);
+    kills_mid_answering += reached ? 1 : 0;
+    // Every dump of this round that is there is whole; each lists the answers made so far.
+    for (int k = 0; k < answers; ++k) {
+      const std::string dump = prefix + std::to_string(k) + ".json";
+      if (!std::filesystem::exists(dump)) continue;
+      const auto state = nlohmann::json::parse(kith::test::file_bytes(dump));
+      for (const auto& answer : state["asking"]["answers"])
+        for (const auto& j : answer["judgments"])
+          acknowledged[j["id"].get<int64_t>()] = j["anchor"].get<std::string>() + "," +
+                                                 j["nearer"].get<std::string>() + "," + j["farther"].get<std::string>();
+    }
+    if (integrity_check(path) != "ok") ++failed_checks;
+    try {
+      auto store = SessionStore::open(path);
+      std::map<int64_t, std::string> kept;
+      for (const auto& j : store->judgments())
+        kept[j.id] = collection.ids[size_t(j.anchor)] + "," + collection.ids[size_t(j.nearer)] + "," +
+                     collection.ids[size_t(j.farther)];
+      for (const auto& [id, triple] : acknowledged) losses += kept.count(id) && kept[id] == triple ? 0 : 1;
+    } catch (const SessionError& e) {
+      ++refused_opens;
+      MESSAGE("round " << round << ": the session does not open: " << e.what());
+    }
+  }
+  std::printf("sessions crash test (window): %d kills (SIGKILL) of kith open, %d after answering began, %zu judgments "
+              "shown as made, %d lost, %d failed integrity checks, %d refused opens\n",
+              kills, kills_mid_answering, acknowledged.size(), losses, failed_checks, refused_opens);
+  CHECK(kills == rounds);
+  CHECK(kills_mid_answering == rounds);
+  CHECK(acknowledged.size() >= size_t(rounds));
+  CHECK(losses == 0);
+  CHECK(failed_checks == 0);
+  CHECK(refused_opens == 0);
 }
