@@ -58,8 +58,11 @@ inline std::string write_swatches_csv(const std::string& dir, size_t n) {
   std::ostringstream s;
   s << "id,weave,warmth,gloss,weight\n";
   for (size_t i = 0; i < n; ++i)
-    s << "sw" << i << "," << (i % 3 == 0 ? "twill" : i % 3 == 1 ? "satin" : "plain") << "," << double(i % 3) + 0.01 * i
-      << "," << double((i * 7) % 5) << "," << 2.0 * double(i % 3) - 0.02 * i << "\n";
+    s << "sw" << i << ","
+      << (i % 3 == 0   ? "twill"
+          : i % 3 == 1 ? "satin"
+                       : "plain")
+      << "," << double(i % 3) + 0.01 * i << "," << double((i * 7) % 5) << "," << 2.0 * double(i % 3) - 0.02 * i << "\n";
   const std::string path = dir + "/swatches.csv";
   write_bytes(path, s.str());
   return path;

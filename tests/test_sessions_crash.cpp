@@ -320,13 +320,15 @@ TEST_CASE("sessions: a window killed mid-answer keeps every judgment it showed a
     script << "2 key A\n";  // asking at once: the map need not settle for questions to be asked
     const std::string prefix = dir + "/r" + std::to_string(round) + "-";
     for (int k = 0; k < answers; ++k)
-      script << 4 + 3 * k << " dump " << prefix << k << ".json\n" << 5 + 3 * k << (k % 2 ? " key LEFT\n" : " key RIGHT\n");
+      script << 4 + 3 * k << " dump " << prefix << k << ".json\n"
+             << 5 + 3 * k << (k % 2 ? " key LEFT\n" : " key RIGHT\n");
     script << 4 + 3 * answers << " quit\n";
     kith::test::write_bytes(dir + "/script.txt", script.str());
     const std::string pid_file = dir + "/kith.pid";
     std::filesystem::remove(pid_file);
     const std::string command = std::string(kith::test::kXvfb) + "sh -c 'echo $$ > " + pid_file + "; exec " +
-                                KITH_BINARY + " open " + path + " --people Ana,Ben --size 640x400 --no-vsync --frames 1000 --script " + dir +
+                                KITH_BINARY + " open " + path +
+                                " --people Ana,Ben --size 640x400 --no-vsync --frames 1000 --script " + dir +
                                 "/script.txt' > " + dir + "/window.log 2>&1";
     const pid_t shell = ::fork();
     REQUIRE(shell >= 0);
@@ -354,8 +356,8 @@ TEST_CASE("sessions: a window killed mid-answer keeps every judgment it showed a
       const auto state = nlohmann::json::parse(kith::test::file_bytes(dump));
       for (const auto& answer : state["asking"]["answers"])
         for (const auto& j : answer["judgments"])
-          acknowledged[j["id"].get<int64_t>()] = j["anchor"].get<std::string>() + "," +
-                                                 j["nearer"].get<std::string>() + "," + j["farther"].get<std::string>();
+          acknowledged[j["id"].get<int64_t>()] = j["anchor"].get<std::string>() + "," + j["nearer"].get<std::string>() +
+                                                 "," + j["farther"].get<std::string>();
     }
     if (integrity_check(path) != "ok") ++failed_checks;
     try {
@@ -370,9 +372,10 @@ TEST_CASE("sessions: a window killed mid-answer keeps every judgment it showed a
       MESSAGE("round " << round << ": the session does not open: " << e.what());
     }
   }
-  std::printf("sessions crash test (window): %d kills (SIGKILL) of kith open, %d after answering began, %zu judgments "
-              "shown as made, %d lost, %d failed integrity checks, %d refused opens\n",
-              kills, kills_mid_answering, acknowledged.size(), losses, failed_checks, refused_opens);
+  std::printf(
+      "sessions crash test (window): %d kills (SIGKILL) of kith open, %d after answering began, %zu judgments "
+      "shown as made, %d lost, %d failed integrity checks, %d refused opens\n",
+      kills, kills_mid_answering, acknowledged.size(), losses, failed_checks, refused_opens);
   CHECK(kills == rounds);
   CHECK(kills_mid_answering == rounds);
   CHECK(acknowledged.size() >= size_t(rounds));

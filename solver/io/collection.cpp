@@ -8,7 +8,6 @@
 //   [SECTION] Ids, pictures, warnings
 //   [SECTION] Loaders
 #include "solver/io/collection.h"
-#include "solver/io/text_fields.h"
 
 #include <algorithm>
 #include <cctype>
@@ -22,6 +21,7 @@
 
 #include "solver/io/csv_table.h"
 #include "solver/io/npy_file.h"
+#include "solver/io/text_fields.h"
 
 namespace kith {
 

@@ -10,8 +10,8 @@
 #include <string>
 #include <vector>
 
-#include "solver/io/collection.h"
 #include "solver/base/judgment.h"
+#include "solver/io/collection.h"
 #include "solver/io/safe_file.h"
 
 namespace kith {

@@ -4,16 +4,16 @@
 #include <fcntl.h>
 #include <sqlite3.h>
 #include <sys/file.h>
-#include <sys/sysmacros.h>
 #include <sys/stat.h>
+#include <sys/sysmacros.h>
 #include <unistd.h>
 
 #include <atomic>
 #include <cctype>
-#include <csignal>
 #include <chrono>
 #include <cmath>
 #include <condition_variable>
+#include <csignal>
 #include <cstring>
 #include <ctime>
 #include <exception>
@@ -153,7 +153,8 @@ void check_item_indices(Db& d, const std::string& path, int schema_version) {
   Stmt n(d, "SELECT count(*) FROM items");
   n.step();
   const int64_t items = n.i64(0);
-  const std::string range = "the collection's " + std::to_string(items) + " items (0.." + std::to_string(items - 1) + ")";
+  const std::string range =
+      "the collection's " + std::to_string(items) + " items (0.." + std::to_string(items - 1) + ")";
   auto damaged = [&](const std::string& table, const std::string& row, const std::string& what) {
     return SessionError(Kind::kCorrupt, path + ": damaged: table '" + table + "', " + row + ": " + what +
                                             ". The file was not changed; kith will not read or write it");
@@ -186,8 +187,8 @@ void check_item_indices(Db& d, const std::string& path, int schema_version) {
                      "dims < 1 OR dims > 3 OR length(positions) != items * dims * 8 LIMIT 1");
       q->step())
     throw damaged("checkpoints", "checkpoint " + std::to_string(q->i64(0)),
-                  "a map of " + std::to_string(q->i64(1)) + " items x " + std::to_string(q->i64(2)) + " dimensions in " +
-                      std::to_string(q->i64(3)) + " bytes, for " + range);
+                  "a map of " + std::to_string(q->i64(1)) + " items x " + std::to_string(q->i64(2)) +
+                      " dimensions in " + std::to_string(q->i64(3)) + " bytes, for " + range);
 }
 
 // ==== [SECTION] locks ===========================================================================

@@ -2,15 +2,12 @@
 // (SQLite helpers), session_file.* (schema, checks, locks), session_store_impl.h (the open file's
 // state), session_store_data.cpp (reads and writes).
 #include "solver/session/session_store.h"
-#include "solver/session/session_store_impl.h"
-
-#include "solver/io/safe_file.h"
 
 #include <fcntl.h>
 #include <sqlite3.h>
 #include <sys/file.h>
-#include <sys/sysmacros.h>
 #include <sys/stat.h>
+#include <sys/sysmacros.h>
 #include <unistd.h>
 
 #include <atomic>
@@ -27,6 +24,9 @@
 #include <set>
 #include <sstream>
 #include <thread>
+
+#include "solver/io/safe_file.h"
+#include "solver/session/session_store_impl.h"
 
 namespace kith {
 
@@ -49,6 +49,16 @@ const char* to_string(SessionError::Kind kind) {
   return "unknown";
 }
 
+namespace {
+
+// A FIFO, a device or a folder is refused before anything opens it (opening a FIFO would wait for
+// a writer forever, and /dev/zero never ends).
+void refuse_unless_regular(const std::string& path, const struct stat& st) {
+  if (!S_ISREG(st.st_mode)) throw SessionError(Kind::kNotSession, path + ": not a regular file, so not a kith session");
+}
+
+}  // namespace
+
 // ==== [SECTION] create / open / inspect =========================================================
 
 SessionStore::SessionStore(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
@@ -58,6 +68,7 @@ SessionInfo SessionStore::inspect(const std::string& path) {
   struct stat st {};
   if (::stat(path.c_str(), &st) != 0)
     throw SessionError(errno == ENOENT ? Kind::kNotFound : Kind::kIo, path + ": " + std::strerror(errno));
+  refuse_unless_regular(path, st);
   const FileKey key{st.st_dev, st.st_ino};
   if (is_open_here(key)) throw SessionError(Kind::kInUse, in_use_message(path, key, true));
   const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
@@ -83,6 +94,7 @@ std::unique_ptr<SessionStore> SessionStore::open(const std::string& path, const 
   if (::stat(path.c_str(), &st) != 0)
     throw SessionError(errno == ENOENT ? Kind::kNotFound : Kind::kIo,
                        path + ": " + (errno == ENOENT ? std::string("no such session file") : std::strerror(errno)));
+  refuse_unless_regular(path, st);
   auto impl = std::make_unique<Impl>();
   impl->path = path;
   impl->read_only = options.read_only;
@@ -154,9 +166,10 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
   // with the file they belong to, only with --force, and only while nobody holds that file.
   const std::vector<std::string> logs = log_files_beside(path);
   if (!logs.empty() && !options.overwrite)
-    throw SessionError(Kind::kExists, path + ": " + logs.front() + " is there, the log of an earlier session of that "
-                                             "name; a new session would take its changes in. Use --force to remove "
-                                             "it, or choose another name");
+    throw SessionError(Kind::kExists, path + ": " + logs.front() +
+                                          " is there, the log of an earlier session of that "
+                                          "name; a new session would take its changes in. Use --force to remove "
+                                          "it, or choose another name");
   // Never replace a session another process is writing: its lock is held from here to the rename.
   int held = -1;
   auto release = [&] {
@@ -168,7 +181,7 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
     if (::stat(path.c_str(), &st) == 0) {
       const FileKey key{st.st_dev, st.st_ino};
       if (is_open_here(key)) throw SessionError(Kind::kInUse, in_use_message(path, key, true));
-      held = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+      held = ::open(path.c_str(), O_RDONLY | O_CLOEXEC | O_NONBLOCK);  // a FIFO there must not hang
       if (held >= 0 && ::flock(held, LOCK_EX | LOCK_NB) != 0) {
         release();
         throw SessionError(Kind::kInUse, in_use_message(path, key, false));

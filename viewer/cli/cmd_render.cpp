@@ -37,7 +37,8 @@ const char* const kOptions =
 }  // namespace
 
 int cmd_render(const Args& args) {
-  FlagReader flags("render", kUsage, kOptions + force_flag("FILE") + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
+  FlagReader flags("render", kUsage,
+                   kOptions + force_flag("FILE") + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
                    "--generate N");  // a generated collection, for tests
   if (!flags.read(args)) return flags.stop();
   RenderOptions ro;

@@ -61,7 +61,8 @@ std::string fixed(double v, int digits) {
 }  // namespace
 
 int cmd_report(const Args& args) {
-  FlagReader flags("report", kUsage, kOptions + force_flag("FILE") + map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
+  FlagReader flags("report", kUsage,
+                   kOptions + force_flag("FILE") + map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
                    kFooter);
   if (!flags.read(args)) return flags.stop();
   FitOptions fit;

@@ -9,21 +9,21 @@
 #include <string>
 #include <vector>
 
-#include "solver/io/collection.h"
-#include "solver/fit/flat_map.h"
 #include "solver/base/judgment.h"
 #include "solver/base/points.h"
-#include "solver/session/session_store.h"
+#include "solver/fit/flat_map.h"
+#include "solver/io/collection.h"
 #include "solver/io/judgment_io.h"
 #include "solver/io/safe_file.h"
+#include "solver/session/session_store.h"
 
 namespace kith {
 
 // Writes the layout of `map` (N x 2 or N x 3) to OUT: JSON when it ends in .json, else CSV.
 // Groups come from solver/measures/groups.h, suspect scores from solver/measures/suspects.h over `tag_column`
 // (default: the first tag column). Returns "" or a message; notes go to stderr.
-std::string export_layout(const Collection& collection, const Points& map, uint64_t iteration,
-                          const std::string& out, const std::string& tag_column, const SafeWriteOptions& file);
+std::string export_layout(const Collection& collection, const Points& map, uint64_t iteration, const std::string& out,
+                          const std::string& tag_column, const SafeWriteOptions& file);
 
 // Writes judgments as CSV by item id; people as names, codes (P1, P2, ...) or left out.
 std::string export_judgments(std::vector<Judgment> judgments, const Collection& collection, const std::string& out,

@@ -7,9 +7,9 @@
 #include <string>
 #include <vector>
 
-#include "solver/io/collection.h"
 #include "solver/base/judgment.h"
 #include "solver/base/points.h"
+#include "solver/io/collection.h"
 #include "solver/io/safe_file.h"
 #include "viewer/scene/camera.h"
 #include "viewer/scene/map_view.h"

@@ -167,8 +167,7 @@ std::string SessionMenu::run(Dialog d, const std::string& out, const std::string
       for (size_t i = 0; i < snap->pinned.size(); ++i)
         if (snap->pinned[i]) pinned.push_back(int32_t(i));
       double agreement = 0.0;
-      const std::string m =
-          export_flat(c, snap->positions, link_.judgments(), pinned, fo, out, "", file, &agreement);
+      const std::string m = export_flat(c, snap->positions, link_.judgments(), pinned, fo, out, "", file, &agreement);
       if (m.empty()) done_ = "wrote " + out;
       return m;
     }

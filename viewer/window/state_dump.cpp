@@ -9,8 +9,8 @@
 #include <ctime>
 #include <nlohmann/json.hpp>
 
-#include "viewer/window/app_state.h"
 #include "solver/io/safe_file.h"
+#include "viewer/window/app_state.h"
 #include "viewer/window/offscreen_render.h"
 
 namespace kith {
@@ -28,7 +28,8 @@ void App::save_picture(const std::string& path) {
   const std::string note = name == path ? "" : " (" + path + " is already there)";
   say(e.empty() ? "saved " + name + note : e);
   if (!e.empty()) std::fprintf(stderr, "kith open: %s\n", e.c_str());
-  else if (!note.empty()) std::fprintf(stderr, "kith open: saved %s%s\n", name.c_str(), note.c_str());
+  else if (!note.empty())
+    std::fprintf(stderr, "kith open: saved %s%s\n", name.c_str(), note.c_str());
 }
 
 void App::save_picture_now() {
@@ -124,7 +125,8 @@ void App::dump_state(const std::string& path) {
   j["bounds"] = {{view->bounds_lo().x, view->bounds_lo().y, view->bounds_lo().z},
                  {view->bounds_hi().x, view->bounds_hi().y, view->bounds_hi().z}};
   // The script's own state file: each dump to the same name replaces the last (never a session).
-  if (const std::string e = write_file_safely(path, j.dump(1, ' ', false, json::error_handler_t::replace)); !e.empty()) std::fprintf(stderr, "kith open: %s\n", e.c_str());
+  if (const std::string e = write_file_safely(path, j.dump(1, ' ', false, json::error_handler_t::replace)); !e.empty())
+    std::fprintf(stderr, "kith open: %s\n", e.c_str());
 }
 
 void glfw_error(int code, const char* text) { std::fprintf(stderr, "kith: window system error %d: %s\n", code, text); }
