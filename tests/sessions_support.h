@@ -9,6 +9,7 @@
 #include <fstream>
 #include <iterator>
 #include <random>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -49,6 +50,22 @@ inline std::string file_bytes(const std::string& path) {
 inline void write_bytes(const std::string& path, const std::string& bytes) {
   std::ofstream out(path, std::ios::binary | std::ios::trunc);
   out.write(bytes.data(), std::streamsize(bytes.size()));
+}
+
+// An invented collection file: N fabric swatches of a sample box, DIR/swatches.csv (id, weave,
+// three numeric features).
+inline std::string write_swatches_csv(const std::string& dir, size_t n) {
+  std::ostringstream s;
+  s << "id,weave,warmth,gloss,weight\n";
+  for (size_t i = 0; i < n; ++i)
+    s << "sw" << i << ","
+      << (i % 3 == 0   ? "twill"
+          : i % 3 == 1 ? "satin"
+                       : "plain")
+      << "," << double(i % 3) + 0.01 * i << "," << double((i * 7) % 5) << "," << 2.0 * double(i % 3) - 0.02 * i << "\n";
+  const std::string path = dir + "/swatches.csv";
+  write_bytes(path, s.str());
+  return path;
 }
 
 // Names of the files in a folder (to see that nothing appeared, e.g. -wal or -shm).

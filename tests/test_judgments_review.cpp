@@ -345,7 +345,7 @@ TEST_CASE("judgments panel: CSV import is all or none, bad rows listed, export r
   std::filesystem::remove(out);
   REQUIRE(r.panel->export_csv(out, true, true, false));
   CHECK_FALSE(r.panel->export_csv(out, true, true, false));  // exists: not replaced unless asked
-  CHECK(r.panel->file_messages()[0].find("exists") != std::string::npos);
+  CHECK(r.panel->file_messages()[0].find("already there; kith does not write over it: tick") != std::string::npos);
   CHECK_FALSE(r.panel->export_csv(dir + "/box.kith", true, true, true));  // never over a session
   const auto back = read_judgments_csv(out, r.collection.ids);
   REQUIRE(back.ok());

@@ -1,7 +1,8 @@
 // Crash safety and locking with real processes: a child adds judgments through the store and is
 // killed with SIGKILL at random moments; every judgment it acknowledged (through a pipe, after
 // add_judgment returned) must be in the file afterwards, and the file must pass
-// PRAGMA integrity_check. A second process opening a session is refused read-write.
+// PRAGMA integrity_check. A second process opening a session is refused read-write. A session
+// open in a kith window under Xvfb, killed mid-answer, keeps every judgment the window showed.
 #include <doctest/doctest.h>
 #include <signal.h>
 #include <sqlite3.h>

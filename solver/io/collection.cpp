@@ -8,12 +8,12 @@
 //   [SECTION] Ids, pictures, warnings
 //   [SECTION] Loaders
 #include "solver/io/collection.h"
-#include "solver/io/text_fields.h"
 
 #include <algorithm>
 #include <cctype>
 #include <charconv>
 #include <cmath>
+#include <cstdio>
 #include <cstdlib>
 #include <filesystem>
 #include <string_view>
@@ -21,6 +21,7 @@
 
 #include "solver/io/csv_table.h"
 #include "solver/io/npy_file.h"
+#include "solver/io/text_fields.h"
 
 namespace kith {
 
@@ -354,6 +355,22 @@ void warn_constant_columns(Collection* c, long header_line, const std::vector<lo
 
 // ==== [SECTION] Loaders =====================================================================
 
+// One warning, with the line, for a table that is not UTF-8 (a Latin-1 export, say): its text is
+// kept byte for byte, and JSON outputs show such bytes as U+FFFD (text_fields.h).
+void warn_if_not_utf8(std::string_view data, const std::string& name, std::vector<Problem>* warnings) {
+  const size_t bad = first_invalid_utf8(data);
+  if (bad == std::string_view::npos) return;
+  long line = 1;
+  for (size_t i = 0; i < bad; ++i)
+    if (data[i] == '\n' || (data[i] == '\r' && (i + 1 >= data.size() || data[i + 1] != '\n'))) ++line;
+  char byte[8];
+  std::snprintf(byte, sizeof byte, "0x%02X", unsigned(static_cast<unsigned char>(data[bad])));
+  warnings->push_back(Problem{name, line, 0,
+                              std::string("the file is not UTF-8 text (byte ") + byte +
+                                  " is the first that is not); its text is kept as it is, and JSON outputs show "
+                                  "such bytes as U+FFFD"});
+}
+
 void check_options(const LoadOptions& options, const std::string& name) {
   std::string error;
   if (!options.is_valid(&error)) fail(name, 0, 0, error);
@@ -362,6 +379,7 @@ void check_options(const LoadOptions& options, const std::string& name) {
 Collection load_table(std::string data, const std::string& name, const LoadOptions& options) {
   Collection c;
   c.source = name;
+  warn_if_not_utf8(data, name, &c.warnings);
   const CsvTable t = parse_csv(std::move(data), name);
   const std::vector<std::string> names = column_names(t, &c.warnings);
   const Cells cells = read_cells(t);
@@ -427,7 +445,9 @@ Collection load_npy(std::string_view bytes, const std::string& name, const LoadO
   for (size_t j = 0; j < cols; ++j) c.feature_names.push_back("f" + std::to_string(j));
 
   if (!options.tags_csv.empty()) {
-    const CsvTable t = parse_csv(read_file(options.tags_csv), options.tags_csv);
+    std::string tag_data = read_file(options.tags_csv);
+    warn_if_not_utf8(tag_data, options.tags_csv, &c.warnings);
+    const CsvTable t = parse_csv(std::move(tag_data), options.tags_csv);
     const std::vector<std::string> names = column_names(t, &c.warnings);
     const Cells cells = read_cells(t);
     const Roles roles = choose_roles(t, names, cells, options, false);

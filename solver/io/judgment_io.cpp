@@ -339,19 +339,22 @@ std::string format_judgments_csv(const std::vector<Judgment>& judgments, const s
   out << "anchor,nearer,farther,person,time,kind,weight\n";
   for (const auto& j : judgments) {
     if (j.retracted && !options.include_retracted) continue;
-    out << csv_field(ids.at(size_t(j.anchor))) << ',' << csv_field(ids.at(size_t(j.nearer))) << ','
-        << csv_field(ids.at(size_t(j.farther))) << ',' << (options.include_people ? csv_field(j.person) : "") << ','
+    const bool raw = options.raw_csv;
+    out << csv_field(ids.at(size_t(j.anchor)), raw) << ',' << csv_field(ids.at(size_t(j.nearer)), raw) << ','
+        << csv_field(ids.at(size_t(j.farther)), raw) << ',' << (options.include_people ? csv_field(j.person, raw) : "")
+        << ','
         << (j.time != 0.0 ? format_time_utc(j.time) : "") << ',' << to_string(j.kind) << ',' << j.weight << '\n';
   }
   return out.str();
 }
 
 std::string write_judgments_csv(const std::string& path, const std::vector<Judgment>& judgments,
-                                const std::vector<std::string>& ids, const JudgmentWriteOptions& options) {
+                                const std::vector<std::string>& ids, const JudgmentWriteOptions& options,
+                                const SafeWriteOptions& file) {
   for (const auto& j : judgments)
     for (int32_t i : {j.anchor, j.nearer, j.farther})
       if (i < 0 || size_t(i) >= ids.size()) return "a judgment names item " + std::to_string(i) + ", which has no id";
-  return write_file_safely(path, format_judgments_csv(judgments, ids, options));
+  return write_file_safely(path, format_judgments_csv(judgments, ids, options), file);
 }
 
 bool people_from_string(const std::string& text, PeopleInExport* out) {

@@ -10,8 +10,9 @@
 #include <string>
 #include <vector>
 
-#include "solver/io/collection.h"
 #include "solver/base/judgment.h"
+#include "solver/io/collection.h"
+#include "solver/io/safe_file.h"
 
 namespace kith {
 
@@ -41,12 +42,14 @@ JudgmentReadResult parse_judgments_csv(const std::string& text, const std::strin
 struct JudgmentWriteOptions {
   bool include_retracted = false;  // (default: false; retracted judgments are left out)
   bool include_people = true;      // false writes an empty person column (default: true)
+  bool raw_csv = false;            // fields as they are, not neutralized (text_fields.h) (default: false)
 };
 // Writes anchor,nearer,farther,person,time,kind,weight with ISO 8601 UTC times, through
-// write_file_safely (safe_file.h): an existing file is replaced whole or left as it was, and a
-// SQLite file never. Returns "" or what went wrong.
+// write_file_safely (safe_file.h) with `file`: an existing file is replaced whole (when
+// file.replace) or left as it was, and a SQLite file never. Returns "" or what went wrong.
 std::string write_judgments_csv(const std::string& path, const std::vector<Judgment>& judgments,
-                                const std::vector<std::string>& ids, const JudgmentWriteOptions& options = {});
+                                const std::vector<std::string>& ids, const JudgmentWriteOptions& options = {},
+                                const SafeWriteOptions& file = {});
 std::string format_judgments_csv(const std::vector<Judgment>& judgments, const std::vector<std::string>& ids,
                                  const JudgmentWriteOptions& options = {});
 

@@ -35,14 +35,14 @@ std::string layout_csv(const Layout& l, const LayoutFormat& f) {
   const Points& map = *l.map;
   std::string s = "id";
   for (Eigen::Index d = 0; d < map.cols(); ++d) s += std::string(",") + kAxes[d];
-  for (const auto& t : c.tags) s += "," + csv_field(t.name);
+  for (const auto& t : c.tags) s += "," + csv_field(t.name, f.raw_csv);
   if (!l.group.empty()) s += ",group";
-  if (!l.suspect.empty()) s += "," + csv_field(f.suspect_column);
+  if (!l.suspect.empty()) s += "," + csv_field(f.suspect_column, f.raw_csv);
   s += "\n";
   for (size_t i = 0; i < c.size(); ++i) {
-    s += csv_field(c.ids[i]);
+    s += csv_field(c.ids[i], f.raw_csv);
     for (Eigen::Index d = 0; d < map.cols(); ++d) s += "," + number(map(Eigen::Index(i), d));
-    for (const auto& t : c.tags) s += "," + csv_field(t.values[i]);
+    for (const auto& t : c.tags) s += "," + csv_field(t.values[i], f.raw_csv);
     int64_t g = 0;
     if (!l.group.empty()) s += "," + (group_value(l, f, i, &g) ? std::to_string(g) : std::string());
     if (!l.suspect.empty()) s += "," + (has_score(l, i) ? number(l.suspect[i]) : std::string());
@@ -72,7 +72,7 @@ std::string layout_json(const Layout& l, const LayoutFormat& f) {
   doc["dims"] = map.cols();
   for (const auto& field : l.header.items()) doc[field.key()] = field.value();
   doc["items"] = std::move(items);
-  return doc.dump(1) + "\n";
+  return doc.dump(1, ' ', false, json::error_handler_t::replace) + "\n";  // invalid UTF-8: U+FFFD
 }
 
 std::string write_layout(const std::string& path, const Layout& l, const LayoutFormat& f,

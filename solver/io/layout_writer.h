@@ -33,6 +33,9 @@ struct LayoutFormat {
   // kith fit numbers groups 1, 2, ... with 0 for no group (so the CSV loads as all numbers);
   // export numbers them 0, 1, ... with an empty field (JSON null) for no group. (default: false)
   bool groups_from_one = false;
+  // CSV: write text fields as they are, without the leading apostrophe that keeps a spreadsheet
+  // from running one that looks like a formula (text_fields.h; --raw-csv). (default: false)
+  bool raw_csv = false;
 };
 
 std::string layout_csv(const Layout& layout, const LayoutFormat& format = {});

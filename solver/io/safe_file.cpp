@@ -5,8 +5,11 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
+#include <cstdint>
 #include <cstdio>
+#include <cstdlib>
 #include <cstring>
 #include <random>
 
@@ -27,10 +30,35 @@ void split_path(const std::string& path, std::string* folder, std::string* name)
   }
 }
 
+// The test hook's byte budget (safe_file.h): SIZE_MAX when KITH_TEST_DISK_FULL_AFTER is not set.
+size_t disk_full_after() {
+  const char* v = std::getenv("KITH_TEST_DISK_FULL_AFTER");
+  if (!v || !*v) return SIZE_MAX;
+  char* end = nullptr;
+  const unsigned long long n = std::strtoull(v, &end, 10);
+  return end && *end == '\0' ? size_t(n) : SIZE_MAX;
+}
+
+int sync_file(int fd) {
+  const char* v = std::getenv("KITH_TEST_FSYNC_FAILS");
+  if (v && std::strcmp(v, "1") == 0) {
+    errno = EIO;
+    return -1;
+  }
+  return ::fsync(fd);
+}
+
 bool write_all(int fd, const std::string& bytes, int* err) {
   size_t done = 0;
+  const size_t budget = disk_full_after();
   while (done < bytes.size()) {
-    const ssize_t n = ::write(fd, bytes.data() + done, bytes.size() - done);
+    size_t want = bytes.size() - done;
+    if (done >= budget) {
+      *err = ENOSPC;
+      return false;
+    }
+    want = std::min(want, budget - done);  // a short write, then ENOSPC, as on a full disk
+    const ssize_t n = ::write(fd, bytes.data() + done, want);
     if (n < 0) {
       if (errno == EINTR) continue;
       *err = errno;
@@ -82,14 +110,43 @@ bool is_sqlite_file(const std::string& path) {
   return got == 16 && std::memcmp(head, "SQLite format 3\0", 16) == 0;
 }
 
-std::string check_write_target(const std::string& path, bool replace) {
+bool same_file(const std::string& a, const std::string& b) {
+  struct stat sa {
+  }, sb{};
+  return ::stat(a.c_str(), &sa) == 0 && ::stat(b.c_str(), &sb) == 0 && sa.st_dev == sb.st_dev && sa.st_ino == sb.st_ino;
+}
+
+std::string check_write_target(const std::string& path, const SafeWriteOptions& options) {
   if (path.empty()) return "no file name given";
   struct stat st {};
   if (::stat(path.c_str(), &st) != 0) return "";  // nothing there (or a dangling link, replaced as a name)
   if (S_ISDIR(st.st_mode)) return path + ": is a folder";
   if (is_sqlite_file(path)) return path + ": a SQLite database (a session?) is there; kith will not overwrite it";
-  if (!replace) return path + ": a file is already there; kith does not write over it";
+  for (const std::string& input : options.inputs)
+    if (same_file(path, input)) return path + ": that is the input (" + input + "); kith does not write over it";
+  if (!options.replace) return path + ": a file is already there; kith does not write over it";
   return "";
+}
+
+std::string check_write_target(const std::string& path, bool replace) {
+  SafeWriteOptions options;
+  options.replace = replace;
+  return check_write_target(path, options);
+}
+
+std::string fresh_name(const std::string& path) {
+  struct stat st {};
+  if (::lstat(path.c_str(), &st) != 0) return path;
+  std::string folder, name;
+  split_path(path, &folder, &name);
+  const size_t dot = name.find_last_of('.');
+  const std::string stem = dot == std::string::npos || dot == 0 ? name : name.substr(0, dot);
+  const std::string ext = dot == std::string::npos || dot == 0 ? "" : name.substr(dot);
+  const std::string prefix = path.size() > name.size() ? path.substr(0, path.size() - name.size()) : "";
+  for (int k = 2;; ++k) {
+    const std::string candidate = prefix + stem + "-" + std::to_string(k) + ext;
+    if (::lstat(candidate.c_str(), &st) != 0) return candidate;
+  }
 }
 
 int create_new_file(const std::string& name) {
@@ -118,7 +175,7 @@ int create_temp_beside(const std::string& path, std::string* temp_path, std::str
 }
 
 std::string write_file_safely(const std::string& path, const std::string& bytes, const SafeWriteOptions& options) {
-  if (std::string problem = check_write_target(path, options.replace); !problem.empty()) return problem;
+  if (std::string problem = check_write_target(path, options); !problem.empty()) return problem;
   std::string tmp, error;
   const int fd = create_temp_beside(path, &tmp, &error);
   if (fd < 0) return error;
@@ -131,14 +188,14 @@ std::string write_file_safely(const std::string& path, const std::string& bytes,
     ::close(fd);
     return fail(path + ": writing failed (" + cause(err) + ")");
   }
-  if (::fsync(fd) != 0) {
+  if (sync_file(fd) != 0) {
     err = errno;
     ::close(fd);
     return fail(path + ": writing failed (" + cause(err) + ")");
   }
   if (::close(fd) != 0) return fail(path + ": writing failed (" + cause(errno) + ")");
   // Checked again just before the rename: a session may have appeared there meanwhile.
-  if (std::string problem = check_write_target(path, options.replace); !problem.empty()) return fail(problem);
+  if (std::string problem = check_write_target(path, options); !problem.empty()) return fail(problem);
   if (const int e = move_into_place(tmp, path, options.replace); e != 0)
     return fail(e == EEXIST ? path + ": a file is already there; kith does not write over it"
                             : path + ": cannot replace (" + cause(e) + ")");

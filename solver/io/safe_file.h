@@ -3,10 +3,20 @@
 // there in advance is followed or reused), are written in full, checked and fsynced, and the
 // temporary is renamed into place; then the folder is fsynced. On any failure the temporary is
 // removed and the old file, if any, is left byte for byte as it was. A SQLite database (a
-// session) is never written over, whatever the options say.
+// session) is never written over, whatever the options say, and neither is any of the files the
+// command reads (SafeWriteOptions::inputs), compared as files (device and inode), so a link or
+// another spelling of the same file is caught too.
+//
+// Failures are reported, never hidden: a short write, ENOSPC or EFBIG, an fsync or close that
+// fails, each give "PATH: writing failed (CAUSE)"; the temporary is removed and the old file kept.
+// Test hook (for machines where a test cannot mount a small file system): when the environment
+// holds KITH_TEST_DISK_FULL_AFTER=N, every write of this process stops after N bytes of the
+// temporary file with ENOSPC, as a full disk would; KITH_TEST_FSYNC_FAILS=1 makes the fsync of
+// the temporary fail with EIO. Nothing else reads these variables.
 // Any thread; two writers of the same path at once end with one complete file or the other.
 #pragma once
 #include <string>
+#include <vector>
 
 namespace kith {
 
@@ -14,14 +24,25 @@ struct SafeWriteOptions {
   // Write over an existing file; when false an existing file is refused, atomically (a file
   // that appears while writing is not replaced either). (default: true)
   bool replace = true;
+  // The command's own input files: refused as targets even with `replace`. (default: none)
+  std::vector<std::string> inputs;
 };
 
 // Writes BYTES to PATH. Returns "" or a message naming the path and the cause.
 std::string write_file_safely(const std::string& path, const std::string& bytes, const SafeWriteOptions& options = {});
 
-// "" when PATH may be written (it does not exist, or `replace` and it is not a SQLite database
-// or a folder), else the message write_file_safely would give. Follows a symbolic link at PATH.
+// "" when PATH may be written (it does not exist, or `replace` and it is not a SQLite database,
+// a folder or one of `inputs`), else the message write_file_safely would give. Follows a symbolic
+// link at PATH. Commands call it before their work, so a refused output costs nothing.
+std::string check_write_target(const std::string& path, const SafeWriteOptions& options);
 std::string check_write_target(const std::string& path, bool replace);
+
+// True when A and B name the same existing file (same device and inode, links followed).
+bool same_file(const std::string& a, const std::string& b);
+
+// PATH if nothing is there, else the first free "STEM-2.EXT", "STEM-3.EXT", ... beside it (for
+// the window's pictures, which choose a fresh name rather than write over a file).
+std::string fresh_name(const std::string& path);
 
 // True when PATH names a readable file that starts with the SQLite header "SQLite format 3\0".
 bool is_sqlite_file(const std::string& path);

@@ -22,6 +22,16 @@ std::string unneutralized(const std::string& field);
 bool is_neutralized(std::string_view field);  // unneutralized() would remove an apostrophe
 
 // A JSON string literal: quotes, backslashes and control characters escaped.
+// Invalid UTF-8 never makes a JSON output fail: each byte that is not part of a well-formed UTF-8
+// sequence (RFC 3629: no overlong forms, no surrogates, nothing above U+10FFFF) is written as
+// U+FFFD, the replacement character, so a Latin-1 id "caf\xE9" becomes "caf\uFFFD" (as the
+// UTF-8 bytes EF BF BD). kith's other JSON (layouts, state files, events) is written by
+// nlohmann::json with error_handler_t::replace, which does the same.
 std::string json_string(const std::string& text);
+
+// The offset of the first byte of TEXT that is not well-formed UTF-8, or npos.
+size_t first_invalid_utf8(std::string_view text);
+// TEXT with every such byte replaced by U+FFFD.
+std::string valid_utf8(std::string_view text);
 
 }  // namespace kith

@@ -4,19 +4,22 @@
 #include <fcntl.h>
 #include <sqlite3.h>
 #include <sys/file.h>
-#include <sys/sysmacros.h>
 #include <sys/stat.h>
+#include <sys/sysmacros.h>
 #include <unistd.h>
 
 #include <atomic>
+#include <cctype>
 #include <chrono>
 #include <cmath>
 #include <condition_variable>
+#include <csignal>
 #include <cstring>
 #include <ctime>
 #include <exception>
 #include <filesystem>
 #include <fstream>
+#include <memory>
 #include <mutex>
 #include <random>
 #include <set>
@@ -139,7 +142,53 @@ SessionInfo check_with_sqlite(const std::string& path, bool wal_present) {
     info.items = size_t(c.i64(0));
     info.judgments = size_t(c.i64(1));
   }
+  check_item_indices(d, path, info.schema_version);
   return info;
+}
+
+// Every stored item index against the collection: items numbered 0..N-1, and the tags, judgments,
+// pins and map checkpoints naming only those. The first row out of place is named.
+void check_item_indices(Db& d, const std::string& path, int schema_version) {
+  if (schema_version < 1) return;
+  Stmt n(d, "SELECT count(*) FROM items");
+  n.step();
+  const int64_t items = n.i64(0);
+  const std::string range =
+      "the collection's " + std::to_string(items) + " items (0.." + std::to_string(items - 1) + ")";
+  auto damaged = [&](const std::string& table, const std::string& row, const std::string& what) {
+    return SessionError(Kind::kCorrupt, path + ": damaged: table '" + table + "', " + row + ": " + what +
+                                            ". The file was not changed; kith will not read or write it");
+  };
+  auto first = [&](const char* sql) {
+    auto q = std::make_unique<Stmt>(d, sql);
+    q->bind(1, items);
+    return q;
+  };
+  auto outside = [&](int64_t i) { return "item " + std::to_string(i) + " is outside " + range; };
+  if (auto q = first("SELECT item FROM items WHERE item < 0 OR item >= ?1 LIMIT 1"); q->step())
+    throw damaged("items", "item " + std::to_string(q->i64(0)), outside(q->i64(0)));
+  if (auto q = first("SELECT item, col FROM item_tags WHERE item < 0 OR item >= ?1 OR "
+                     "col NOT IN (SELECT col FROM tag_columns) LIMIT 1");
+      q->step())
+    throw damaged("item_tags", "item " + std::to_string(q->i64(0)) + ", column " + std::to_string(q->i64(1)),
+                  q->i64(0) < 0 || q->i64(0) >= items ? outside(q->i64(0)) : "no such tag column");
+  if (auto q = first("SELECT judgment, anchor, nearer, farther FROM judgments WHERE anchor < 0 OR anchor >= ?1 OR "
+                     "nearer < 0 OR nearer >= ?1 OR farther < 0 OR farther >= ?1 OR anchor = nearer OR "
+                     "anchor = farther OR nearer = farther LIMIT 1");
+      q->step()) {
+    std::string what = "names the same item twice";
+    for (int k = 1; k <= 3; ++k)
+      if (q->i64(k) < 0 || q->i64(k) >= items) what = outside(q->i64(k));
+    throw damaged("judgments", "judgment " + std::to_string(q->i64(0)), what);
+  }
+  if (auto q = first("SELECT item FROM pins WHERE item < 0 OR item >= ?1 LIMIT 1"); q->step())
+    throw damaged("pins", "the pin of item " + std::to_string(q->i64(0)), outside(q->i64(0)));
+  if (auto q = first("SELECT checkpoint, items, dims, length(positions) FROM checkpoints WHERE items != ?1 OR "
+                     "dims < 1 OR dims > 3 OR length(positions) != items * dims * 8 LIMIT 1");
+      q->step())
+    throw damaged("checkpoints", "checkpoint " + std::to_string(q->i64(0)),
+                  "a map of " + std::to_string(q->i64(1)) + " items x " + std::to_string(q->i64(2)) +
+                      " dimensions in " + std::to_string(q->i64(3)) + " bytes, for " + range);
 }
 
 // ==== [SECTION] locks ===========================================================================
@@ -272,6 +321,52 @@ void validate_collection(const std::string& path, const Collection& c) {
   std::set<std::string> seen;
   for (const auto& id : c.ids)
     if (!seen.insert(id).second) bad("the id '" + id + "' appears twice");
+}
+
+std::string creating_name(const fs::path& target, unsigned long n) {
+  return (target.parent_path() /
+          ("." + target.filename().string() + ".creating-" + std::to_string(::getpid()) + "-" + std::to_string(n)))
+      .string();
+}
+
+size_t remove_stale_creations(const fs::path& target) {
+  const std::string prefix = "." + target.filename().string() + ".creating-";
+  std::error_code ec;
+  std::vector<fs::path> stale;
+  for (const auto& e : fs::directory_iterator(target.parent_path(), ec)) {
+    const std::string name = e.path().filename().string();
+    if (name.rfind(prefix, 0) != 0) continue;
+    // PID-N, then nothing or -wal, -shm, -journal.
+    const std::string rest = name.substr(prefix.size());
+    char* end = nullptr;
+    const long pid = std::strtol(rest.c_str(), &end, 10);
+    if (pid <= 0 || *end != '-' || !std::isdigit(static_cast<unsigned char>(end[1]))) continue;
+    const char* tail = end + 1;
+    while (std::isdigit(static_cast<unsigned char>(*tail))) ++tail;
+    const std::string suffix = tail;
+    if (!suffix.empty() && suffix != "-wal" && suffix != "-shm" && suffix != "-journal") continue;
+    if (::kill(pid_t(pid), 0) == 0 || errno != ESRCH) continue;  // its process lives (or is not ours to ask)
+    if (suffix.empty()) {
+      const int fd = ::open(e.path().c_str(), O_RDONLY | O_CLOEXEC | O_NOFOLLOW | O_NONBLOCK);
+      if (fd >= 0) {
+        const bool held = ::flock(fd, LOCK_EX | LOCK_NB) != 0;
+        ::close(fd);
+        if (held) continue;
+      }
+    }
+    stale.push_back(e.path());
+  }
+  size_t removed = 0;
+  for (const fs::path& p : stale) removed += fs::remove(p, ec) ? 1 : 0;
+  return removed;
+}
+
+std::vector<std::string> log_files_beside(const std::string& path) {
+  std::vector<std::string> found;
+  std::error_code ec;
+  for (const char* suffix : {"-wal", "-shm"})
+    if (fs::exists(fs::symlink_status(path + suffix, ec))) found.push_back(path + suffix);
+  return found;
 }
 
 void fsync_dir(const fs::path& dir) {

@@ -109,6 +109,9 @@ uint32_t be32(const unsigned char* p);
 bool file_nonempty(const std::string& p);
 HeaderFacts check_header(int fd, const std::string& path);
 SessionInfo check_with_sqlite(const std::string& path, bool wal_present);
+// Every stored item index (item_tags, judgments, pins, checkpoints) against the items table;
+// throws SessionError (kCorrupt) naming the table and row. Part of check_with_sqlite.
+void check_item_indices(Db& d, const std::string& path, int schema_version);
 // Whether this process has the file open already (a second open would break POSIX locks).
 bool is_open_here(FileKey key);
 bool register_open(FileKey key);
@@ -120,5 +123,15 @@ std::string iso_time(double t);
 void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings);
 void validate_collection(const std::string& path, const Collection& c);
 void fsync_dir(const fs::path& dir);
+
+// The temporary name a create builds TARGET under: ".NAME.creating-PID-N" in the same folder.
+std::string creating_name(const fs::path& target, unsigned long n);
+// Leftovers of a create that was killed (a `kith new` stopped by SIGKILL or a power cut): every
+// ".NAME.creating-PID-N" beside TARGET, with its -wal, -shm and -journal, whose process is gone
+// and whose lock nobody holds (a create holds flock on its temporary throughout). Removes them;
+// returns how many files went.
+size_t remove_stale_creations(const fs::path& target);
+// The write-ahead log and shared-memory index beside PATH ("PATH-wal", "PATH-shm") that exist.
+std::vector<std::string> log_files_beside(const std::string& path);
 
 }  // namespace kith::session_file

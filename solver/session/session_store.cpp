@@ -2,13 +2,12 @@
 // (SQLite helpers), session_file.* (schema, checks, locks), session_store_impl.h (the open file's
 // state), session_store_data.cpp (reads and writes).
 #include "solver/session/session_store.h"
-#include "solver/session/session_store_impl.h"
 
 #include <fcntl.h>
 #include <sqlite3.h>
 #include <sys/file.h>
-#include <sys/sysmacros.h>
 #include <sys/stat.h>
+#include <sys/sysmacros.h>
 #include <unistd.h>
 
 #include <atomic>
@@ -25,6 +24,9 @@
 #include <set>
 #include <sstream>
 #include <thread>
+
+#include "solver/io/safe_file.h"
+#include "solver/session/session_store_impl.h"
 
 namespace kith {
 
@@ -47,6 +49,16 @@ const char* to_string(SessionError::Kind kind) {
   return "unknown";
 }
 
+namespace {
+
+// A FIFO, a device or a folder is refused before anything opens it (opening a FIFO would wait for
+// a writer forever, and /dev/zero never ends).
+void refuse_unless_regular(const std::string& path, const struct stat& st) {
+  if (!S_ISREG(st.st_mode)) throw SessionError(Kind::kNotSession, path + ": not a regular file, so not a kith session");
+}
+
+}  // namespace
+
 // ==== [SECTION] create / open / inspect =========================================================
 
 SessionStore::SessionStore(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
@@ -56,6 +68,7 @@ SessionInfo SessionStore::inspect(const std::string& path) {
   struct stat st {};
   if (::stat(path.c_str(), &st) != 0)
     throw SessionError(errno == ENOENT ? Kind::kNotFound : Kind::kIo, path + ": " + std::strerror(errno));
+  refuse_unless_regular(path, st);
   const FileKey key{st.st_dev, st.st_ino};
   if (is_open_here(key)) throw SessionError(Kind::kInUse, in_use_message(path, key, true));
   const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
@@ -81,6 +94,7 @@ std::unique_ptr<SessionStore> SessionStore::open(const std::string& path, const 
   if (::stat(path.c_str(), &st) != 0)
     throw SessionError(errno == ENOENT ? Kind::kNotFound : Kind::kIo,
                        path + ": " + (errno == ENOENT ? std::string("no such session file") : std::strerror(errno)));
+  refuse_unless_regular(path, st);
   auto impl = std::make_unique<Impl>();
   impl->path = path;
   impl->read_only = options.read_only;
@@ -141,34 +155,60 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
     throw SessionError(Kind::kInvalid, path + ": cannot create: " + error);
   validate_collection(path, collection);
   std::error_code ec;
+  const fs::path target = fs::absolute(path);
+  remove_stale_creations(target);  // what a killed create left beside the target
   const bool exists = fs::exists(fs::symlink_status(path, ec));
   if (exists && !options.overwrite)
     throw SessionError(Kind::kExists, path + ": already exists; kith will not overwrite it (use --force to replace "
                                              "it, or choose another name)");
+  // A session's write-ahead log (-wal) and its index (-shm) left beside the target by a writer
+  // that was killed would be read as part of the new file: its frames would come back. They go
+  // with the file they belong to, only with --force, and only while nobody holds that file.
+  const std::vector<std::string> logs = log_files_beside(path);
+  if (!logs.empty() && !options.overwrite)
+    throw SessionError(Kind::kExists, path + ": " + logs.front() +
+                                          " is there, the log of an earlier session of that "
+                                          "name; a new session would take its changes in. Use --force to remove "
+                                          "it, or choose another name");
+  // Never replace a session another process is writing: its lock is held from here to the rename.
+  int held = -1;
+  auto release = [&] {
+    if (held >= 0) ::close(held);
+    held = -1;
+  };
   if (exists) {
-    // Never replace a session another process is writing.
     struct stat st {};
     if (::stat(path.c_str(), &st) == 0) {
       const FileKey key{st.st_dev, st.st_ino};
       if (is_open_here(key)) throw SessionError(Kind::kInUse, in_use_message(path, key, true));
-      const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
-      if (fd >= 0) {
-        const bool busy = ::flock(fd, LOCK_EX | LOCK_NB) != 0;
-        ::close(fd);
-        if (busy) throw SessionError(Kind::kInUse, in_use_message(path, key, false));
+      held = ::open(path.c_str(), O_RDONLY | O_CLOEXEC | O_NONBLOCK);  // a FIFO there must not hang
+      if (held >= 0 && ::flock(held, LOCK_EX | LOCK_NB) != 0) {
+        release();
+        throw SessionError(Kind::kInUse, in_use_message(path, key, false));
       }
     }
   }
-  const fs::path target = fs::absolute(path);
   std::random_device rd;
-  const std::string tmp = (target.parent_path() / ("." + target.filename().string() + ".creating-" +
-                                                   std::to_string(::getpid()) + "-" + std::to_string(rd())))
-                              .string();
+  const std::string tmp = creating_name(target, rd());
   auto cleanup = [&] {
     fs::remove(tmp, ec);
     fs::remove(tmp + "-wal", ec);
     fs::remove(tmp + "-shm", ec);
     fs::remove(tmp + "-journal", ec);
+  };
+  // The temporary is made new (never a file or link planted there) and locked while it is built,
+  // so the next create can tell a live one from one left by a killed process.
+  const int tmp_fd = create_new_file(tmp);
+  if (tmp_fd < 0) {
+    const int err = errno;
+    release();
+    throw SessionError(Kind::kIo, path + ": cannot create: " + std::strerror(err));
+  }
+  ::flock(tmp_fd, LOCK_EX);
+  auto finish = [&] {
+    cleanup();
+    ::close(tmp_fd);
+    release();
   };
   try {
     // Everything goes into the temporary file in one transaction; the staging Impl is only used
@@ -198,6 +238,11 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
         ::close(fd);
       }
     }
+    if (exists || !logs.empty()) {
+      for (const std::string& log : log_files_beside(path))
+        if (::unlink(log.c_str()) != 0 && errno != ENOENT)
+          throw SessionError(Kind::kIo, path + ": cannot remove " + log + ": " + std::strerror(errno));
+    }
     if (exists) {
       if (::rename(tmp.c_str(), target.c_str()) != 0)
         throw SessionError(Kind::kIo, path + ": cannot replace: " + std::strerror(errno));
@@ -212,10 +257,10 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
     }
     fsync_dir(target.parent_path());
   } catch (...) {
-    cleanup();
+    finish();
     throw;
   }
-  cleanup();
+  finish();
   SessionOpenOptions o;
   o.checkpoints_to_keep = options.checkpoints_to_keep;
   return open(path, o);

@@ -141,7 +141,9 @@ int run_headless(const DemoData& d, DemoTrialOptions trial, uint64_t seed, const
   const std::string before = (fs::path(out_dir) / "demo-features-only.png").string();
   const std::string question = (fs::path(out_dir) / "demo-question.png").string();
   const std::string after = (fs::path(out_dir) / "demo-after-answers.png").string();
-  std::string problem = render_map_png(d.collection, r.features_only_map, ro, before);
+  SafeWriteOptions file;  // the demo's own three pictures are replaced on each run (never a session)
+  file.replace = true;
+  std::string problem = render_map_png(d.collection, r.features_only_map, ro, before, file);
   if (problem.empty() && r.first_question.anchor >= 0) {
     RenderOptions rq = ro;
     const Question& fq = r.first_question;
@@ -153,12 +155,12 @@ int run_headless(const DemoData& d, DemoTrialOptions trial, uint64_t seed, const
     else
       rq.title = "Which " + std::to_string(trial.grid_choose) + " of these " + std::to_string(fq.candidates.size()) +
                  " are most like " + d.collection.ids[size_t(fq.anchor)] + "?";
-    problem = render_map_png(d.collection, r.features_only_map, rq, question);
+    problem = render_map_png(d.collection, r.features_only_map, rq, question, file);
   }
   if (problem.empty()) {
     RenderOptions ra = ro;
     ra.judgments = r.judgments;
-    problem = render_map_png(d.collection, r.final_map, ra, after);
+    problem = render_map_png(d.collection, r.final_map, ra, after, file);
   }
   std::printf("\n%s\n", r.BriefReport().c_str());
   std::printf("the people's answers the final map honours: %.3f\n", r.answers_satisfied);

@@ -17,6 +17,7 @@
 #include "viewer/cli/commands.h"
 #include "viewer/cli/flags.h"
 #include "viewer/cli/map_source.h"
+#include "viewer/cli/shared_flags.h"
 
 namespace kith {
 namespace {
@@ -38,7 +39,7 @@ const char* const kFooter =
 
 const char* const kOptions =
     "  -o, --output FILE     the features CSV to write (required)\n"
-    "  --force               replace FILE if it exists\n"
+    "  --force               replace FILE if it exists (never a session, a folder or an input)\n"
     "  --background RRGGBB   colour behind transparent pixels (default: ffffff)\n"
     "  --working-size N      longest side, in pixels, pictures are reduced to (default: 96)\n"
     "  --raw                 write the unweighted numbers (no block weighting)\n"
@@ -71,15 +72,12 @@ int cmd_describe(const Args& args) {
     return flags.usage_error("--background expects a colour like ffffff, got '" + flags.text("--background") + "'");
   const std::vector<std::string>& inputs = flags.positional();
   const std::string output = flags.text("--output");
-  const bool force = flags.has("--force");
   if (inputs.empty()) return flags.usage_error("which pictures? give a folder, picture files or an items table");
   if (output.empty()) return flags.usage_error("where to? give -o features.csv");
   if (std::string error; !options.IsValid(&error)) return flags.usage_error(error);
   std::error_code ec;
-  if (fs::exists(output, ec) && !force) {
-    std::fprintf(stderr, "kith describe: %s already exists; pass --force to replace it\n", output.c_str());
-    return kExitUsage;
-  }
+  const SafeWriteOptions rule = output_rule(flags, inputs);
+  if (const int refused = refuse_output(flags, output, rule)) return refused;
 
   // Gather pictures; ids are paths relative to the folder given, without the extension, or the
   // items table's ids.
@@ -168,12 +166,8 @@ int cmd_describe(const Args& args) {
     }
     text += '\n';
   }
-  SafeWriteOptions write;
-  write.replace = force;
-  if (const std::string problem = write_file_safely(output, text, write); !problem.empty()) {
-    std::fprintf(stderr, "kith describe: %s\n", problem.c_str());
-    return kExitBadInput;
-  }
+  if (const std::string problem = write_file_safely(output, text, rule); !problem.empty())
+    return write_failed(flags, problem);
   std::printf("wrote %s: %zu pictures x %d features (%zu skipped)\n", output.c_str(), d.paths.size(),
               int(d.features.cols()), d.skipped.size());
   return kExitOk;

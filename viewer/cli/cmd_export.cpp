@@ -2,6 +2,7 @@
 // writes what a session holds in formats other tools read. The session is opened read-only (so
 // it may be open in a window meanwhile); each output is written to a temporary file and renamed,
 // and an existing session file is never overwritten by an export. Main thread only.
+#include <algorithm>
 #include <cstdio>
 #include <filesystem>
 
@@ -25,7 +26,9 @@ const char* const kUsage =
     "Writes what a session holds for use elsewhere. Several exports may be given at once. The\n"
     "session is only read (it may be open in a window at the same time).\n";
 
-const char* const kFooter = "exit codes: 0 written, 2 bad usage, 3 the session cannot be read or has no map yet\n";
+const char* const kFooter =
+    "exit codes: 0 written, 1 a write failed (disk full, ...), 2 bad usage (also an export file that\n"
+    "exists without --force, or a session there), 3 the session cannot be read or has no map yet\n";
 
 const char* const kOptions =
     "  --layout FILE         the map from the session's last checkpoint: id, x, y, z, the tag\n"
@@ -42,7 +45,11 @@ const char* const kOptions =
     "  --people RULE         in --judgments: names (default), codes (P1, P2, ... in order of first\n"
     "                        appearance) or leave-out (an empty person column)\n"
     "  --include-retracted   in --judgments: also withdrawn judgments (default: left out)\n"
-    "  --tag COLUMN          the tag column for suspect scores (default: the first tag column)\n";
+    "  --tag COLUMN          the tag column for suspect scores (default: the first tag column)\n"
+    "  --force               replace the export files if they exist (never a session or a folder)\n"
+    "  --raw-csv             CSV text fields exactly as they are: without it, a field that a\n"
+    "                        spreadsheet would run as a formula (starting with = + - @, tab or CR,\n"
+    "                        and not a number) is written with a leading apostrophe\n";
 
 }  // namespace
 
@@ -65,13 +72,15 @@ int cmd_export(const Args& args) {
   if (!flags.size("--size", &picture.width, &picture.height) || !read_map_flags(flags, &typed))
     return flags.usage_error();
   if (const std::string problem = picture.IsValid(); !problem.empty()) return flags.usage_error("--size: " + problem);
+  const SafeWriteOptions rule = output_rule(flags, {path});
+  std::vector<std::string> outputs;
   for (const char* option : {"--layout", "--judgments", "--picture", "--flat"}) {
     if (!flags.has(option)) continue;
-    const std::string problem = check_export_target(flags.text(option), path);
-    if (!problem.empty()) {
-      std::fprintf(stderr, "kith export: %s\n", problem.c_str());
-      return kExitBadInput;
-    }
+    if (std::find(outputs.begin(), outputs.end(), flags.text(option)) != outputs.end())
+      return flags.usage_error(std::string(option) + ": " + flags.text(option) + " is named by another export too");
+    outputs.push_back(flags.text(option));
+    if (flags.text(option).empty()) return flags.usage_error(std::string(option) + ": give a file name to write");
+    if (const int refused = refuse_output(flags, flags.text(option), rule)) return refused;
   }
   const std::string tag = flags.text("--tag");
 
@@ -95,14 +104,12 @@ int cmd_export(const Args& args) {
                    path.c_str(), path.c_str());
       return kExitBadInput;
     }
-    auto report = [](const char* what, const std::string& problem) {
-      std::fprintf(stderr, "kith export: %s%s\n", what, problem.c_str());
-      return kExitBadInput;
-    };
+    auto report = [&](const char* what, const std::string& problem) { return write_failed(flags, what + problem); };
 
     if (flags.has("--layout")) {
       const std::string out = flags.text("--layout");
-      const std::string problem = export_layout(c, checkpoint->positions, checkpoint->iteration, out, tag, path);
+      const std::string problem =
+          export_layout(c, checkpoint->positions, checkpoint->iteration, out, tag, rule, flags.has("--raw-csv"));
       if (!problem.empty()) return report("", problem);
       std::printf("%s: %zu items, map of iteration %llu\n", out.c_str(), c.size(),
                   static_cast<unsigned long long>(checkpoint->iteration));
@@ -110,10 +117,11 @@ int cmd_export(const Args& args) {
 
     if (flags.has("--picture")) {
       picture.pinned.assign(c.size(), 0);
-      for (const auto& pin : store->pins()) picture.pinned[size_t(pin.item)] = 1;
+      for (const auto& pin : store->pins())  // indices are checked on open; a guard all the same
+        if (pin.item >= 0 && size_t(pin.item) < c.size()) picture.pinned[size_t(pin.item)] = 1;
       picture.title = std::filesystem::path(path).filename().string();
       const std::string out = flags.text("--picture");
-      const std::string problem = render_map_png(c, checkpoint->positions, picture, out);
+      const std::string problem = render_map_png(c, checkpoint->positions, picture, out, rule);
       if (!problem.empty()) return report("--picture: ", problem);
       std::printf("%s: %dx%d picture of the map\n", out.c_str(), picture.width, picture.height);
     }
@@ -122,7 +130,8 @@ int cmd_export(const Args& args) {
       const std::vector<Judgment> judgments = store->judgments();
       const bool retracted_too = flags.has("--include-retracted");
       const std::string out = flags.text("--judgments");
-      const std::string problem = export_judgments(judgments, c, out, people, retracted_too, path);
+      const std::string problem =
+          export_judgments(judgments, c, out, people, retracted_too, rule, flags.has("--raw-csv"));
       if (!problem.empty()) return report("", problem);
       size_t written = 0;
       for (const Judgment& j : judgments) written += (retracted_too || !j.retracted) ? 1 : 0;
@@ -137,7 +146,8 @@ int cmd_export(const Args& args) {
       const std::string out = flags.text("--flat");
       double flat_agreement = 0.0;
       const std::string problem =
-          export_flat(c, checkpoint->positions, judgments, pinned, fo, out, tag, path, &flat_agreement);
+          export_flat(c, checkpoint->positions, judgments, pinned, fo, out, tag, rule, &flat_agreement,
+                      flags.has("--raw-csv"));
       if (!problem.empty()) return report("--flat: ", problem);
       size_t active = 0;
       for (const Judgment& j : judgments) active += j.retracted ? 0 : 1;

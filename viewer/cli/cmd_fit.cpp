@@ -35,12 +35,14 @@ const char* const kUsage =
     "goes to stderr; the health figures (KL, trustworthiness, neighbour recall) to stdout.\n";
 
 const char* const kFooter =
-    "exit codes: 0 written, 1 the optimization diverged (nothing written), 2 bad usage (or the\n"
-    "            output cannot be written), 3 bad input data\n";
+    "exit codes: 0 written, 1 the optimization diverged or the write failed (nothing written),\n"
+    "            2 bad usage (or an output kith may not write over), 3 bad input data\n";
 
 const char* const kOptions =
     "  -o, --output FILE     layout to write, .csv or .json (required)\n"
-    "  --force               replace FILE if it exists\n"
+    "  --force               replace FILE if it exists (never a session, a folder or an input)\n"
+    "  --raw-csv             CSV text fields exactly as they are (default: a field a spreadsheet\n"
+    "                        would run as a formula gets a leading apostrophe)\n"
     "  --exact               exact neighbours and exact O(N^2) forces (slow above a few thousand)\n"
     "  --standardize         scale every feature column to unit variance first\n"
     "  --threads N           threads, 0 = all (default: 0)\n"
@@ -104,7 +106,7 @@ int cmd_fit(const Args& args) {
   if (!read_map_flags(flags, &o) || !flags.integer("--threads", &o.threads, 0)) return flags.usage_error();
   o.exact = flags.has("--exact");
   o.standardize = flags.has("--standardize");
-  const bool force = flags.has("--force"), quiet = flags.has("--quiet");
+  const bool quiet = flags.has("--quiet");
   const bool skip_bad_judgments = flags.has("--skip-bad-judgments");
   const bool want_suspects = flags.has("--suspects"), want_groups = flags.has("--groups");
   const std::string output = flags.text("--output"), judgments_path = flags.text("--judgments");
@@ -117,10 +119,8 @@ int cmd_fit(const Args& args) {
   const std::string ext = lower_extension(output);
   if (ext != ".csv" && ext != ".json")
     return flags.usage_error("the output must end in .csv or .json, got '" + output + "'");
-  if (fs::exists(output) && !force) {
-    std::fprintf(stderr, "kith fit: %s exists; add --force to replace it\n", output.c_str());
-    return kExitUsage;
-  }
+  const SafeWriteOptions rule = output_rule(flags, {input, judgments_path});
+  if (const int refused = refuse_output(flags, output, rule)) return refused;
   const std::optional<Collection> loaded = load_or_report("fit", input);
   if (!loaded) return kExitBadInput;
   const Collection& c = *loaded;
@@ -186,6 +186,7 @@ int cmd_fit(const Args& args) {
   LayoutFormat format;  // kith fit's own names and numbering (layout_writer.h)
   format.suspect_column = "suspect";
   format.groups_from_one = true;
+  format.raw_csv = flags.has("--raw-csv");
   std::string findings_note;
   if (want_suspects || want_groups) {
     const std::vector<std::string>* tags = nullptr;
@@ -212,12 +213,8 @@ int cmd_fit(const Args& args) {
       findings_note += "groups: " + f.groups.summary() + "\n";
     }
   }
-  SafeWriteOptions replace;
-  replace.replace = force;
-  if (const std::string problem = write_layout(output, layout, format, replace); !problem.empty()) {
-    std::fprintf(stderr, "kith fit: %s\n", problem.c_str());
-    return kExitUsage;
-  }
+  if (const std::string problem = write_layout(output, layout, format, rule); !problem.empty())
+    return write_failed(flags, problem);
   std::printf("wrote %s (%zu items)\n", output.c_str(), c.size());
   std::printf("fit: %s; %s\n", r.summary.BriefReport().c_str(), r.features_note.c_str());
   std::printf("health: %s\n", h.BriefReport().c_str());

@@ -53,12 +53,13 @@ int cmd_new(const Args& args) {
     return flags.usage_error(flags.positional().empty() ? "which collection? give ITEMS" : "one ITEMS file only");
   const std::string out = flags.text("--output");
   if (out.empty()) return flags.usage_error("where to? give -o SESSION.kith");
+  for (const std::string& input : {flags.positional()[0], flags.text("--judgments")})
+    if (!input.empty() && same_file(out, input))
+      return flags.usage_error(out + ": that is the input (" + input + "); kith does not write over it");
 
   const std::optional<Collection> loaded = load_or_report("new", flags.positional()[0], load);
   if (!loaded) return kExitBadInput;
   const Collection& collection = *loaded;
-  for (size_t i = 0; i < collection.warnings.size() && i < 10; ++i)
-    std::fprintf(stderr, "kith new: warning: %s\n", collection.warnings[i].str().c_str());
   // The settings as the engine will take them, before anything is written.
   if (std::string why; !settings.IsValid(&why, collection.size())) return flags.usage_error(why);
 

@@ -37,7 +37,8 @@ const char* const kOptions =
 }  // namespace
 
 int cmd_render(const Args& args) {
-  FlagReader flags("render", kUsage, kOptions + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
+  FlagReader flags("render", kUsage,
+                   kOptions + force_flag("FILE") + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
                    "--generate N");  // a generated collection, for tests
   if (!flags.read(args)) return flags.stop();
   RenderOptions ro;
@@ -49,6 +50,7 @@ int cmd_render(const Args& args) {
       !flags.count("--generate", &generate, 2, 100000000) || !flags.list("--select", &select) ||
       !read_map_flags(flags, &eo))
     return flags.usage_error();
+  if (iterations == 0) eo.iterations = EngineOptions{}.iterations;  // "0 = the start": no engine runs
   if (const std::string problem = ro.IsValid(); !problem.empty()) return flags.usage_error(problem);
   if (flags.has("--camera")) {
     const std::string v = flags.text("--camera");
@@ -66,6 +68,8 @@ int cmd_render(const Args& args) {
   if (output.empty()) return flags.usage_error("where to? give -o map.png");
   if (positional.size() > 1)
     return flags.usage_error("one collection at a time, got " + std::to_string(positional.size()));
+  const SafeWriteOptions rule = output_rule(flags, positional);
+  if (const int refused = refuse_output(flags, output, rule)) return refused;
   int code = kExitOk;
   auto collection = load_items_or_report("render", positional.empty() ? "" : positional[0], generate, &code);
   if (!collection) return code;
@@ -98,10 +102,8 @@ int cmd_render(const Args& args) {
   } else {
     positions = rough_positions(*collection);
   }
-  if (std::string e = render_map_png(*collection, positions, ro, output); !e.empty()) {
-    std::fprintf(stderr, "kith render: %s\n", e.c_str());
-    return kExitInternal;
-  }
+  if (std::string e = render_map_png(*collection, positions, ro, output, rule); !e.empty())
+    return write_failed(flags, e);
   std::printf("wrote %s (%dx%d, %zu items)\n", output.c_str(), ro.width, ro.height, collection->size());
   return kExitOk;
 }

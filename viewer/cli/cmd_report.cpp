@@ -61,7 +61,8 @@ std::string fixed(double v, int digits) {
 }  // namespace
 
 int cmd_report(const Args& args) {
-  FlagReader flags("report", kUsage, kOptions + map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
+  FlagReader flags("report", kUsage,
+                   kOptions + force_flag("FILE") + map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
                    kFooter);
   if (!flags.read(args)) return flags.stop();
   FitOptions fit;
@@ -80,9 +81,8 @@ int cmd_report(const Args& args) {
   if (flags.positional().empty()) return flags.usage_error("which collection? (kith report ITEMS -o report.html)");
   if (output.empty()) return flags.usage_error("where to? (-o report.html)");
   const std::string input = flags.positional()[0];
-  std::error_code ec;
-  if (std::filesystem::exists(output, ec) && std::filesystem::equivalent(input, output, ec))
-    return flags.usage_error("the output '" + output + "' is the input; choose another file");
+  const SafeWriteOptions rule = output_rule(flags, {input});
+  if (const int refused = refuse_output(flags, output, rule)) return refused;
   const bool is_session = input.size() > 5 && input.compare(input.size() - 5, 5, ".kith") == 0;
 
   Collection items;
@@ -221,10 +221,8 @@ int cmd_report(const Args& args) {
     c.moved_by = moved_by;
   }
 
-  if (const std::string problem = write_file_safely(output, report_html(c)); !problem.empty()) {
-    std::fprintf(stderr, "kith report: %s\n", problem.c_str());
-    return kExitBadInput;
-  }
+  if (const std::string problem = write_file_safely(output, report_html(c), rule); !problem.empty())
+    return write_failed(flags, problem);
   std::printf("%s\n%s\n%s\nwrote %s\n", fitted.summary.BriefReport().c_str(), found.groups.summary().c_str(),
               found.have_suspects ? found.suspects.summary().c_str() : "no tag column, so no suspects",
               output.c_str());

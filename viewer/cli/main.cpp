@@ -37,7 +37,7 @@ void print_help(std::FILE* out) {
                "usage: kith COMMAND [options]     (kith COMMAND --help for each command's options)\n"
                "       kith ITEMS|SESSION         same as 'kith open'\n\ncommands:\n");
   for (const auto& s : kSubcommands) std::fprintf(out, "  %-44s %s\n", s.usage, s.summary);
-  std::fprintf(out, "\nexit codes: 0 success, 1 internal error, 2 bad usage, 3 bad input data\n");
+  std::fprintf(out, "\nexit codes: 0 success, 1 internal error or a failed write, 2 bad usage, 3 bad input data\n");
 }
 
 }  // namespace

@@ -10,7 +10,10 @@ namespace kith {
 std::optional<Collection> load_or_report(const std::string& command, const std::string& path,
                                          const LoadOptions& options) {
   try {
-    return load_collection(path, options);
+    Collection c = load_collection(path, options);
+    for (size_t i = 0; i < c.warnings.size() && i < 10 && !command.empty(); ++i)
+      std::fprintf(stderr, "kith %s: warning: %s\n", command.c_str(), c.warnings[i].str().c_str());
+    return c;
   } catch (const LoadError& e) {
     const std::string prefix = command.empty() ? "" : "kith " + command + ": ";
     std::fprintf(stderr, "%s%s\n", prefix.c_str(), e.problem().str().c_str());

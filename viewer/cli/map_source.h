@@ -13,7 +13,8 @@
 namespace kith {
 
 // Loads PATH. On a problem prints it to stderr, prefixed "kith COMMAND: " (nothing when COMMAND
-// is empty), and returns nothing: the exit code is then 3.
+// is empty), and returns nothing: the exit code is then 3. With a COMMAND, the collection's first
+// ten warnings go to stderr as "kith COMMAND: warning: ..." (kith check lists them itself).
 std::optional<Collection> load_or_report(const std::string& command, const std::string& path,
                                          const LoadOptions& options = {});
 

@@ -69,6 +69,32 @@ std::string load_flags() {
          "  --tags TAGS.csv       for a .npy file: a CSV with one row per array row holding ids and tags\n";
 }
 
+std::string force_flag(const std::string& what) {
+  return option_line("--force", "replace " + what + " if it exists (never a session, a folder or an input)");
+}
+
+SafeWriteOptions output_rule(const FlagReader& flags, const std::vector<std::string>& inputs) {
+  SafeWriteOptions rule;
+  rule.replace = flags.has("--force");
+  for (const std::string& input : inputs)
+    if (!input.empty()) rule.inputs.push_back(input);
+  return rule;
+}
+
+int refuse_output(const FlagReader& flags, const std::string& output, const SafeWriteOptions& rule) {
+  const std::string problem = check_write_target(output, rule);
+  if (problem.empty()) return kExitOk;
+  SafeWriteOptions forced = rule;
+  forced.replace = true;
+  const bool only_force_missing = check_write_target(output, forced).empty();
+  return flags.usage_error(problem + (only_force_missing ? "; give --force to replace it" : ""));
+}
+
+int write_failed(const FlagReader& flags, const std::string& problem) {
+  std::fprintf(stderr, "kith %s: %s\n", flags.command().c_str(), problem.c_str());
+  return kExitInternal;
+}
+
 bool read_load_flags(FlagReader& f, LoadOptions* o) {
   o->id_column = f.text("--id", o->id_column);
   o->picture_column = f.text("--pictures", o->picture_column);

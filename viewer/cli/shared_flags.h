@@ -2,7 +2,11 @@
 //   the map settings (--dims --perplexity --theta --dof --blend --learning-rate --seed
 //   --iterations), read into MapParameters (solver/base/map_parameters.h) and checked by its
 //   IsValid once the collection is loaded, before anything is written;
-//   how to read ITEMS (--id --exclude --pictures --tags), read into LoadOptions.
+//   how to read ITEMS (--id --exclude --pictures --tags), read into LoadOptions;
+//   the output rule (--force): every file a command writes goes through write_file_safely
+//   (solver/io/safe_file.h); an existing file is replaced only with --force, and never a session
+//   (any SQLite file), a folder or one of the command's own inputs. A refused output is a usage
+//   error (exit 2), checked before the command's work; a write that fails (disk full, I/O) exits 1.
 // Main thread only.
 #pragma once
 #include <string>
@@ -10,6 +14,7 @@
 
 #include "solver/base/map_parameters.h"
 #include "solver/io/collection.h"
+#include "solver/io/safe_file.h"
 #include "viewer/cli/flags.h"
 
 namespace kith {
@@ -28,5 +33,15 @@ bool read_map_flags(FlagReader& flags, MapParameters* settings);
 // --id, --exclude, --pictures, --tags (as `kith check` describes them).
 std::string load_flags();
 bool read_load_flags(FlagReader& flags, LoadOptions* options);
+
+// The --force option line; WHAT names the outputs it lets replace ("FILE", "the exports").
+std::string force_flag(const std::string& what);
+// The rule for this command's outputs: replace with --force, never one of INPUTS.
+SafeWriteOptions output_rule(const FlagReader& flags, const std::vector<std::string>& inputs);
+// 0 when OUTPUT may be written under RULE; else prints the usage message naming the path and why
+// (with "give --force to replace it" when only --force is missing) and returns 2.
+int refuse_output(const FlagReader& flags, const std::string& output, const SafeWriteOptions& rule);
+// A write that did not happen: prints "kith COMMAND: PROBLEM" and returns 1.
+int write_failed(const FlagReader& flags, const std::string& problem);
 
 }  // namespace kith

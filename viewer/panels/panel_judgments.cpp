@@ -218,7 +218,6 @@ size_t JudgmentsPanel::import_csv(const std::string& path, bool skip_bad_rows) {
 bool JudgmentsPanel::export_csv(const std::string& path, bool include_retracted, bool include_people, bool replace) {
   file_messages_.clear();
   namespace fs = std::filesystem;
-  std::error_code ec;
   if (path.empty()) {
     file_messages_.push_back("give the path of the CSV file to write");
     return false;
@@ -227,15 +226,21 @@ bool JudgmentsPanel::export_csv(const std::string& path, bool include_retracted,
     file_messages_.push_back(path + ": a judgments export is a CSV file; refusing to write over a session");
     return false;
   }
-  if (fs::exists(path, ec) && !replace) {
-    file_messages_.push_back(path + " exists: tick \"replace an existing file\" to write over it");
+  SafeWriteOptions file;  // the safe writer refuses a session (any SQLite file) whatever the name
+  file.replace = replace;
+  if (const std::string problem = check_write_target(path, file); !problem.empty()) {
+    SafeWriteOptions forced = file;
+    forced.replace = true;
+    file_messages_.push_back(problem + (check_write_target(path, forced).empty()
+                                            ? ": tick \"replace an existing file\" to write over it"
+                                            : ""));
     return false;
   }
   JudgmentWriteOptions options;
   options.include_retracted = include_retracted;
   options.include_people = include_people;
   const auto& all = view_.judgments();
-  const std::string e = write_judgments_csv(path, all, collection_.ids, options);
+  const std::string e = write_judgments_csv(path, all, collection_.ids, options, file);
   if (!e.empty()) {
     file_messages_.push_back(e);
     return false;

@@ -38,16 +38,9 @@ void analyse(const Collection& c, const Points& map, const std::string& tag_colu
 
 }  // namespace
 
-std::string check_export_target(const std::string& out, const std::string& session) {
-  std::error_code ec;
-  if (out.empty()) return "give a file name to write";
-  if (!session.empty() && std::filesystem::equivalent(out, session, ec)) return out + ": that is the session itself";
-  return check_write_target(out, /*replace=*/true);
-}
-
 std::string export_layout(const Collection& collection, const Points& map, uint64_t iteration, const std::string& out,
-                          const std::string& tag_column, const std::string& session) {
-  if (const std::string problem = check_export_target(out, session); !problem.empty()) return problem;
+                          const std::string& tag_column, const SafeWriteOptions& file, bool raw_csv) {
+  if (const std::string problem = check_write_target(out, file); !problem.empty()) return problem;
   if (size_t(map.rows()) != collection.size()) return "the map and the collection differ in size";
   Layout layout;
   layout.collection = &collection;
@@ -56,17 +49,21 @@ std::string export_layout(const Collection& collection, const Points& map, uint6
   analyse(collection, map, tag_column, &layout);
   if (layout.group.empty()) layout.group.assign(collection.size(), -1);
   if (layout.suspect.empty()) layout.suspect.assign(collection.size(), std::nan(""));
-  return write_layout(out, layout);
+  LayoutFormat format;
+  format.raw_csv = raw_csv;
+  return write_layout(out, layout, format, file);
 }
 
 std::string export_judgments(std::vector<Judgment> judgments, const Collection& collection, const std::string& out,
-                             PeopleInExport people, bool include_retracted, const std::string& session) {
-  if (const std::string problem = check_export_target(out, session); !problem.empty()) return problem;
+                             PeopleInExport people, bool include_retracted, const SafeWriteOptions& file,
+                             bool raw_csv) {
+  if (const std::string problem = check_write_target(out, file); !problem.empty()) return problem;
   apply_people_rule(&judgments, people);
   JudgmentWriteOptions w;
   w.include_retracted = include_retracted;
   w.include_people = people != PeopleInExport::kLeaveOut;
-  return write_judgments_csv(out, judgments, collection.ids, w);
+  w.raw_csv = raw_csv;
+  return write_judgments_csv(out, judgments, collection.ids, w, file);
 }
 
 FlatMapOptions flat_options(const SessionSettings& settings, size_t items) {
@@ -81,8 +78,9 @@ FlatMapOptions flat_options(const SessionSettings& settings, size_t items) {
 
 std::string export_flat(const Collection& collection, const Points& map, const std::vector<Judgment>& judgments,
                         const std::vector<int32_t>& pinned, const FlatMapOptions& options, const std::string& out,
-                        const std::string& tag_column, const std::string& session, double* agreement) {
-  if (const std::string problem = check_export_target(out, session); !problem.empty()) return problem;
+                        const std::string& tag_column, const SafeWriteOptions& file, double* agreement,
+                        bool raw_csv) {
+  if (const std::string problem = check_write_target(out, file); !problem.empty()) return problem;
   Points flat;
   try {
     flat = flatten_map(collection, map, judgments, pinned, options);
@@ -90,7 +88,7 @@ std::string export_flat(const Collection& collection, const Points& map, const s
     return std::string("the flat layout could not be made: ") + e.what();
   }
   if (agreement) *agreement = judgment_agreement(flat, judgments);
-  return export_layout(collection, flat, uint64_t(options.iterations), out, tag_column, session);
+  return export_layout(collection, flat, uint64_t(options.iterations), out, tag_column, file, raw_csv);
 }
 
 }  // namespace kith

@@ -22,6 +22,7 @@
 #include <nlohmann/json.hpp>
 
 #include "solver/asking/teach.h"
+#include "solver/io/safe_file.h"
 #include "viewer/panels/ui_style.h"
 #include "viewer/scene/exit_code.h"
 #include "viewer/window/app_state.h"
@@ -322,7 +323,13 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
                           {"live", feed.live()},
                           {"iterations", s ? s->iteration : 0},
                           {"iterations_per_second", s ? s->iterations_per_second : 0.0}};
-      std::ofstream(options.fps_report) << r.dump(1) << "\n";
+      SafeWriteOptions file;
+      file.replace = false;
+      const std::string name = fresh_name(options.fps_report);
+      if (const std::string e = write_file_safely(name, r.dump(1) + "\n", file); !e.empty())
+        std::fprintf(stderr, "kith open: %s\n", e.c_str());
+      else if (name != options.fps_report)
+        std::fprintf(stderr, "kith open: wrote %s (%s is already there)\n", name.c_str(), options.fps_report.c_str());
     }
   } catch (const std::exception& e) {
     std::fprintf(stderr, "kith open: %s\n", e.what());

@@ -23,9 +23,9 @@ std::string RenderOptions::IsValid() const {
   return view.IsValid();
 }
 
-std::string write_png(const std::string& path, const Picture& pic) {
+std::string write_png(const std::string& path, const Picture& pic, const SafeWriteOptions& file) {
   if (pic.width <= 0 || pic.height <= 0) return "nothing to write";
-  return write_png_file(path, pic.rgba.data(), pic.width, pic.height, 4);
+  return write_png_file(path, pic.rgba.data(), pic.width, pic.height, 4, file);
 }
 
 namespace {
@@ -164,10 +164,11 @@ std::string render_map_pixels(const Collection& collection, const Points& positi
 }
 
 std::string render_map_png(const Collection& collection, const Points& positions, const RenderOptions& options,
-                           const std::string& png_path) {
+                           const std::string& png_path, const SafeWriteOptions& file) {
+  if (std::string e = check_write_target(png_path, file); !e.empty()) return e;
   Picture pic;
   if (std::string e = render_map_pixels(collection, positions, options, &pic); !e.empty()) return e;
-  return write_png(png_path, pic);
+  return write_png(png_path, pic, file);
 }
 
 }  // namespace kith

@@ -7,9 +7,10 @@
 #include <string>
 #include <vector>
 
-#include "solver/io/collection.h"
 #include "solver/base/judgment.h"
 #include "solver/base/points.h"
+#include "solver/io/collection.h"
+#include "solver/io/safe_file.h"
 #include "viewer/scene/camera.h"
 #include "viewer/scene/map_view.h"
 
@@ -29,16 +30,17 @@ struct RenderOptions {
   std::string IsValid() const;        // "" when valid
 };
 
-// Draws `positions` (N x 2 or N x 3, collection order) and writes a PNG to `png_path`.
+// Draws `positions` (N x 2 or N x 3, collection order) and writes a PNG to `png_path` through
+// write_file_safely with `file` (checked before drawing too, so a refused path costs nothing).
 // Returns "" on success, else a message saying what went wrong (no EGL, no GL 3.3, cannot write).
 std::string render_map_png(const Collection& collection, const Points& positions, const RenderOptions& options,
-                           const std::string& png_path);
+                           const std::string& png_path, const SafeWriteOptions& file);
 
 // The same, returning the pixels instead of writing a file.
 std::string render_map_pixels(const Collection& collection, const Points& positions, const RenderOptions& options,
                               Picture* out);
 
-// Writes RGBA pixels as PNG; "" or a message.
-std::string write_png(const std::string& path, const Picture& picture);
+// Writes RGBA pixels as PNG through write_file_safely; "" or a message.
+std::string write_png(const std::string& path, const Picture& picture, const SafeWriteOptions& file);
 
 }  // namespace kith

@@ -125,6 +125,9 @@ std::string SessionMenu::run(Dialog d, const std::string& out, const std::string
   if (out.empty()) return "give a file name";
   const auto snap = feed_.latest();
   const Collection& c = link_.collection();
+  SafeWriteOptions file;  // exports: an existing file only when ticked, never the session
+  file.replace = replace_;
+  file.inputs = {link_.path()};
   switch (d) {
     case Dialog::kSaveAs: {
       const std::string m = link_.save_as(out);
@@ -153,7 +156,7 @@ std::string SessionMenu::run(Dialog d, const std::string& out, const std::string
     }
     case Dialog::kLayout: {
       if (!snap) return "no map yet";
-      const std::string m = export_layout(c, snap->positions, snap->iteration, out, "", link_.path());
+      const std::string m = export_layout(c, snap->positions, snap->iteration, out, "", file);
       if (m.empty()) done_ = "wrote " + out;
       return m;
     }
@@ -164,8 +167,7 @@ std::string SessionMenu::run(Dialog d, const std::string& out, const std::string
       for (size_t i = 0; i < snap->pinned.size(); ++i)
         if (snap->pinned[i]) pinned.push_back(int32_t(i));
       double agreement = 0.0;
-      const std::string m =
-          export_flat(c, snap->positions, link_.judgments(), pinned, fo, out, "", link_.path(), &agreement);
+      const std::string m = export_flat(c, snap->positions, link_.judgments(), pinned, fo, out, "", file, &agreement);
       if (m.empty()) done_ = "wrote " + out;
       return m;
     }
@@ -173,18 +175,16 @@ std::string SessionMenu::run(Dialog d, const std::string& out, const std::string
       static const PeopleInExport kRule[] = {PeopleInExport::kNames,
                                                           PeopleInExport::kCodes,
                                                           PeopleInExport::kLeaveOut};
-      const std::string m = export_judgments(link_.judgments(), c, out, kRule[people_rule_], false, link_.path());
+      const std::string m = export_judgments(link_.judgments(), c, out, kRule[people_rule_], false, file);
       if (m.empty()) done_ = "wrote " + out;
       return m;
     }
     case Dialog::kPicture: {
       if (!snap) return "no map yet";
-      const std::string problem = check_export_target(out, link_.path());
-      if (!problem.empty()) return problem;
       RenderOptions r;
       r.pinned = snap->pinned;
       r.title = fs::path(link_.path().empty() ? c.source : link_.path()).filename().string();
-      const std::string m = render_map_png(c, snap->positions, r, out);
+      const std::string m = render_map_png(c, snap->positions, r, out, file);
       if (m.empty()) done_ = "wrote " + out;
       return m;
     }
@@ -220,6 +220,8 @@ void SessionMenu::windows() {
     ImGui::SameLine();
     ImGui::RadioButton("leave people out", &people_rule_, 2);
   }
+  if (dialog_ != Dialog::kSaveAs && dialog_ != Dialog::kNew)
+    ImGui::Checkbox("replace an existing file (never a session)", &replace_);
   if (!message_.empty()) ImGui::TextColored(ImVec4(0.75f, 0.2f, 0.1f, 1.f), "%s", message_.c_str());
   if (ImGui::Button("OK") || ImGui::IsKeyPressed(ImGui::GetKeyIndex(ImGuiKey_Enter))) {
     message_ = run(dialog_, path_, items_);

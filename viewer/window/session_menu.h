@@ -38,6 +38,7 @@ class SessionMenu {
   char path_[1024] = "";
   char items_[1024] = "";
   int people_rule_ = 0;  // 0 names, 1 codes, 2 leave out
+  bool replace_ = false;  // exports: write over an existing file (never a session) (default: off)
   std::string message_, done_;
   std::vector<std::string> recent_;
 };

@@ -7,9 +7,9 @@
 
 #include <cstdio>
 #include <ctime>
-#include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "solver/io/safe_file.h"
 #include "viewer/window/app_state.h"
 #include "viewer/window/offscreen_render.h"
 
@@ -20,9 +20,16 @@ void App::save_picture(const std::string& path) {
   glfwGetFramebufferSize(window, &w, &h);
   glReadBuffer(GL_BACK);
   const Picture pic = renderer->read_pixels(w, h);
-  const std::string e = write_png(path, pic);
-  say(e.empty() ? "saved " + path : e);
+  // A picture never writes over a file: a name in use gives the next free "NAME-2.png", and says so.
+  const std::string name = fresh_name(path);
+  SafeWriteOptions file;
+  file.replace = false;
+  const std::string e = write_png(name, pic, file);
+  const std::string note = name == path ? "" : " (" + path + " is already there)";
+  say(e.empty() ? "saved " + name + note : e);
   if (!e.empty()) std::fprintf(stderr, "kith open: %s\n", e.c_str());
+  else if (!note.empty())
+    std::fprintf(stderr, "kith open: saved %s%s\n", name.c_str(), note.c_str());
 }
 
 void App::save_picture_now() {
@@ -117,9 +124,9 @@ void App::dump_state(const std::string& path) {
   j["notice"] = settings.notice_showing(seconds()) ? json(settings.notice()) : json(nullptr);
   j["bounds"] = {{view->bounds_lo().x, view->bounds_lo().y, view->bounds_lo().z},
                  {view->bounds_hi().x, view->bounds_hi().y, view->bounds_hi().z}};
-  std::ofstream out(path);
-  out << j.dump(1);
-  if (!out) std::fprintf(stderr, "kith open: cannot write %s\n", path.c_str());
+  // The script's own state file: each dump to the same name replaces the last (never a session).
+  if (const std::string e = write_file_safely(path, j.dump(1, ' ', false, json::error_handler_t::replace)); !e.empty())
+    std::fprintf(stderr, "kith open: %s\n", e.c_str());
 }
 
 void glfw_error(int code, const char* text) { std::fprintf(stderr, "kith: window system error %d: %s\n", code, text); }
