@@ -486,4 +486,25 @@ Collection load_collection(const std::string& path, const LoadOptions& options) 
   return load_collection_from_memory(read_file(path), path, options);
 }
 
+int default_tag_column(const Collection& collection) {
+  for (size_t t = 0; t < collection.tags.size(); ++t) {
+    std::unordered_set<std::string_view> distinct;
+    size_t tagged = 0;
+    for (const std::string& v : collection.tags[t].values)
+      if (!v.empty()) distinct.insert(v), ++tagged;
+    if (distinct.size() >= 2 && tagged >= 2 * distinct.size()) return int(t);
+  }
+  return -1;
+}
+
+const TagColumn* find_tag_column(const Collection& collection, const std::string& name) {
+  if (name.empty()) {
+    const int t = default_tag_column(collection);
+    return t >= 0 ? &collection.tags[size_t(t)] : nullptr;
+  }
+  for (const TagColumn& t : collection.tags)
+    if (t.name == name) return &t;
+  return nullptr;
+}
+
 }  // namespace kith

@@ -93,4 +93,13 @@ Collection load_collection(const std::string& path, const LoadOptions& options =
 // header line) and is the folder picture paths are relative to. options.tags_csv is read from disk.
 Collection load_collection_from_memory(std::string data, const std::string& name, const LoadOptions& options = {});
 
+// The tag column every command and the window use when none is named: the first (in the file's
+// order) whose values group items, that is with at least two distinct values and at least two
+// tagged items per distinct value on average. A column of (nearly) unique values, such as a
+// name, is a label, not a tag: it neither colours the map nor scores suspects by default.
+// -1 when no column groups.
+int default_tag_column(const Collection& collection);
+// The tag column named NAME, or the default one when NAME is empty; null when there is none.
+const TagColumn* find_tag_column(const Collection& collection, const std::string& name);
+
 }  // namespace kith

@@ -45,7 +45,7 @@ const char* const kOptions =
     "  --people RULE         in --judgments: names (default), codes (P1, P2, ... in order of first\n"
     "                        appearance) or leave-out (an empty person column)\n"
     "  --include-retracted   in --judgments: also withdrawn judgments (default: left out)\n"
-    "  --tag COLUMN          the tag column for suspect scores (default: the first tag column)\n"
+    "  --tag COLUMN          the tag column for suspect scores (default: the first that groups items)\n"
     "  --force               replace the export files if they exist (never a session or a folder)\n"
     "  --raw-csv             CSV text fields exactly as they are: without it, a field that a\n"
     "                        spreadsheet would run as a formula (starting with = + - @, tab or CR,\n"

@@ -53,7 +53,7 @@ const char* const kOptions =
     "  --suspects            add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
     "                        neighbours, in the features and the map, tagged otherwise; see README)\n"
     "  --groups              add each item's group in the map (DBSCAN, automatic radius; 0 = none)\n"
-    "  --tag COLUMN          the tag column suspects are judged by (default: the first)\n";
+    "  --tag COLUMN          the tag column suspects are judged by (default: the first that groups items)\n";
 
 std::string lower_extension(const std::string& path) {
   std::string ext = fs::path(path).extension().string();
@@ -189,9 +189,8 @@ int cmd_fit(const Args& args) {
   format.raw_csv = flags.has("--raw-csv");
   std::string findings_note;
   if (want_suspects || want_groups) {
-    const std::vector<std::string>* tags = nullptr;
-    for (const auto& t : c.tags)
-      if (suspect_tag.empty() ? tags == nullptr : t.name == suspect_tag) tags = &t.values;
+    const TagColumn* found = find_tag_column(c, suspect_tag);
+    const std::vector<std::string>* tags = found ? &found->values : nullptr;
     if (!suspect_tag.empty() && !tags) {
       std::fprintf(stderr, "kith fit: --tag: %s has no tag column '%s'; nothing written\n", input.c_str(),
                    suspect_tag.c_str());

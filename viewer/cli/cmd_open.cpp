@@ -30,7 +30,7 @@ const char* const kOptions =
     "  --size WxH            window size (default: 1280x800)\n"
     "  --paused              start with the optimization paused\n"
     "  --colour, --color COLUMN\n"
-    "                        colour by this tag column, or 'plain' (default: the first)\n"
+    "                        colour by this tag column, or 'plain' (default: the first that groups)\n"
     "  --dark                the night ground instead of paper\n"
     "  --turn                start with the slow turn on (for a shared screen)\n"
     "  --no-panels           start with the panels hidden (Tab shows them)\n"

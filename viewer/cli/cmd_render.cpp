@@ -27,7 +27,7 @@ const char* const kOptions =
     "                        (default: the whole map from a three-quarter view; without X,Y,Z\n"
     "                        the camera looks at the map's centre)\n"
     "  --colour, --color COLUMN\n"
-    "                        colour by this tag column, or 'plain' (default: the first tag column)\n"
+    "                        colour by this tag column, or 'plain' (default: the first that groups)\n"
     "  --iterations N        optimization steps before drawing, 0 = the start (default: 1000)\n"
     "  --select ID,ID,...    draw these items selected, with their picture cards\n"
     "  --dark                the night ground instead of paper\n"

@@ -44,7 +44,7 @@ const char* const kFooter = "exit codes: 0 written, 2 bad usage, 3 a problem in 
 
 const char* const kOptions =
     "  -o, --output FILE     the HTML file to write (required; never the input)\n"
-    "  --tag COLUMN          the tag column for suspects and group purity (default: the first)\n"
+    "  --tag COLUMN          the tag column for suspects and group purity (default: the first that groups)\n"
     "  --space features|map|both\n"
     "                        where suspects' neighbours come from (default: both)\n"
     "  --k N                 neighbours looked at per suspect (default: 10)\n"
@@ -129,13 +129,9 @@ int cmd_report(const Args& args) {
                  long(saved->positions.cols()), items.size());
     saved.reset();
   }
-  const std::vector<std::string>* tags = nullptr;
-  std::string tag_name;
-  for (const TagColumn& t : items.tags)
-    if (tag_column.empty() ? tags == nullptr : t.name == tag_column) {
-      tags = &t.values;
-      tag_name = t.name;
-    }
+  const TagColumn* tag = find_tag_column(items, tag_column);
+  const std::vector<std::string>* tags = tag ? &tag->values : nullptr;
+  const std::string tag_name = tag ? tag->name : "";
   if (!tag_column.empty() && !tags) {
     std::string names;
     for (const TagColumn& t : items.tags) names += (names.empty() ? "" : ", ") + t.name;

@@ -41,25 +41,11 @@ MapView::MapView(const Collection& collection, Renderer& renderer) : collection_
   judgment_count_.assign(collection.size(), 0);
   slot_item_.assign(Renderer::kAtlasSlots, -1);
   slot_used_.assign(Renderer::kAtlasSlots, -1);
-  if (collection.tags.empty()) options_.colour_by.kind = ColourKind::kPlain;
-  else options_.colour_by.tag_column = default_colour_column(collection);
+  options_.colour_by.tag_column = default_colour_column(collection);
+  if (options_.colour_by.tag_column < 0) options_.colour_by.kind = ColourKind::kPlain;
 }
 
-int default_colour_column(const Collection& collection) {
-  int best = -1, best_distinct = 0;
-  int fallback = -1;
-  double fallback_repeat = -1.0;
-  for (size_t t = 0; t < collection.tags.size(); ++t) {
-    std::unordered_map<std::string, int> distinct;
-    for (const auto& v : collection.tags[t].values)
-      if (!v.empty()) ++distinct[v];
-    const int d = int(distinct.size());
-    if (d >= 2 && d <= 12 && (best < 0 || d < best_distinct)) best = int(t), best_distinct = d;
-    const double repeat = d > 0 ? double(collection.size()) / d : 0.0;
-    if (repeat > fallback_repeat) fallback = int(t), fallback_repeat = repeat;
-  }
-  return best >= 0 ? best : fallback;
-}
+int default_colour_column(const Collection& collection) { return default_tag_column(collection); }
 
 void MapView::set_options(const ViewOptions& o) {
   const bool colours = o.colour_by.kind != options_.colour_by.kind ||

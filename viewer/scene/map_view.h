@@ -31,9 +31,8 @@ struct ColourBy {
   int tag_column = -1;                 // -1: the column default_colour_column() picks (default: -1)
 };
 
-// The tag column that colours best by default: the one with the fewest distinct values among those
-// with 2 to 12 (a palette's worth); else the one whose values repeat most; -1 with no tag column.
-// A column of unique names colours nothing useful, so it is never the default when another exists.
+// The tag column the map is coloured by when none is chosen: default_tag_column()
+// (solver/io/collection.h), the same one every command uses; -1 when no column groups.
 int default_colour_column(const Collection& collection);
 
 struct ViewOptions {

@@ -23,9 +23,7 @@ void analyse(const Collection& c, const Points& map, const std::string& tag_colu
   } catch (const std::exception& e) {
     std::fprintf(stderr, "kith export: no groups (%s)\n", e.what());
   }
-  const TagColumn* tags = nullptr;
-  for (const auto& t : c.tags)
-    if (tag_column.empty() ? !tags : t.name == tag_column) tags = &t;
+  const TagColumn* tags = find_tag_column(c, tag_column);
   if (!tags) return;
   try {
     SuspectOptions o;
