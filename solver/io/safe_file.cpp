@@ -73,15 +73,6 @@ bool write_all(int fd, const std::string& bytes, int* err) {
   return true;
 }
 
-// Best effort: the rename is done and the new file complete; a folder that cannot be synced only
-// means the rename might not survive a power cut.
-void fsync_folder(const std::string& folder) {
-  const int fd = ::open(folder.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-  if (fd < 0) return;
-  ::fsync(fd);
-  ::close(fd);
-}
-
 // Moves TMP to PATH; without `replace`, only if PATH does not exist (atomically where the file
 // system can: renameat2's RENAME_NOREPLACE, else a hard link).
 int move_into_place(const std::string& tmp, const std::string& path, bool replace) {
@@ -203,6 +194,35 @@ std::string write_file_safely(const std::string& path, const std::string& bytes,
   split_path(path, &folder, &name);
   fsync_folder(folder);
   return "";
+}
+
+// Best effort: the rename is done and the new file complete; a folder that cannot be synced only
+// means the rename might not survive a power cut.
+void fsync_folder(const std::string& folder) {
+  const int fd = ::open(folder.empty() ? "." : folder.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+  if (fd < 0) return;
+  ::fsync(fd);
+  ::close(fd);
+}
+
+int commit_temp_file(const std::string& tmp, const std::string& path, bool replace, std::string* error) {
+  const int fd = ::open(tmp.c_str(), O_RDONLY | O_CLOEXEC | O_NOFOLLOW);
+  if (fd < 0 || sync_file(fd) != 0) {
+    const int err = errno;
+    if (fd >= 0) ::close(fd);
+    *error = path + ": writing failed (" + cause(err) + ")";
+    return err;
+  }
+  ::close(fd);
+  if (const int e = move_into_place(tmp, path, replace); e != 0) {
+    *error = e == EEXIST ? path + ": a file is already there; kith does not write over it"
+                         : path + ": cannot replace (" + cause(e) + ")";
+    return e;
+  }
+  std::string folder, name;
+  split_path(path, &folder, &name);
+  fsync_folder(folder);
+  return 0;
 }
 
 }  // namespace kith

@@ -56,4 +56,16 @@ int create_temp_beside(const std::string& path, std::string* temp_path, std::str
 // Returns the descriptor or -1 with errno set.
 int create_new_file(const std::string& name);
 
+// The safe writer's last steps, for a file that another library built in place under a
+// temporary name made by create_new_file or create_temp_beside (a SQLite session, which SQLite
+// writes itself, so its bytes never pass through write_file_safely): fsyncs TMP, moves it to PATH
+// (over an existing file only when REPLACE; without it, refused atomically if PATH has appeared),
+// then fsyncs the folder. Returns 0, or an errno value (EEXIST: PATH was there) with *ERROR
+// naming PATH and the cause. On failure TMP stays for the caller to remove.
+int commit_temp_file(const std::string& tmp, const std::string& path, bool replace, std::string* error);
+
+// fsyncs FOLDER ("" = the current one), so a rename or link in it survives a power cut. Best
+// effort: a folder that cannot be synced is not an error.
+void fsync_folder(const std::string& folder);
+
 }  // namespace kith

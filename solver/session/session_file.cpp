@@ -369,12 +369,4 @@ std::vector<std::string> log_files_beside(const std::string& path) {
   return found;
 }
 
-void fsync_dir(const fs::path& dir) {
-  const int fd = ::open(dir.empty() ? "." : dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-  if (fd >= 0) {
-    ::fsync(fd);
-    ::close(fd);
-  }
-}
-
 }  // namespace kith::session_file

@@ -122,7 +122,6 @@ void write_settings(Db& d, const SessionSettings& s);
 std::string iso_time(double t);
 void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings);
 void validate_collection(const std::string& path, const Collection& c);
-void fsync_dir(const fs::path& dir);
 
 // The temporary name a create builds TARGET under: ".NAME.creating-PID-N" in the same folder.
 std::string creating_name(const fs::path& target, unsigned long n);

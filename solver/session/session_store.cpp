@@ -231,31 +231,16 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
     }
     exec(d, "PRAGMA wal_checkpoint(TRUNCATE)");
     d.close();  // last connection: the WAL is folded in and removed
-    {
-      const int fd = ::open(tmp.c_str(), O_RDONLY | O_CLOEXEC);
-      if (fd >= 0) {
-        ::fsync(fd);
-        ::close(fd);
-      }
-    }
     if (exists || !logs.empty()) {
       for (const std::string& log : log_files_beside(path))
         if (::unlink(log.c_str()) != 0 && errno != ENOENT)
           throw SessionError(Kind::kIo, path + ": cannot remove " + log + ": " + std::strerror(errno));
     }
-    if (exists) {
-      if (::rename(tmp.c_str(), target.c_str()) != 0)
-        throw SessionError(Kind::kIo, path + ": cannot replace: " + std::strerror(errno));
-    } else {
-      // link() fails if the name appeared meanwhile: never clobber.
-      if (::link(tmp.c_str(), target.c_str()) != 0) {
-        const int err = errno;
-        throw SessionError(err == EEXIST ? Kind::kExists : Kind::kIo,
-                           path + ": cannot create: " + std::strerror(err));
-      }
-      fs::remove(tmp, ec);
-    }
-    fsync_dir(target.parent_path());
+    // SQLite built the file in place, so it takes the safe writer's last steps (fsync, move into
+    // place, fsync of the folder) rather than write_file_safely; without `exists` the move is
+    // refused if the name appeared meanwhile: never clobber.
+    if (std::string error; const int e = commit_temp_file(tmp, target.string(), exists, &error))
+      throw SessionError(e == EEXIST ? Kind::kExists : Kind::kIo, error);
   } catch (...) {
     finish();
     throw;

@@ -237,14 +237,10 @@ void SessionStore::save_copy(const std::string& path) const {
       throw;
     }
   }
-  // link() refuses if the name appeared meanwhile: never clobber.
-  if (::link(tmp.c_str(), path.c_str()) != 0) {
-    const int err = errno;
-    fs::remove(tmp, ec);
-    throw SessionError(err == EEXIST ? Kind::kExists : Kind::kIo, path + ": cannot write the copy: " + std::strerror(err));
-  }
+  // Refused if the name appeared meanwhile: never clobber.
+  const int e = commit_temp_file(tmp, path, false, &error);
   fs::remove(tmp, ec);
-  fsync_dir(fs::absolute(path).parent_path());
+  if (e != 0) throw SessionError(e == EEXIST ? Kind::kExists : Kind::kIo, error);
 }
 
 std::vector<SessionPerson> SessionStore::people() const {

@@ -41,18 +41,16 @@ MapView::MapView(const Collection& collection, Renderer& renderer) : collection_
   judgment_count_.assign(collection.size(), 0);
   slot_item_.assign(Renderer::kAtlasSlots, -1);
   slot_used_.assign(Renderer::kAtlasSlots, -1);
-  options_.colour_by.tag_column = default_colour_column(collection);
+  options_.colour_by.tag_column = default_tag_column(collection);
   if (options_.colour_by.tag_column < 0) options_.colour_by.kind = ColourKind::kPlain;
 }
-
-int default_colour_column(const Collection& collection) { return default_tag_column(collection); }
 
 void MapView::set_options(const ViewOptions& o) {
   const bool colours = o.colour_by.kind != options_.colour_by.kind ||
                        o.colour_by.tag_column != options_.colour_by.tag_column || o.dark != options_.dark;
   options_ = o;
   if (options_.colour_by.kind == ColourKind::kTag && options_.colour_by.tag_column == -1)
-    options_.colour_by.tag_column = default_colour_column(collection_);
+    options_.colour_by.tag_column = default_tag_column(collection_);
   if (options_.colour_by.kind == ColourKind::kTag &&
       (options_.colour_by.tag_column < 0 || size_t(options_.colour_by.tag_column) >= collection_.tags.size()))
     options_.colour_by.kind = ColourKind::kPlain;

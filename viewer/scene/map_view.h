@@ -28,12 +28,8 @@ enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain, kMeasure, kGrou
 
 struct ColourBy {
   ColourKind kind = ColourKind::kTag;  // (default: a tag column, if any)
-  int tag_column = -1;                 // -1: the column default_colour_column() picks (default: -1)
+  int tag_column = -1;                 // -1: default_tag_column() (solver/io/collection.h) (default: -1)
 };
-
-// The tag column the map is coloured by when none is chosen: default_tag_column()
-// (solver/io/collection.h), the same one every command uses; -1 when no column groups.
-int default_colour_column(const Collection& collection);
 
 struct ViewOptions {
   float point_size = 0.f;      // disc diameter in pixels at the target distance; 0 = by item count (default: 0)
