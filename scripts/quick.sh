@@ -15,7 +15,8 @@ packages=(cmake g++ make pkg-config
   libhnswlib-dev libsqlite3-dev nlohmann-json3-dev
   libgl1-mesa-dri libegl-mesa0 libegl-dev libgl-dev
   xvfb xauth
-  python3-numpy python3-sklearn python3-skimage
+  libcairo2-dev poppler-utils librsvg2-bin
+  python3-numpy python3-sklearn python3-skimage python3-dask python3-distributed
   chromium)
 
 # One dpkg-query for all of them keeps the "everything is there" case fast.
