@@ -143,7 +143,7 @@ TEST_CASE("kith fit --suspects --groups adds the score and group columns") {
   REQUIRE(layout.size() == 120);
   // suspect and group are numeric columns of the layout.
   const auto& names = layout.feature_names;
-  const auto s = std::find(names.begin(), names.end(), "suspect"), g = std::find(names.begin(), names.end(), "group");
+  const auto s = std::find(names.begin(), names.end(), "suspect_score"), g = std::find(names.begin(), names.end(), "group");
   REQUIRE(s != names.end());
   REQUIRE(g != names.end());
   const Eigen::Index sc = s - names.begin(), gc = g - names.begin();

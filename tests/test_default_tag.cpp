@@ -41,7 +41,7 @@ TEST_CASE("default tag: kith fit --suspects on the tea blends scores by family, 
   std::istringstream csv(kith::test::file_bytes(out));
   std::string line;
   std::getline(csv, line);
-  REQUIRE(line.substr(line.rfind(',') + 1) == "suspect");
+  REQUIRE(line.substr(line.rfind(',') + 1) == "suspect_score");
   size_t rows = 0, all_differ = 0;
   while (std::getline(csv, line)) {
     ++rows;

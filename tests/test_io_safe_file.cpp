@@ -18,6 +18,7 @@
 
 #include "solver/io/judgment_io.h"
 #include "solver/io/layout_writer.h"
+#include "solver/io/npy_file.h"
 #include "solver/io/png_file.h"
 #include "solver/io/safe_file.h"
 #include "tests/approx.h"
@@ -211,7 +212,7 @@ TEST_CASE("safe file: PNG bytes are a PNG of the asked size, written whole") {
   CHECK(folder_listing(dir) == std::vector<std::string>{"p.png"});
 }
 
-TEST_CASE("layout writer: one CSV and JSON layout, with the two numberings fit and export still use") {
+TEST_CASE("layout writer: one layout format for fit and export, as CSV, JSON and .npy") {
   kith::Collection c;
   c.ids = {"oak", "ash, \"white\"", "elm"};
   c.tags = {{"wood", {"hard", "hard", "soft"}}};
@@ -224,16 +225,10 @@ TEST_CASE("layout writer: one CSV and JSON layout, with the two numberings fit a
         "id,x,y,z,wood\noak,1.5,2,3,hard\n\"ash, \"\"white\"\"\",-0.25,1e-07,0,hard\nelm,10,20,30,soft\n");
   layout.group = {1, -1, 0};
   layout.suspect = {0.25, std::nan(""), 1.0 / 3.0};
-  // export: groups from 0, none empty; its suspect column name.
+  // One format for fit and export: groups from 1 with 0 for none (so the column reads as
+  // numbers), an empty score for an untagged item.
   CHECK(kith::layout_csv(layout) ==
-        "id,x,y,z,wood,group,suspect_score\noak,1.5,2,3,hard,1,0.25\n"
-        "\"ash, \"\"white\"\"\",-0.25,1e-07,0,hard,,\nelm,10,20,30,soft,0,0.333333333\n");
-  // fit: groups from 1 with 0 for none (so the CSV loads as numbers), "suspect".
-  kith::LayoutFormat fit;
-  fit.suspect_column = "suspect";
-  fit.groups_from_one = true;
-  CHECK(kith::layout_csv(layout, fit) ==
-        "id,x,y,z,wood,group,suspect\noak,1.5,2,3,hard,2,0.25\n"
+        "id,x,y,z,wood,group,suspect_score\noak,1.5,2,3,hard,2,0.25\n"
         "\"ash, \"\"white\"\"\",-0.25,1e-07,0,hard,0,\nelm,10,20,30,soft,1,0.333333333\n");
 
   layout.header["iteration"] = 321;
@@ -243,14 +238,12 @@ TEST_CASE("layout writer: one CSV and JSON layout, with the two numberings fit a
   REQUIRE(doc["items"].size() == 3);
   CHECK(doc["items"][1]["id"] == "ash, \"white\"");
   CHECK(doc["items"][1]["y"].get<double>() == 1e-7);
-  CHECK(doc["items"][1]["group"].is_null());
+  CHECK(doc["items"][1]["group"] == 0);
   CHECK(doc["items"][1]["suspect_score"].is_null());
   CHECK(doc["items"][2]["tags"]["wood"] == "soft");
-  CHECK(doc["items"][2]["group"] == 0);
-  const auto fit_doc = nlohmann::json::parse(kith::layout_json(layout, fit));
-  CHECK(fit_doc["items"][1]["group"] == 0);
-  CHECK(fit_doc["items"][0]["group"] == 2);
-  CHECK(fit_doc["items"][0]["suspect"].get<double>() == 0.25);
+  CHECK(doc["items"][2]["group"] == 1);
+  CHECK(doc["items"][0]["group"] == 2);
+  CHECK(doc["items"][0]["suspect_score"].get<double>() == 0.25);
 
   // 2-D maps have no z; a map that does not match the items is refused and writes nothing.
   const std::string dir = kith::test::temp_dir("layout-writer");
@@ -263,5 +256,20 @@ TEST_CASE("layout writer: one CSV and JSON layout, with the two numberings fit a
   kith::Points short_map = map.topRows(2);
   layout.map = &short_map;
   CHECK(kith::write_layout(dir + "/bad.csv", layout).find("differ in size") != std::string::npos);
-  CHECK(folder_listing(dir) == std::vector<std::string>{"flat.JSON", "flat.csv"});
+  // .npy: the positions as NumPy writes them, the rest beside them in STEM.ids.csv.
+  layout.map = &flat;
+  REQUIRE(kith::write_layout(dir + "/flat.npy", layout) == "");
+  CHECK(file_bytes(dir + "/flat.ids.csv").rfind("id,wood,group,suspect_score\noak,hard,2,0.25\n", 0) == 0);
+  const std::string npy = file_bytes(dir + "/flat.npy");
+  CHECK(npy.size() % 64 == 48);  // the header to a 64-byte boundary, then 3 x 2 doubles (48 bytes)
+  CHECK(kith::parse_npy(npy, "flat.npy") == flat);
+  // Both files are checked before either is written: without replace, an existing sidecar alone
+  // stops the write, and the new .npy does not appear.
+  kith::SafeWriteOptions keep;
+  keep.replace = false;
+  write_bytes(dir + "/other.ids.csv", "mine\n");
+  CHECK(kith::write_layout(dir + "/other.npy", layout, {}, keep).find("other.ids.csv") != std::string::npos);
+  CHECK(file_bytes(dir + "/other.ids.csv") == "mine\n");
+  std::filesystem::remove(dir + "/other.ids.csv");
+  CHECK(folder_listing(dir) == std::vector<std::string>{"flat.JSON", "flat.csv", "flat.ids.csv", "flat.npy"});
 }

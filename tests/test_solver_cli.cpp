@@ -46,7 +46,7 @@ TEST_CASE("solver cli: kith fit writes a CSV and a JSON layout with ids and tags
   const std::string items = items_csv(dir, 90);
   std::string err;
   REQUIRE(run(items + " -o " + dir + "/map.csv --iterations 300 --perplexity 10", &err, dir) == 0);
-  CHECK(err.find("iteration 300/300") != std::string::npos);
+  CHECK(err.find("step 300 of 300") != std::string::npos);
   std::ifstream in(dir + "/map.csv");
   std::string header, line;
   std::getline(in, header);

@@ -242,8 +242,12 @@ TEST_CASE("viewer window: a pin on a plain collection starts a session beside it
   }
   const std::string first = kith::test::file_bytes(dir + "/teas.kith");
 
-  // A second sitting on the same collection starts teas-2.kith; teas.kith is not touched.
-  REQUIRE(run(cmd) == 0);
+  // A second sitting with --fresh starts teas-2.kith and does not touch teas.kith (without it the
+  // session is continued: tests/test_one_path.cpp).
+  const std::string fresh = std::string(kXvfb) + KITH_BINARY + " open " + dir +
+                            "/teas.csv --fresh --frames 200 --script " + dir + "/script.txt > " + dir +
+                            "/log-fresh.txt 2>&1";
+  REQUIRE(run(fresh) == 0);
   CHECK(std::filesystem::exists(dir + "/teas-2.kith"));
   CHECK(kith::test::file_bytes(dir + "/teas.kith") == first);
 

@@ -507,4 +507,59 @@ const TagColumn* find_tag_column(const Collection& collection, const std::string
   return nullptr;
 }
 
+namespace {
+
+// FNV-1a, 64 bits (offset basis and prime as published by Fowler, Noll and Vo).
+struct Fnv1a {
+  uint64_t h = 14695981039346656037ull;
+  void bytes(const void* data, size_t n) {
+    const auto* p = static_cast<const unsigned char*>(data);
+    for (size_t i = 0; i < n; ++i) h = (h ^ p[i]) * 1099511628211ull;
+  }
+  void text(const std::string& s) {  // length first, so "ab","c" differs from "a","bc"
+    const uint64_t n = s.size();
+    bytes(&n, sizeof n);
+    bytes(s.data(), s.size());
+  }
+};
+
+}  // namespace
+
+std::string content_hash(const Collection& c) {
+  Fnv1a f;
+  const uint64_t n = c.size(), cols = uint64_t(c.features.cols());
+  f.bytes(&n, sizeof n);
+  for (const std::string& id : c.ids) f.text(id);
+  f.bytes(&cols, sizeof cols);
+  for (const std::string& name : c.feature_names) f.text(name);
+  for (Eigen::Index i = 0; i < c.features.rows(); ++i)
+    for (Eigen::Index j = 0; j < c.features.cols(); ++j) {
+      const double v = c.features(i, j);
+      f.bytes(&v, sizeof v);
+    }
+  for (const TagColumn& t : c.tags) {
+    f.text(t.name);
+    for (const std::string& v : t.values) f.text(v);
+  }
+  f.text(c.picture_column);
+  for (const std::string& p : c.pictures) f.text(std::filesystem::path(p).filename().string());
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "fnv1a64:%016llx", static_cast<unsigned long long>(f.h));
+  return buf;
+}
+
+std::string reading_flags(const LoadOptions& o) {
+  std::string s;
+  auto add = [&](const char* flag, const std::string& value) {
+    if (!value.empty()) s += (s.empty() ? "" : " ") + std::string(flag) + " " + value;
+  };
+  add("--id", o.id_column);
+  std::string excluded;
+  for (const std::string& e : o.exclude) excluded += (excluded.empty() ? "" : ",") + e;
+  add("--exclude", excluded);
+  add("--pictures", o.picture_column);
+  add("--tags", o.tags_csv);
+  return s;
+}
+
 }  // namespace kith

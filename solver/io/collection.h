@@ -102,4 +102,14 @@ int default_tag_column(const Collection& collection);
 // The tag column named NAME, or the default one when NAME is empty; null when there is none.
 const TagColumn* find_tag_column(const Collection& collection, const std::string& name);
 
+// The content of a collection as a short text, "fnv1a64:" and 16 hex digits (FNV-1a, 64 bits):
+// its ids, feature names and values (bit for bit), tag columns and values, and the file names
+// (not the folders) of its pictures; not the file it was read from nor how it was written. Two
+// reads of the same data give the same text; a session keeps it so that opening the collection
+// again can tell its own session from one made from another file of the same name.
+std::string content_hash(const Collection& collection);
+// The reading options that differ from the defaults, as the flags that give them
+// ("--id name --exclude a,b"), "" for none: what a session keeps of how it was read.
+std::string reading_flags(const LoadOptions& options);
+
 }  // namespace kith

@@ -1,11 +1,15 @@
-// The one layout writer, for `kith fit -o`, `kith export --layout/--flat` and the window's
-// Session menu: where each item sits in the map, with its tags and, when computed, its group and
-// suspect score.
-//   CSV:  id,x,y[,z],<tag columns>[,group][,<suspect column>], one row per item; coordinates
-//         and scores as %.9g, fields through csv_field (text_fields.h).
+// The one layout format, for `kith fit -o`, `kith export --layout/--flat` and the window's Session
+// menu: where each item sits in the map, with its tags and, when computed, its group and suspect
+// score. Documented once, in the README ("Layout files").
+//   CSV:  id,x,y[,z],<tag columns>[,group][,suspect_score], one row per item; coordinates and
+//         scores as %.9g, fields through csv_field (text_fields.h). group: 1, 2, ... and 0 for an
+//         item in no group (so the column reads as numbers); suspect_score: 0..1, empty for an
+//         untagged item.
 //   JSON: {"dims": D, <header fields>, "items": [{"id", "x", "y"[, "z"], "tags": {...}[, "group"]
-//         [, <suspect column>]}, ...]}; a missing group or score is null (or 0, see LayoutFormat).
-// Written through write_file_safely (safe_file.h). Pure functions apart from the file; any thread.
+//         [, "suspect_score"]}, ...]}: the same numbering, null for no score.
+//   .npy: the positions alone, N x D float64 (NumPy's format, npy_file.h), and beside it
+//         STEM.ids.csv: the CSV above without the coordinates, one row per array row.
+// Written through write_file_safely (safe_file.h). Pure functions apart from the files; any thread.
 #pragma once
 #include <cstdint>
 #include <nlohmann/json.hpp>
@@ -26,13 +30,7 @@ struct Layout {
   nlohmann::ordered_json header = nlohmann::ordered_json::object();  // JSON: fields between dims and items
 };
 
-// Where `kith fit` and `kith export` still differ (both documented in the README); a later change
-// makes them one format.
 struct LayoutFormat {
-  std::string suspect_column = "suspect_score";  // kith fit: "suspect" (default: suspect_score)
-  // kith fit numbers groups 1, 2, ... with 0 for no group (so the CSV loads as all numbers);
-  // export numbers them 0, 1, ... with an empty field (JSON null) for no group. (default: false)
-  bool groups_from_one = false;
   // CSV: write text fields as they are, without the leading apostrophe that keeps a spreadsheet
   // from running one that looks like a formula (text_fields.h; --raw-csv). (default: false)
   bool raw_csv = false;
@@ -41,7 +39,13 @@ struct LayoutFormat {
 std::string layout_csv(const Layout& layout, const LayoutFormat& format = {});
 std::string layout_json(const Layout& layout, const LayoutFormat& format = {});
 
-// JSON when PATH ends in .json (any case), else CSV. Returns "" or a message naming the path.
+// Whether PATH names a layout kith writes: .csv, .json or .npy (any case).
+bool is_layout_name(const std::string& path);
+// The files a layout at PATH makes: PATH, and for .npy the sidecar STEM.ids.csv.
+std::vector<std::string> layout_files(const std::string& path);
+
+// JSON when PATH ends in .json, .npy (with its sidecar) when in .npy, else CSV. Returns "" or a
+// message naming the path. For .npy both files are checked before either is written.
 std::string write_layout(const std::string& path, const Layout& layout, const LayoutFormat& format = {},
                          const SafeWriteOptions& options = {});
 

@@ -246,4 +246,27 @@ Points parse_npy(std::string_view b, const std::string& source) {
   return out;
 }
 
+std::string npy_bytes(const Points& points) {
+  std::string header = "{'descr': '<f8', 'fortran_order': False, 'shape': (" + std::to_string(points.rows()) + ", " +
+                       std::to_string(points.cols()) + "), }";
+  const size_t preamble = 10;  // magic (6), version (2), header length (2)
+  header.append((64 - (preamble + header.size() + 1) % 64) % 64, ' ');
+  header += '\n';
+  std::string out = "\x93NUMPY";
+  out += '\x01';
+  out += '\x00';
+  out += char(header.size() & 0xff);
+  out += char((header.size() >> 8) & 0xff);
+  out += header;
+  const size_t start = out.size();
+  out.resize(start + size_t(points.size()) * sizeof(double));
+  char* data = out.data() + start;
+  for (Eigen::Index i = 0; i < points.rows(); ++i)  // C order, whatever the matrix's own storage
+    for (Eigen::Index j = 0; j < points.cols(); ++j, data += sizeof(double)) {
+      const double v = points(i, j);
+      std::memcpy(data, &v, sizeof v);  // little-endian machines only (as the reader)
+    }
+  return out;
+}
+
 }  // namespace kith

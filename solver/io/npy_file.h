@@ -23,4 +23,8 @@ bool looks_like_npy(std::string_view bytes);
 // Parses a whole .npy file held in memory; `source` names it in messages.
 Points parse_npy(std::string_view bytes, const std::string& source);
 
+// POINTS as a version 1.0 .npy file: little-endian float64 ('<f8'), C order, shape (N, D), the
+// header padded so the data starts on a 64-byte boundary (as NumPy writes it).
+std::string npy_bytes(const Points& points);
+
 }  // namespace kith

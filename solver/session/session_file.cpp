@@ -272,7 +272,8 @@ std::string iso_time(double t) {
 }
 
 // Inside the caller's transaction.
-void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings) {
+void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings,
+                                 const std::string& reading) {
   exec(d, kSchemaV1);
   exec(d, kEventsTable);
   {
@@ -283,6 +284,8 @@ void write_schema_and_collection(Db& d, const Collection& c, const SessionSettin
     m.bind(1, std::string("source")).bind(2, c.source).run();
     m.bind(1, std::string("picture_column")).bind(2, c.picture_column).run();
     m.bind(1, std::string("id_column")).bind(2, c.id_column).run();
+    m.bind(1, std::string("content")).bind(2, content_hash(c)).run();
+    m.bind(1, std::string("reading")).bind(2, reading).run();
   }
   write_settings(d, settings);
   {

@@ -120,7 +120,10 @@ long lock_holder(FileKey key);
 std::string in_use_message(const std::string& path, FileKey key, bool this_process);
 void write_settings(Db& d, const SessionSettings& s);
 std::string iso_time(double t);
-void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings);
+// The meta table also keeps the collection's content_hash (collection.h) as 'content' and the
+// reading options it was read with as 'reading' (reading_flags, "" for the defaults).
+void write_schema_and_collection(Db& d, const Collection& c, const SessionSettings& settings,
+                                 const std::string& reading = "");
 void validate_collection(const std::string& path, const Collection& c);
 
 // The temporary name a create builds TARGET under: ".NAME.creating-PID-N" in the same folder.

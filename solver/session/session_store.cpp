@@ -224,7 +224,7 @@ std::unique_ptr<SessionStore> SessionStore::create(const std::string& path, cons
     exec(d, "PRAGMA synchronous = FULL");
     {
       Transaction t(d);
-      write_schema_and_collection(d, collection, settings);
+      write_schema_and_collection(d, collection, settings, options.reading);
       staging.items = collection.size();
       for (const Judgment& j : options.judgments) staging.insert_judgment(j);
       t.commit();

@@ -106,6 +106,10 @@ struct SessionCreateOptions {
   bool overwrite = false;       // replace an existing file (atomically, by rename) (default: false)
   int checkpoints_to_keep = 3;  // (default: 3)
   std::vector<Judgment> judgments;  // written with the collection, in the same transaction (default: none)
+  // How the collection was read: the reading flags (reading_flags in collection.h), kept so that
+  // `kith check SESSION` can say so and a reading option given with the session can be refused
+  // with the reason. (default: "", the defaults)
+  std::string reading;
 };
 
 // What a check of a file found (SessionStore::inspect): nothing is changed.
@@ -142,6 +146,11 @@ class SessionStore {
   Collection collection() const;  // pictures as stored; warnings list pictures not found now
   size_t item_count() const;
   std::vector<std::string> item_ids() const;  // in item order, without loading the features
+  // The collection's content_hash (collection.h): as stored when the session was made, or, for a
+  // session made before kith kept it, computed from the stored collection.
+  std::string content_hash() const;
+  // The reading flags the collection was read with ("" for the defaults or when not kept).
+  std::string reading() const;
   // Items whose stored picture path does not name a readable file on this machine.
   std::vector<size_t> missing_pictures() const;
 

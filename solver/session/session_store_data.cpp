@@ -48,6 +48,30 @@ std::vector<std::string> SessionStore::item_ids() const {
   return ids;
 }
 
+namespace {
+
+std::optional<std::string> meta_value(Db& d, const char* key) {
+  Stmt m(d, "SELECT value FROM meta WHERE key = ?");
+  m.bind(1, std::string(key));
+  if (m.step()) return m.text(0);
+  return std::nullopt;
+}
+
+}  // namespace
+
+std::string SessionStore::content_hash() const {
+  {
+    std::lock_guard<std::mutex> lock(impl_->mutex);
+    if (auto stored = meta_value(impl_->db, "content")) return *stored;
+  }
+  return kith::content_hash(collection());
+}
+
+std::string SessionStore::reading() const {
+  std::lock_guard<std::mutex> lock(impl_->mutex);
+  return meta_value(impl_->db, "reading").value_or("");
+}
+
 Collection SessionStore::collection() const {
   std::lock_guard<std::mutex> lock(impl_->mutex);
   Db& d = impl_->db;

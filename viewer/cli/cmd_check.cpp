@@ -1,6 +1,6 @@
-// kith check ITEMS: load a collection and report what was found (items, feature, tag and picture
-// columns) and any warnings. A problem in the data is printed as "file:line:column: what" on
-// stderr with exit code 3. Runs on the main thread only.
+// kith check ITEMS|SESSION: load a collection and report what was found (items, feature, tag and
+// picture columns) and any warnings; for a session also what it holds besides. A problem in the data is printed as
+// "file:line:column: what" on stderr with exit code 3. Runs on the main thread only.
 #include <cstdint>
 #include <cstdio>
 #include <optional>
@@ -17,11 +17,12 @@ namespace kith {
 namespace {
 
 const char* const kUsage =
-    "usage: kith check ITEMS [--id COLUMN] [--exclude COLUMN,...] [--pictures COLUMN] [--tags TAGS.csv]\n"
+    "usage: kith check ITEMS|SESSION [--id COLUMN] [--exclude COLUMN,...] [--pictures COLUMN] [--tags TAGS.csv]\n"
     "\n"
     "Loads a collection and reports what kith found in it: the number of items, the id column,\n"
     "the feature columns (numeric), the tag columns (text), the picture column, and warnings.\n"
-    "ITEMS is a CSV or TSV table with a header row, or a NumPy .npy array of features.\n";
+    "ITEMS is a CSV or TSV table with a header row, or a NumPy .npy array of features; a SESSION\n"
+    "(.kith) is checked as kith opens it and its judgments, pins and map are counted.\n";
 
 const char* const kFooter =
     "exit codes: 0 the collection loads, 2 bad usage, 3 a problem in the data (printed as\n"
@@ -41,20 +42,18 @@ int cmd_check(const Args& args) {
                    kFooter);
   if (!flags.read(args)) return flags.stop();
   LoadOptions options;
-  if (!read_load_flags(flags, &options) || !flags.count("--min-items", &options.min_items, 1, SIZE_MAX / 2))
-    return flags.usage_error();
-  if (flags.positional().empty()) return flags.usage_error("which collection? give ITEMS");
+  if (!flags.count("--min-items", &options.min_items, 1, SIZE_MAX / 2)) return flags.usage_error();
+  if (flags.positional().empty()) return flags.usage_error("which collection? give ITEMS or SESSION");
   if (flags.positional().size() > 1)
     return flags.usage_error("one ITEMS file only (got '" + flags.positional()[0] + "' and '" + flags.positional()[1] +
                              "')");
-  const std::string items = flags.positional()[0];
-  const bool npy = items.size() >= 4 && items.compare(items.size() - 4, 4, ".npy") == 0;
-  if (!options.tags_csv.empty() && !npy)
-    return flags.usage_error("--tags goes with a .npy file; a table holds its own tags");
-
-  const std::optional<Collection> loaded = load_or_report("", items, options);
-  if (!loaded) return kExitBadInput;
-  const Collection& c = *loaded;
+  int code = kExitOk;
+  InputOptions io;
+  io.base = options;
+  io.quiet = true;  // the warnings are listed below
+  const std::optional<CollectionInput> in = read_input(flags, flags.positional()[0], &code, io);
+  if (!in) return code;
+  const Collection& c = in->collection;
 
   constexpr size_t kMaxNames = 20, kMaxWarnings = 20;
   std::printf("%s\n", c.source.c_str());
@@ -76,6 +75,15 @@ int cmd_check(const Args& args) {
   for (size_t i = 0; i < c.warnings.size() && i < kMaxWarnings; ++i)
     std::printf("    %s\n", c.warnings[i].str().c_str());
   if (c.warnings.size() > kMaxWarnings) std::printf("    ... (%zu more)\n", c.warnings.size() - kMaxWarnings);
+  if (in->is_session()) {
+    const SessionStore& store = *in->session;
+    const std::string reading = store.reading();
+    const auto checkpoint = store.last_checkpoint();
+    std::printf("  session:         %zu judgments, %zu pins, %s\n", store.judgment_count(), store.pins().size(),
+                checkpoint ? ("a map of iteration " + std::to_string(checkpoint->iteration)).c_str() : "no map yet");
+    std::printf("  read from:       %s%s\n", c.source.c_str(),
+                reading.empty() ? " (default reading)" : (" with " + reading).c_str());
+  }
   std::printf("ok: %zu items x %zu features\n", c.size(), c.feature_names.size());
   return kExitOk;
 }

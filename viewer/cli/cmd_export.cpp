@@ -6,6 +6,7 @@
 #include <cstdio>
 #include <filesystem>
 
+#include "solver/io/layout_writer.h"
 #include "solver/measures/judgment_health.h"
 #include "solver/session/session_store.h"
 #include "viewer/cli/commands.h"
@@ -13,6 +14,7 @@
 #include "viewer/cli/session_cli.h"
 #include "viewer/cli/shared_flags.h"
 #include "viewer/session/session_export.h"
+#include "viewer/session/session_link.h"
 #include "viewer/window/offscreen_render.h"
 
 namespace kith {
@@ -31,10 +33,11 @@ const char* const kFooter =
     "exists without --force, or a session there), 3 the session cannot be read or has no map yet\n";
 
 const char* const kOptions =
-    "  --layout FILE         the map from the session's last checkpoint: id, x, y, z, the tag\n"
-    "                        columns, group (clusters found in the map, empty = no group) and\n"
-    "                        suspect score (0: the item's neighbours share its tag, 1: none do).\n"
-    "                        CSV, or JSON when FILE ends in .json\n"
+    "  --layout FILE         the map from the session's last checkpoint as a layout (README,\n"
+    "                        'Layout files'): id, x, y, z, the tag columns, group (clusters found\n"
+    "                        in the map, 1, 2, ...; 0 = no group) and suspect_score (0: the item's\n"
+    "                        neighbours share its tag, 1: none do). CSV, JSON (.json) or .npy\n"
+    "                        positions with STEM.ids.csv beside them\n"
     "  --judgments FILE      every judgment as CSV: anchor,nearer,farther,person,time,kind,weight by id\n"
     "  --picture FILE        a PNG of the map from the last checkpoint, pins marked\n"
     "  --size WxH            size of --picture in pixels (default: 1280x800)\n"
@@ -80,7 +83,9 @@ int cmd_export(const Args& args) {
       return flags.usage_error(std::string(option) + ": " + flags.text(option) + " is named by another export too");
     outputs.push_back(flags.text(option));
     if (flags.text(option).empty()) return flags.usage_error(std::string(option) + ": give a file name to write");
-    if (const int refused = refuse_output(flags, flags.text(option), rule)) return refused;
+    const bool layout = std::string(option) == "--layout" || std::string(option) == "--flat";
+    for (const std::string& file : layout ? layout_files(flags.text(option)) : std::vector{flags.text(option)})
+      if (const int refused = refuse_output(flags, file, rule)) return refused;
   }
   const std::string tag = flags.text("--tag");
 
@@ -116,9 +121,7 @@ int cmd_export(const Args& args) {
     }
 
     if (flags.has("--picture")) {
-      picture.pinned.assign(c.size(), 0);
-      for (const auto& pin : store->pins())  // indices are checked on open; a guard all the same
-        if (pin.item >= 0 && size_t(pin.item) < c.size()) picture.pinned[size_t(pin.item)] = 1;
+      picture.pinned = pinned_items(*store, c.size());
       picture.title = std::filesystem::path(path).filename().string();
       const std::string out = flags.text("--picture");
       const std::string problem = render_map_png(c, checkpoint->positions, picture, out, rule);

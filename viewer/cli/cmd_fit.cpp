@@ -27,19 +27,22 @@ namespace {
 namespace fs = std::filesystem;
 
 const char* const kUsage =
-    "usage: kith fit ITEMS -o layout.csv|layout.json [options]\n"
+    "usage: kith fit ITEMS|SESSION -o layout.csv|layout.json|layout.npy [options]\n"
     "\n"
     "Computes a t-SNE map of ITEMS (CSV, TSV or .npy; see 'kith check') from its feature columns and\n"
-    "writes it. CSV: id,x,y,z (id,x,y in 2-D) then the tag columns; JSON: the same per item, plus\n"
-    "the options and the map's health. Progress (iteration, KL, iterations per second, time left)\n"
-    "goes to stderr; the health figures (KL, trustworthiness, neighbour recall) to stdout.\n";
+    "writes it as a layout (README, 'Layout files'): CSV id,x,y,z (id,x,y in 2-D), the tag columns,\n"
+    "group and suspect_score when asked for; JSON the same per item, plus the options and the map's\n"
+    "health; .npy the positions, with the rest in STEM.ids.csv. A SESSION gives its collection, its\n"
+    "settings (the map settings below change them) and its judgments. Progress (iteration, KL,\n"
+    "steps per second, time left) goes to stderr; the health figures (KL, trustworthiness,\n"
+    "neighbour recall) to stdout.\n";
 
 const char* const kFooter =
     "exit codes: 0 written, 1 the optimization diverged or the write failed (nothing written),\n"
     "            2 bad usage (or an output kith may not write over), 3 bad input data\n";
 
 const char* const kOptions =
-    "  -o, --output FILE     layout to write, .csv or .json (required)\n"
+    "  -o, --output FILE     layout to write, .csv, .json or .npy (required)\n"
     "  --force               replace FILE if it exists (never a session, a folder or an input)\n"
     "  --raw-csv             CSV text fields exactly as they are (default: a field a spreadsheet\n"
     "                        would run as a formula gets a leading apostrophe)\n"
@@ -48,18 +51,13 @@ const char* const kOptions =
     "  --threads N           threads, 0 = all (default: 0)\n"
     "  --quiet               no progress line\n"
     "  --judgments FILE      blend people's judgments in (CSV anchor,nearer,farther[,person][,time]\n"
-    "                        [,kind][,weight] by id); reports how many the map agrees with\n"
+    "                        [,kind][,weight] by id; with a SESSION, added to its own); reports how\n"
+    "                        many the map agrees with\n"
     "  --skip-bad-judgments  use the good rows of a judgments file with bad ones (default: refuse)\n"
     "  --suspects            add each tagged item's suspect score (0..1: the share of its 10 nearest\n"
     "                        neighbours, in the features and the map, tagged otherwise; see README)\n"
     "  --groups              add each item's group in the map (DBSCAN, automatic radius; 0 = none)\n"
     "  --tag COLUMN          the tag column suspects are judged by (default: the first that groups items)\n";
-
-std::string lower_extension(const std::string& path) {
-  std::string ext = fs::path(path).extension().string();
-  for (auto& c : ext) c = char(std::tolower(static_cast<unsigned char>(c)));
-  return ext;
-}
 
 std::string format_seconds(double s) {
   char buf[32];
@@ -99,8 +97,9 @@ nlohmann::ordered_json fit_header(const Collection& c, const FitResult& r, const
 int cmd_fit(const Args& args) {
   FitOptions o;
   FlagReader flags("fit", kUsage,
-                   kOptions + map_flags({"--dims", "--perplexity", "--iterations", "--theta", "--dof", "--seed",
-                                         "--learning-rate", "--blend"}),
+                   kOptions + load_flags() +
+                       map_flags({"--dims", "--perplexity", "--iterations", "--theta", "--dof", "--seed",
+                                  "--learning-rate", "--blend"}),
                    kFooter);
   if (!flags.read(args)) return flags.stop();
   if (!read_map_flags(flags, &o) || !flags.integer("--threads", &o.threads, 0)) return flags.usage_error();
@@ -116,14 +115,24 @@ int cmd_fit(const Args& args) {
                              "'");
   if (flags.positional().empty() || output.empty()) return flags.usage_error("need ITEMS and -o FILE");
   const std::string input = flags.positional()[0];
-  const std::string ext = lower_extension(output);
-  if (ext != ".csv" && ext != ".json")
-    return flags.usage_error("the output must end in .csv or .json, got '" + output + "'");
-  const SafeWriteOptions rule = output_rule(flags, {input, judgments_path});
-  if (const int refused = refuse_output(flags, output, rule)) return refused;
-  const std::optional<Collection> loaded = load_or_report("fit", input);
-  if (!loaded) return kExitBadInput;
-  const Collection& c = *loaded;
+  if (!is_layout_name(output))
+    return flags.usage_error("the output must end in .csv, .json or .npy, got '" + output + "'");
+  const SafeWriteOptions rule = output_rule(flags, {input, judgments_path, flags.text("--tags")});
+  for (const std::string& file : layout_files(output))
+    if (const int refused = refuse_output(flags, file, rule)) return refused;
+  int code = kExitOk;
+  const std::optional<CollectionInput> in = read_input(flags, input, &code);
+  if (!in) return code;
+  const Collection& c = in->collection;
+  if (in->is_session()) {  // the session's settings, changed by the flags given
+    static_cast<MapParameters&>(o) = in->session->settings();
+    if (!read_map_flags(flags, &o)) return flags.usage_error();
+    for (Judgment j : in->session->judgments())
+      if (!j.retracted) o.judgments.push_back(j);
+    if (!in->session->pins().empty() && !quiet)
+      std::fprintf(stderr, "kith fit: %s has %zu pins; kith fit does not hold items in place (kith open does)\n",
+                   input.c_str(), in->session->pins().size());
+  }
   if (c.features.cols() == 0) {
     std::fprintf(stderr, "kith fit: %s has no feature columns (numbers) to compute a map from\n", input.c_str());
     return kExitBadInput;
@@ -144,7 +153,7 @@ int cmd_fit(const Args& args) {
                    jr.bad_rows, jr.rows);
       return kExitBadInput;
     }
-    o.judgments = jr.judgments;
+    o.judgments.insert(o.judgments.end(), jr.judgments.begin(), jr.judgments.end());
     if (!quiet)
       std::fprintf(stderr, "kith fit: %zu judgments from %s, blend %g\n", o.judgments.size(), judgments_path.c_str(),
                    o.blend);
@@ -154,7 +163,7 @@ int cmd_fit(const Args& args) {
   ProgressFn progress;
   if (!quiet)
     progress = [&](const FitProgress& p) {
-      std::fprintf(stderr, "%siteration %lld/%lld  %s %.4f  %.1f it/s  %s left%s", tty ? "\r" : "",
+      std::fprintf(stderr, "%sstep %lld of %lld  %s %.4f  %.1f steps a second  about %s to go%s", tty ? "\r" : "",
                    static_cast<long long>(p.iteration), static_cast<long long>(p.total),
                    p.exaggerating ? "KL (exaggerated)" : "KL", p.cost, p.iterations_per_second,
                    format_seconds(p.seconds_left).c_str(), tty ? "   " : "\n");
@@ -183,9 +192,7 @@ int cmd_fit(const Args& args) {
   layout.collection = &c;
   layout.map = &r.map;
   layout.header = fit_header(c, r, o, h);
-  LayoutFormat format;  // kith fit's own names and numbering (layout_writer.h)
-  format.suspect_column = "suspect";
-  format.groups_from_one = true;
+  LayoutFormat format;
   format.raw_csv = flags.has("--raw-csv");
   std::string findings_note;
   if (want_suspects || want_groups) {

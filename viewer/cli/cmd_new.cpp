@@ -47,8 +47,7 @@ int cmd_new(const Args& args) {
       kFooter);
   if (!flags.read(args)) return flags.stop();
   SessionSettings settings;
-  LoadOptions load;
-  if (!read_map_flags(flags, &settings) || !read_load_flags(flags, &load)) return flags.usage_error();
+  if (!read_map_flags(flags, &settings)) return flags.usage_error();
   if (flags.positional().size() != 1)
     return flags.usage_error(flags.positional().empty() ? "which collection? give ITEMS" : "one ITEMS file only");
   const std::string out = flags.text("--output");
@@ -57,9 +56,12 @@ int cmd_new(const Args& args) {
     if (!input.empty() && same_file(out, input))
       return flags.usage_error(out + ": that is the input (" + input + "); kith does not write over it");
 
-  const std::optional<Collection> loaded = load_or_report("new", flags.positional()[0], load);
-  if (!loaded) return kExitBadInput;
-  const Collection& collection = *loaded;
+  if (is_session_path(flags.positional()[0]))
+    return flags.usage_error(flags.positional()[0] + " is a session already (Session > Save as in the window copies one)");
+  int code = kExitOk;
+  const std::optional<CollectionInput> in = read_input(flags, flags.positional()[0], &code);
+  if (!in) return code;
+  const Collection& collection = in->collection;
   // The settings as the engine will take them, before anything is written.
   if (std::string why; !settings.IsValid(&why, collection.size())) return flags.usage_error(why);
 
@@ -82,6 +84,7 @@ int cmd_new(const Args& args) {
     SessionCreateOptions create;
     create.overwrite = flags.has("--force");
     create.judgments = judgments;
+    create.reading = reading_flags(in->reading);
     auto store = SessionStore::create(out, collection, settings, create);
     std::printf("%s: %zu items x %zu features, %zu tag columns, %zu judgments\n", out.c_str(), collection.size(),
                 collection.feature_names.size(), collection.tags.size(), judgments.size());

@@ -16,7 +16,7 @@ namespace kith {
 
 namespace {
 const char* const kUsage =
-    "usage: kith open ITEMS [options]      (or just: kith ITEMS)\n"
+    "usage: kith open ITEMS|SESSION [options]      (or just: kith ITEMS)\n"
     "Opens the live map of a collection in a window: the optimization runs while you look,\n"
     "select, drag and pin. Press H in the window for the keys.\n";
 
@@ -24,7 +24,10 @@ const char* const kFooter =
     "A session file (.kith) opens with its own settings, judgments, pins and last map, and\n"
     "everything done in the window is written to it at once. On a plain collection, the first\n"
     "judgment or pin starts a session file next to it (ITEMS.kith, or ITEMS-2.kith and so on;\n"
-    "an existing file is never touched). The Session menu saves as, exports and opens others.\n";
+    "an existing file is never touched). Opening the collection again continues that session\n"
+    "when it was made from the same content (the title bar says so; --fresh starts anew); a\n"
+    "session of the same name made from other content is left alone. The Session menu saves as,\n"
+    "exports and opens others.\n";
 
 const char* const kOptions =
     "  --size WxH            window size (default: 1280x800)\n"
@@ -36,7 +39,8 @@ const char* const kOptions =
     "  --no-panels           start with the panels hidden (Tab shows them)\n"
     "  --people A,B,C        list these people for asking, in turn order (A in the window asks;\n"
     "                        default for a session: the people who answered in it before)\n"
-    "  --read-only           with a session: look without writing (e.g. while another kith has it open)\n";
+    "  --read-only           with a session: look without writing (e.g. while another kith has it open)\n"
+    "  --fresh               with ITEMS: do not continue the session made from it before\n";
 const char* const kHidden =
     // Test hooks, not in the help.
     "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync, --print-saved";
@@ -62,10 +66,12 @@ int run_linked(SessionLink& link, WindowOptions wo, const EngineOptions& eo) {
 }
 
 int open_session(const std::string& path, WindowOptions wo, const std::string& colour, bool read_only,
-                 bool start_paused) {
+                 bool start_paused, const std::string& continued_from = "") {
   if (!display_available()) {
-    std::fprintf(stderr, "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
-                 "or run the window under xvfb-run.\n", path.c_str());
+    std::fprintf(stderr,
+                 "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
+                 "or run the window under xvfb-run.\n",
+                 path.c_str());
     return kExitUsage;
   }
   std::unique_ptr<SessionLink> link;
@@ -80,6 +86,8 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
     std::fprintf(stderr, "kith open: %s: the picture of item %s was not found (%s)\n", path.c_str(),
                  link->collection().ids[item].c_str(), link->collection().pictures[item].c_str());
   wo.title = std::filesystem::path(path).filename().string();
+  if (!continued_from.empty())
+    wo.title += " (continued: made from " + std::filesystem::path(continued_from).filename().string() + ")";
   if (wo.people.empty())  // the people who answered before, in the order they first did
     for (const SessionPerson& p : link->store()->people()) wo.people.push_back(p.name);
   EngineOptions eo;
@@ -89,7 +97,8 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
 }
 
 int cmd_open(const Args& args) {
-  FlagReader flags("open", kUsage, kOptions + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), kFooter,
+  FlagReader flags("open", kUsage,
+                   kOptions + load_flags() + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), kFooter,
                    kHidden);
   if (!flags.read(args)) return flags.stop();
   WindowOptions wo;
@@ -115,14 +124,29 @@ int cmd_open(const Args& args) {
     return flags.usage_error("one collection at a time, got " + std::to_string(positional.size()));
   // A session opens with its own settings; the flags' values are still checked as the engine would.
   if (std::string e; !eo.IsValid(&e)) return flags.usage_error(e);
-  if (!positional.empty() && std::filesystem::path(positional[0]).extension() == ".kith")
+  if (!positional.empty() && is_session_path(positional[0])) {
+    if (const int refused = refuse_reading_flags(flags, positional[0])) return refused;
+    if (flags.has("--fresh")) return flags.usage_error("--fresh goes with ITEMS; a session always continues");
     return open_session(positional[0], wo, colour, read_only, eo.start_paused);
+  }
   if (read_only) return flags.usage_error("--read-only is for session files (.kith)");
   int code = kExitOk;
-  auto collection = load_items_or_report("open", positional.empty() ? "" : positional[0], generate, &code);
-  if (!collection) return code;
+  InputOptions io;
+  io.generate = generate;
+  std::optional<CollectionInput> in = read_input(flags, positional.empty() ? "" : positional[0], &code, io);
+  if (!in) return code;
+  Collection* collection = &in->collection;
   if (std::string e; !eo.IsValid(&e, collection->size())) return flags.usage_error(e);
   if (!choose_colour("open", *collection, colour, &wo.view)) return kExitUsage;
+  // The session this collection started before, made from the same content: continue it.
+  if (!in->path.empty() && !flags.has("--fresh")) {
+    const std::string earlier = SessionLink::earlier_session(in->path, content_hash(*collection));
+    if (!earlier.empty()) {
+      std::fprintf(stderr, "kith open: continuing %s, the session made from this collection (--fresh starts anew)\n",
+                   earlier.c_str());
+      return open_session(earlier, wo, colour, false, eo.start_paused, in->path);
+    }
+  }
   if (!display_available()) {
     std::fprintf(stderr,
                  "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
@@ -132,7 +156,7 @@ int cmd_open(const Args& args) {
   }
   // Judgments and pins made on a plain collection start a session file next to it (never over
   // an existing file); a generated collection stays in memory.
-  SessionLink link(std::move(*collection), eo, positional.empty() ? "" : positional[0]);
+  SessionLink link(std::move(*collection), eo, positional.empty() ? "" : positional[0], reading_flags(in->reading));
   return run_linked(link, wo, eo);
 }
 

@@ -8,6 +8,7 @@
 #include "viewer/cli/flags.h"
 #include "viewer/cli/map_source.h"
 #include "viewer/cli/shared_flags.h"
+#include "viewer/session/session_link.h"
 #include "viewer/window/engine_feed.h"
 #include "viewer/window/offscreen_render.h"
 
@@ -15,9 +16,12 @@ namespace kith {
 
 namespace {
 const char* const kUsage =
-    "usage: kith render ITEMS -o map.png [options]\n"
+    "usage: kith render ITEMS|SESSION -o map.png [options]\n"
     "Draws the map of a collection to a PNG without any display or window (EGL, no X needed).\n"
-    "The map is computed first (the live engine, for --iterations steps).\n";
+    "For ITEMS the map is computed first (the live engine, for --iterations steps). A SESSION is\n"
+    "drawn as its last saved map, pins marked; with --iterations, or when it has no map yet, the\n"
+    "map is computed from its features, judgments and pins with its settings (the map settings\n"
+    "below change them).\n";
 
 const char* const kOptions =
     "  -o, --output FILE     the PNG to write (required)\n"
@@ -37,9 +41,10 @@ const char* const kOptions =
 }  // namespace
 
 int cmd_render(const Args& args) {
-  FlagReader flags("render", kUsage,
-                   kOptions + force_flag("FILE") + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
-                   "--generate N");  // a generated collection, for tests
+  FlagReader flags(
+      "render", kUsage,
+      kOptions + force_flag("FILE") + load_flags() + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
+      "--generate N");  // a generated collection, for tests
   if (!flags.read(args)) return flags.stop();
   RenderOptions ro;
   EngineOptions eo;
@@ -71,8 +76,22 @@ int cmd_render(const Args& args) {
   const SafeWriteOptions rule = output_rule(flags, positional);
   if (const int refused = refuse_output(flags, output, rule)) return refused;
   int code = kExitOk;
-  auto collection = load_items_or_report("render", positional.empty() ? "" : positional[0], generate, &code);
-  if (!collection) return code;
+  InputOptions io;
+  io.generate = generate;
+  std::optional<CollectionInput> in = read_input(flags, positional.empty() ? "" : positional[0], &code, io);
+  if (!in) return code;
+  const Collection* collection = &in->collection;
+  std::vector<Judgment> judgments;
+  std::optional<MapCheckpoint> saved;
+  if (in->is_session()) {  // its settings, changed by the flags given; its judgments (the engine
+                           // passes over retracted ones) and pins
+    static_cast<MapParameters&>(eo) = in->session->settings();
+    read_map_flags(flags, &eo);  // read once above already, so it cannot fail here
+    judgments = in->session->judgments();
+    ro.pinned = pinned_items(*in->session, collection->size());
+    saved = in->session->last_checkpoint();
+    if (saved && size_t(saved->positions.rows()) != collection->size()) saved.reset();
+  }
   if (std::string e; !eo.IsValid(&e, collection->size())) return flags.usage_error(e);
 
   if (!choose_colour("render", *collection, colour, &ro.view)) return kExitUsage;
@@ -88,8 +107,12 @@ int cmd_render(const Args& args) {
   }
 
   Points positions;
-  auto feed = iterations > 0 ? make_engine_feed(*collection, eo) : nullptr;
-  if (feed) {
+  const bool draw_saved = saved && !flags.has("--iterations");
+  auto feed = iterations > 0 && !draw_saved ? make_engine_feed(*collection, eo, judgments) : nullptr;
+  if (feed && in->is_session()) post_pins(*in->session, *feed);
+  if (draw_saved) {
+    positions = saved->positions;
+  } else if (feed) {
     std::fprintf(stderr, "kith render: computing the map (%lld iterations)...\n", static_cast<long long>(iterations));
     for (;;) {
       auto s = feed->latest();

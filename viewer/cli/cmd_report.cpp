@@ -21,6 +21,7 @@
 #include "solver/session/session_store.h"
 #include "viewer/cli/commands.h"
 #include "viewer/cli/flags.h"
+#include "viewer/cli/map_source.h"
 #include "viewer/cli/report_page.h"
 #include "viewer/cli/shared_flags.h"
 
@@ -62,7 +63,8 @@ std::string fixed(double v, int digits) {
 
 int cmd_report(const Args& args) {
   FlagReader flags("report", kUsage,
-                   kOptions + force_flag("FILE") + map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
+                   kOptions + force_flag("FILE") + load_flags() +
+                       map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
                    kFooter);
   if (!flags.read(args)) return flags.stop();
   FitOptions fit;
@@ -81,36 +83,25 @@ int cmd_report(const Args& args) {
   if (flags.positional().empty()) return flags.usage_error("which collection? (kith report ITEMS -o report.html)");
   if (output.empty()) return flags.usage_error("where to? (-o report.html)");
   const std::string input = flags.positional()[0];
-  const SafeWriteOptions rule = output_rule(flags, {input});
+  const SafeWriteOptions rule = output_rule(flags, {input, flags.text("--tags")});
   if (const int refused = refuse_output(flags, output, rule)) return refused;
-  const bool is_session = input.size() > 5 && input.compare(input.size() - 5, 5, ".kith") == 0;
-
-  Collection items;
+  int code = kExitOk;
+  std::optional<CollectionInput> in = read_input(flags, input, &code);
+  if (!in) return code;
+  const bool is_session = in->is_session();
+  Collection items = std::move(in->collection);
   std::vector<Judgment> judgments;
   std::optional<MapCheckpoint> saved;
-  try {
-    if (is_session) {
-      SessionOpenOptions so;
-      so.read_only = true;
-      const auto store = SessionStore::open(input, so);
-      items = store->collection();
-      judgments = store->judgments();
-      saved = store->last_checkpoint();
-      const SessionSettings settings = store->settings();
-      fit.dims = settings.dims;
-      fit.perplexity = settings.perplexity;
-      fit.seed = settings.seed;
-      fit.dof = settings.dof;
-      fit.theta = settings.theta;
-    } else {
-      items = load_collection(input);
-    }
-  } catch (const LoadError& e) {
-    std::fprintf(stderr, "kith report: %s\n", e.problem().str().c_str());
-    return kExitBadInput;
-  } catch (const SessionError& e) {
-    std::fprintf(stderr, "kith report: %s: %s\n", input.c_str(), e.what());
-    return kExitBadInput;
+  if (is_session) {
+    const SessionStore& store = *in->session;
+    judgments = store.judgments();
+    saved = store.last_checkpoint();
+    const SessionSettings settings = store.settings();
+    fit.dims = settings.dims;
+    fit.perplexity = settings.perplexity;
+    fit.seed = settings.seed;
+    fit.dof = settings.dof;
+    fit.theta = settings.theta;
   }
   if (items.features.cols() == 0) {
     std::fprintf(stderr, "kith report: %s: no feature columns, so there is no map to fit\n", input.c_str());

@@ -3,16 +3,27 @@
 #include <cstdio>
 #include <filesystem>
 
+#include "solver/io/safe_file.h"
+#include "viewer/cli/shared_flags.h"
 #include "viewer/cli/synthetic_collection.h"
 
 namespace kith {
+
+namespace {
+
+// The collection's first ten warnings, "kith COMMAND: warning: ..." (none when COMMAND is empty).
+void print_warnings(const std::string& command, const Collection& c) {
+  for (size_t i = 0; i < c.warnings.size() && i < 10 && !command.empty(); ++i)
+    std::fprintf(stderr, "kith %s: warning: %s\n", command.c_str(), c.warnings[i].str().c_str());
+}
+
+}  // namespace
 
 std::optional<Collection> load_or_report(const std::string& command, const std::string& path,
                                          const LoadOptions& options) {
   try {
     Collection c = load_collection(path, options);
-    for (size_t i = 0; i < c.warnings.size() && i < 10 && !command.empty(); ++i)
-      std::fprintf(stderr, "kith %s: warning: %s\n", command.c_str(), c.warnings[i].str().c_str());
+    print_warnings(command, c);
     return c;
   } catch (const LoadError& e) {
     const std::string prefix = command.empty() ? "" : "kith " + command + ": ";
@@ -21,26 +32,67 @@ std::optional<Collection> load_or_report(const std::string& command, const std::
   }
 }
 
-std::optional<Collection> load_items_or_report(const std::string& command, const std::string& path, size_t generate,
-                                               int* exit_code) {
-  if (generate > 0) return synthetic_collection(generate);
-  *exit_code = kExitBadInput;
+bool is_session_path(const std::string& path) {
+  return std::filesystem::path(path).extension() == ".kith" || is_sqlite_file(path);
+}
+
+int refuse_reading_flags(const FlagReader& flags, const std::string& path) {
+  for (const char* option : {"--id", "--exclude", "--pictures", "--tags"})
+    if (flags.has(option))
+      return flags.usage_error(std::string(option) + ": " + path +
+                               " is a session, which keeps its collection as it was read when it was made; reading "
+                               "options go with ITEMS (make a new session from ITEMS to read it otherwise)");
+  return kExitOk;
+}
+
+std::optional<CollectionInput> read_input(FlagReader& flags, const std::string& path, int* exit_code,
+                                          const InputOptions& options) {
+  const std::string& command = flags.command();
+  CollectionInput in;
+  in.path = path;
+  in.reading = options.base;
+  *exit_code = kExitUsage;
+  if (!read_load_flags(flags, &in.reading)) {
+    flags.usage_error();
+    return std::nullopt;
+  }
+  if (options.generate > 0) {
+    in.collection = synthetic_collection(options.generate);
+    return in;
+  }
   if (path.empty()) {
-    std::fprintf(stderr, "kith %s: which collection? (kith %s ITEMS, see --help)\n", command.c_str(), command.c_str());
+    std::fprintf(stderr, "kith %s: which collection? (kith %s ITEMS|SESSION, see --help)\n", command.c_str(),
+                 command.c_str());
+    return std::nullopt;
+  }
+  *exit_code = kExitBadInput;
+  if (is_session_path(path)) {
+    if (refuse_reading_flags(flags, path) != kExitOk) {
+      *exit_code = kExitUsage;
+      return std::nullopt;
+    }
+    try {
+      SessionOpenOptions o;
+      o.read_only = true;
+      in.session = SessionStore::open(path, o);
+      in.collection = in.session->collection();
+    } catch (const SessionError& e) {
+      std::fprintf(stderr, "kith %s: %s\n", command.c_str(), e.what());
+      return std::nullopt;
+    }
+    print_warnings(options.quiet ? "" : command, in.collection);
+    return in;
+  }
+  const bool npy = std::filesystem::path(path).extension() == ".npy";
+  if (!in.reading.tags_csv.empty() && !npy) {
+    flags.usage_error("--tags goes with a .npy file; a table holds its own tags");
     *exit_code = kExitUsage;
     return std::nullopt;
   }
-  std::error_code ec;
-  if (!std::filesystem::exists(path, ec)) {
-    std::fprintf(stderr, "kith %s: %s: no such file\n", command.c_str(), path.c_str());
-    return std::nullopt;
-  }
-  if (std::filesystem::path(path).extension() == ".kith") {
-    std::fprintf(stderr, "kith %s: %s: session files are not readable by this build yet\n", command.c_str(),
-                 path.c_str());
-    return std::nullopt;
-  }
-  return load_or_report(command, path);
+  std::optional<Collection> loaded = load_or_report(options.quiet ? "" : command, path, in.reading);
+  if (!loaded) return std::nullopt;
+  in.collection = std::move(*loaded);
+  return in;
 }
 
 bool choose_colour(const std::string& command, const Collection& c, const std::string& colour, ViewOptions* view) {

@@ -66,7 +66,9 @@ std::string load_flags() {
          "  --exclude A,B,...     numeric columns that are not features (they become tags)\n"
          "  --pictures COLUMN     the column of picture paths, relative to the table's folder (default:\n"
          "                        the text column whose values end in .png, .jpg, ...)\n"
-         "  --tags TAGS.csv       for a .npy file: a CSV with one row per array row holding ids and tags\n";
+         "  --tags TAGS.csv       for a .npy file: a CSV with one row per array row holding ids and tags\n"
+         "                        (how ITEMS is read: README, 'Reading a collection'; a SESSION keeps\n"
+         "                        its collection as it was read, so these options do not go with one)\n";
 }
 
 std::string force_flag(const std::string& what) {

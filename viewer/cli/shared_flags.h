@@ -30,7 +30,7 @@ std::string session_map_flags(const std::vector<std::string>& names);
 // are MapParameters::IsValid's, which the command calls with the item count once it has them.
 bool read_map_flags(FlagReader& flags, MapParameters* settings);
 
-// --id, --exclude, --pictures, --tags (as `kith check` describes them).
+// --id, --exclude, --pictures, --tags: how every command reads ITEMS (map_source.h read_input).
 std::string load_flags();
 bool read_load_flags(FlagReader& flags, LoadOptions* options);
 

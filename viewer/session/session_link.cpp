@@ -41,8 +41,9 @@ SessionLink::SessionLink(const std::string& path, bool read_only) : path_(path),
   settings_ = store_->settings();
 }
 
-SessionLink::SessionLink(Collection collection, const MapParameters& parameters, const std::string& source)
-    : collection_(std::move(collection)), settings_(parameters), source_(source) {}
+SessionLink::SessionLink(Collection collection, const MapParameters& parameters, const std::string& source,
+                         const std::string& reading)
+    : collection_(std::move(collection)), settings_(parameters), source_(source), reading_(reading) {}
 
 SessionLink::~SessionLink() {
   try {
@@ -59,12 +60,25 @@ Points SessionLink::start() const {
   return {};
 }
 
-void SessionLink::post_pins(MapFeed& feed) const {
-  if (!store_) return;
-  for (const SessionPin& p : store_->pins()) feed.post(cmd::Pin{p.item, p.position});
+void post_pins(const SessionStore& store, MapFeed& feed) {
+  for (const SessionPin& p : store.pins()) feed.post(cmd::Pin{p.item, p.position});
 }
 
-std::string SessionLink::path_for(const std::string& source) {
+std::vector<uint8_t> pinned_items(const SessionStore& store, size_t n) {
+  std::vector<uint8_t> pinned(n, 0);
+  for (const SessionPin& pin : store.pins())  // indices are checked on open; a guard all the same
+    if (pin.item >= 0 && size_t(pin.item) < n) pinned[size_t(pin.item)] = 1;
+  return pinned;
+}
+
+void SessionLink::post_pins(MapFeed& feed) const {
+  if (store_) kith::post_pins(*store_, feed);
+}
+
+namespace {
+
+// The folder and stem of the sessions a collection read from SOURCE starts.
+std::pair<fs::path, std::string> session_place(const std::string& source, bool create) {
   const fs::path src(source);
   std::string stem = src.stem().string();
   if (stem.empty()) stem = "collection";
@@ -74,13 +88,39 @@ std::string SessionLink::path_for(const std::string& source) {
     const char* home = std::getenv("HOME");
     dir = (xdg && *xdg ? fs::path(xdg) : fs::path(home ? home : ".") / ".local" / "share") / "kith" / "sessions";
     std::error_code ec;
-    fs::create_directories(dir, ec);
+    if (create) fs::create_directories(dir, ec);
   }
-  fs::path candidate = dir / (stem + ".kith");
+  return {dir, stem};
+}
+
+fs::path numbered(const fs::path& dir, const std::string& stem, int k) {
+  return dir / (k < 2 ? stem + ".kith" : stem + "-" + std::to_string(k) + ".kith");
+}
+
+}  // namespace
+
+std::string SessionLink::path_for(const std::string& source) {
+  const auto [dir, stem] = session_place(source, true);
   std::error_code ec;
-  for (int k = 2; fs::exists(candidate, ec) || fs::is_symlink(candidate, ec); ++k)
-    candidate = dir / (stem + "-" + std::to_string(k) + ".kith");
+  fs::path candidate = numbered(dir, stem, 1);
+  for (int k = 2; fs::exists(candidate, ec) || fs::is_symlink(candidate, ec); ++k) candidate = numbered(dir, stem, k);
   return candidate.string();
+}
+
+std::string SessionLink::earlier_session(const std::string& source, const std::string& content_hash) {
+  const auto [dir, stem] = session_place(source, false);
+  std::error_code ec;
+  for (int k = 1;; ++k) {
+    const fs::path candidate = numbered(dir, stem, k);
+    if (!fs::exists(candidate, ec) && !fs::is_symlink(candidate, ec)) return "";
+    try {
+      SessionOpenOptions o;
+      o.read_only = true;
+      if (SessionStore::open(candidate.string(), o)->content_hash() == content_hash) return candidate.string();
+    } catch (const SessionError&) {
+      // not a session, damaged, or made by a newer kith: not this collection's, and left alone
+    }
+  }
 }
 
 std::string SessionLink::ensure_store(const char* why) {
@@ -91,6 +131,7 @@ std::string SessionLink::ensure_store(const char* why) {
   try {
     SessionCreateOptions co;
     co.judgments = judgments_;
+    co.reading = reading_;
     store_ = SessionStore::create(path, collection_, settings_, co);
     path_ = path;
     judgments_ = store_->judgments();
@@ -111,7 +152,8 @@ std::string SessionLink::record(CommandBody& body) {
     return last_error_ = "read-only session: judgments and pins cannot be saved (open it without --read-only)";
   }
   if (!store_ && worth_a_file(body)) {
-    if (std::string problem = ensure_store("your first judgment or pin"); !problem.empty()) return last_error_ = problem;
+    if (std::string problem = ensure_store("your first judgment or pin"); !problem.empty())
+      return last_error_ = problem;
   }
   // The settings as they would be after this command; checked again here, so a session never
   // holds a setting it could not be opened with (the window checked it before, MapFeed::prepare).

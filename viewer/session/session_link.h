@@ -17,29 +17,36 @@
 #include <vector>
 
 #include "solver/asking/session_event.h"
+#include "solver/base/judgment.h"
 #include "solver/io/collection.h"
 #include "solver/live/commands.h"
 #include "solver/live/snapshot.h"
-#include "solver/base/judgment.h"
 #include "solver/session/session_store.h"
-#include "viewer/scene/window_hooks.h"
 #include "viewer/scene/map_feed.h"
+#include "viewer/scene/window_hooks.h"
 
 namespace kith {
+
+// The session's pins as commands to FEED (what opening a session does before the window runs).
+void post_pins(const SessionStore& store, MapFeed& feed);
+// Per item (of N), 1 where the session holds a pin: RenderOptions::pinned for a picture.
+std::vector<uint8_t> pinned_items(const SessionStore& store, size_t n);
 
 class SessionLink {
  public:
   // An existing session. Throws SessionError with the store's message when it cannot be opened.
   explicit SessionLink(const std::string& path, bool read_only = false);
-  // A plain collection read from `source` ("" for a generated one: then no file is ever created).
-  SessionLink(Collection collection, const MapParameters& parameters, const std::string& source);
+  // A plain collection read from `source` ("" for a generated one: then no file is ever created)
+  // with the reading flags `reading` (reading_flags in collection.h), which its session keeps.
+  SessionLink(Collection collection, const MapParameters& parameters, const std::string& source,
+              const std::string& reading = "");
   ~SessionLink();
 
   const Collection& collection() const { return collection_; }
   const SessionSettings& settings() const { return settings_; }  // as stored (or to be stored)
   const std::vector<Judgment>& judgments() const { return judgments_; }
-  Points start() const;                  // the last checkpoint, or empty
-  void post_pins(MapFeed& feed) const;   // the stored pins, as commands
+  Points start() const;                 // the last checkpoint, or empty
+  void post_pins(MapFeed& feed) const;  // the stored pins, as commands
 
   // The feed the window should use (see above). Keep this object alive while the window runs.
   std::unique_ptr<MapFeed> recording(MapFeed& inner);
@@ -54,7 +61,7 @@ class SessionLink {
   std::string save_as(const std::string& path);
 
   std::string title_state() const;
-  const std::string& path() const { return path_; }      // "" while a plain collection has no file
+  const std::string& path() const { return path_; }  // "" while a plain collection has no file
   bool read_only() const { return read_only_; }
   SessionStore* store() { return store_.get(); }          // null while there is no file
   std::string last_error() const { return last_error_; }  // the newest write that failed, "" if none
@@ -65,6 +72,10 @@ class SessionLink {
 
   // Where a session for a collection read from `source` would be created (see above).
   static std::string path_for(const std::string& source);
+  // The session a collection read from `source` started before: the first of the names path_for
+  // walks through (ITEMS.kith, ITEMS-2.kith, ...) that is a session made from content with this
+  // content_hash; "" when none is. Files it cannot read are passed over, never changed.
+  static std::string earlier_session(const std::string& source, const std::string& content_hash);
 
  private:
   std::string record(CommandBody& body);
@@ -77,6 +88,7 @@ class SessionLink {
   std::vector<Judgment> judgments_;
   SessionSettings settings_;  // kept for a plain collection until its file exists
   std::string source_;
+  std::string reading_;
   std::shared_ptr<const Snapshot> last_;
   double last_checkpoint_ = 0.0;
   std::string path_;

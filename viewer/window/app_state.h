@@ -127,6 +127,7 @@ struct App {
   void help_overlay();
   void notice_line();
   void update_title();
+  std::string title_text() const;  // what update_title shows (also in the state dump)
 };
 
 // input.cpp: routes the window's mouse, wheel and key events into app->queue.

@@ -415,7 +415,9 @@ void App::notice_line() {
 
 // ============================================================================ [SECTION] the title bar
 
-void App::update_title() {
+void App::update_title() { glfwSetWindowTitle(window, title_text().c_str()); }
+
+std::string App::title_text() const {
   const auto s = view->snapshot();
   std::string name = options.title.empty() ? std::filesystem::path(collection.source).filename().string() : options.title;
   std::string state = !feed.live() ? "still map" : paused() ? "paused" : (s && s->settled) ? "settled" : "running";
@@ -423,7 +425,7 @@ void App::update_title() {
   if (s && feed.live()) title += ", iteration " + std::to_string(s->iteration);
   const std::string saving = hooks.title_state ? hooks.title_state() : options.session_state;
   if (!saving.empty()) title += " \xe2\x80\x94 " + saving;
-  glfwSetWindowTitle(window, title.c_str());
+  return title;
 }
 
 }  // namespace kith

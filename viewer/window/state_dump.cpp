@@ -47,6 +47,7 @@ void App::dump_state(const std::string& path) {
   j["height"] = view->camera().height();
   j["camera"] = view->camera().str();
   j["live"] = feed.live();
+  j["title"] = title_text();
   json items = json::array();
   const auto& pos = view->positions();
   for (size_t i = 0; i < pos.size() && i < 20000; ++i) {
