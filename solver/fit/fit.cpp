@@ -30,7 +30,7 @@ bool FitOptions::IsValid(std::string* error, size_t n) const {
 
 std::string FitSummary::BriefReport() const {
   char buf[256];
-  std::snprintf(buf, sizeof buf, "%lld iterations, KL %.4f, %.1f s (%.1f s set-up, %.1f it/s), learning rate %.4g%s",
+  std::snprintf(buf, sizeof buf, "%lld steps, KL %.4f, %.1f s (%.1f s set-up, %.1f steps a second), learning rate %.4g%s",
                 static_cast<long long>(iterations), kl, seconds, setup_seconds,
                 seconds > setup_seconds ? double(iterations) / (seconds - setup_seconds) : 0.0, learning_rate,
                 stopped_early ? ", stopped early" : "");

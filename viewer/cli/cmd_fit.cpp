@@ -163,10 +163,15 @@ int cmd_fit(const Args& args) {
   ProgressFn progress;
   if (!quiet)
     progress = [&](const FitProgress& p) {
-      std::fprintf(stderr, "%sstep %lld of %lld  %s %.4f  %.1f steps a second  about %s to go%s", tty ? "\r" : "",
-                   static_cast<long long>(p.iteration), static_cast<long long>(p.total),
-                   p.exaggerating ? "KL (exaggerated)" : "KL", p.cost, p.iterations_per_second,
-                   format_seconds(p.seconds_left).c_str(), tty ? "   " : "\n");
+      // While exaggerating, the objective is of the scaled affinities and is no KL a reader can compare.
+      char what[64];
+      if (p.exaggerating)
+        std::snprintf(what, sizeof what, "early phase (clusters drawn apart)");
+      else
+        std::snprintf(what, sizeof what, "KL %.4f", p.cost);
+      std::fprintf(stderr, "%sstep %lld of %lld  %s  %.1f steps a second  about %s to go%s", tty ? "\r" : "",
+                   static_cast<long long>(p.iteration), static_cast<long long>(p.total), what,
+                   p.iterations_per_second, format_seconds(p.seconds_left).c_str(), tty ? "   " : "\n");
       return true;
     };
   if (!quiet)

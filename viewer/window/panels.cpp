@@ -129,7 +129,7 @@ void App::panel_map() {
     if (ImGui::Button("Restart")) handle_key(keys::letter('r'), keys::kShift);
     setting_sliders();
     if (s)
-      ImGui::Text("iteration %llu   %.0f it/s%s", (unsigned long long)s->iteration, s->iterations_per_second,
+      ImGui::Text("step %llu   %.0f steps a second%s", (unsigned long long)s->iteration, s->iterations_per_second,
                   s->rebuilding ? "   rebuilding..." : "");
   } else {
     ImGui::TextDisabled("still map: no optimizer in this build");
