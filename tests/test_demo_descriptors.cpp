@@ -267,13 +267,16 @@ TEST_CASE("demo descriptors: kith describe on a folder, an items table, and bad 
   CHECK(run_kith("describe " + dir + "/pics -o " + dir + "/f.csv") == 0);
   auto lines = read_lines(dir + "/f.csv");
   REQUIRE(lines.size() == 5);  // header + 4 readable pictures; broken.jpg skipped
-  CHECK(lines[0].rfind("id,picture,colour_mean_L,", 0) == 0);
-  CHECK(lines[1].rfind("p0,pics/p0.png,", 0) == 0);
-  CHECK(lines[3].rfind("sub/p2,pics/sub/p2.png,", 0) == 0);
+  // Two folders, so the subfolder becomes a tag column after the picture.
+  CHECK(lines[0].rfind("id,picture,folder,colour_mean_L,", 0) == 0);
+  CHECK(lines[1].rfind("p0,pics/p0.png,(top folder),", 0) == 0);
+  CHECK(lines[3].rfind("sub/p2,pics/sub/p2.png,sub,", 0) == 0);
   // The output is a collection kith reads, features from the pictures.
   const kith::Collection c = kith::load_collection(dir + "/f.csv");
   CHECK(c.size() == 4);
-  CHECK(c.features.cols() == kith::descriptor_size());
+  // Descriptors with one value for every picture are left out, never more than there are.
+  CHECK(c.features.cols() > 0);
+  CHECK(c.features.cols() <= kith::descriptor_size());
   CHECK(c.pictures.size() == 4);
   // Does not overwrite without --force.
   CHECK(run_kith("describe " + dir + "/pics -o " + dir + "/f.csv") == 2);

@@ -12,6 +12,7 @@
 
 #include "solver/features/picture_descriptors.h"
 #include "solver/io/collection.h"
+#include "solver/io/png_file.h"
 #include "solver/io/safe_file.h"
 #include "solver/io/text_fields.h"
 #include "viewer/cli/commands.h"
@@ -30,9 +31,11 @@ const char* const kUsage =
     "Computes features from PNG and JPEG pictures: CIELAB colour statistics, a coarse CIELAB\n"
     "histogram, texture energy and orientation at three scales, and a 4 x 4 layout thumbnail, each\n"
     "block weighted to the same spread over the pictures (see the README). PICTURES is a folder\n"
-    "(searched recursively for .png, .jpg, .jpeg), one or more picture files, or an items table\n"
-    "(CSV/TSV) with a column of picture paths, whose ids and tags are kept. Pictures that cannot\n"
-    "be read are reported and left out.\n";
+    "(searched recursively for .png, .jpg, .jpeg; the subfolder each picture sits in becomes its\n"
+    "tag in a column 'folder'), one or more picture files, or an items table (CSV/TSV) with a\n"
+    "column of picture paths, whose ids and tags are kept. Pictures that cannot be read are\n"
+    "reported and left out, and so are the PNGs kith itself made (maps, pictures of a session),\n"
+    "which carry a mark saying so. Feature columns with one value for every picture are left out.\n";
 
 const char* const kFooter =
     "exit codes: 0 written, 2 bad usage, 3 bad input (no readable pictures, unreadable folder)\n";
@@ -44,6 +47,8 @@ const char* const kOptions =
     "  --working-size N      longest side, in pixels, pictures are reduced to (default: 96)\n"
     "  --raw                 write the unweighted numbers (no block weighting)\n"
     "  --threads N           threads to use, 0 = all (default: 0)\n";
+
+const char* const kTopFolder = "(top folder)";
 
 bool is_picture_name(const fs::path& p) {
   std::string ext = p.extension().string();
@@ -83,6 +88,7 @@ int cmd_describe(const Args& args) {
   // items table's ids.
   std::vector<std::string> paths, ids;
   std::vector<TagColumn> tags;
+  std::vector<std::string> folders;  // for pictures found in folders or given one by one
   std::set<std::string> seen_ids;
   for (const auto& in : inputs) {
     if (!fs::exists(in, ec)) {
@@ -103,11 +109,14 @@ int cmd_describe(const Args& args) {
       std::sort(found.begin(), found.end());
       for (const auto& p : found) {
         paths.push_back(p.string());
-        ids.push_back(fs::relative(p, in, ec).replace_extension().generic_string());
+        const fs::path rel = fs::relative(p, in, ec);
+        ids.push_back(fs::path(rel).replace_extension().generic_string());
+        folders.push_back(rel.has_parent_path() ? rel.parent_path().generic_string() : kTopFolder);
       }
     } else if (is_picture_name(in)) {
       paths.push_back(in);
       ids.push_back(fs::path(in).stem().string());
+      folders.push_back(kTopFolder);
     } else {  // an items table
       if (inputs.size() != 1) {
         std::fprintf(stderr, "kith describe: give one items table, or pictures and folders, not both\n");
@@ -128,10 +137,32 @@ int cmd_describe(const Args& args) {
       tags = c.tags;
     }
   }
+  // kith's own pictures (a map rendered into the pictures' folder, say) are no part of the collection.
+  size_t n_kept = 0;
+  for (size_t i = 0; i < paths.size(); ++i) {
+    if (!is_kiths_png_file(paths[i])) {
+      paths[n_kept] = paths[i];
+      ids[n_kept] = ids[i];
+      if (!folders.empty()) folders[n_kept] = folders[i];
+      for (auto& t : tags) t.values[n_kept] = t.values[i];
+      ++n_kept;
+      continue;
+    }
+    std::fprintf(stderr, "kith describe: left out %s: a picture kith made, not one of the collection's\n",
+                 paths[i].c_str());
+  }
+  const size_t own_count = paths.size() - n_kept;
+  paths.resize(n_kept);
+  ids.resize(n_kept);
+  if (!folders.empty()) folders.resize(n_kept);
+  for (auto& t : tags) t.values.resize(n_kept);
   if (paths.empty()) {
     std::fprintf(stderr, "kith describe: no .png, .jpg or .jpeg pictures found in %s\n", inputs.front().c_str());
     return kExitBadInput;
   }
+  // The subfolders become a tag when there are at least two of them.
+  const bool folder_tag = !folders.empty() && std::set<std::string>(folders.begin(), folders.end()).size() > 1;
+  if (folder_tag) tags.push_back(TagColumn{"folder", folders});
   for (size_t i = 0; i < ids.size(); ++i) {
     std::string id = ids[i];
     for (int k = 2; !seen_ids.insert(id).second; ++k) id = ids[i] + "~" + std::to_string(k);
@@ -149,9 +180,19 @@ int cmd_describe(const Args& args) {
 
   // Built in memory, then written through the safe writer: a failure never leaves half a file.
   const fs::path base = fs::absolute(fs::path(output), ec).parent_path();
+  // A column with one value for every picture adds nothing (and kith check would say so).
+  std::vector<int> kept;
+  for (int c = 0; c < d.features.cols(); ++c)
+    if (d.features.col(c).maxCoeff() > d.features.col(c).minCoeff()) kept.push_back(c);
+  if (kept.empty()) {
+    std::fprintf(stderr, "kith describe: the %zu pictures have the same features (are they all alike?)\n",
+                 d.paths.size());
+    return kExitBadInput;
+  }
+  const std::vector<std::string> names = descriptor_names();
   std::string text = "id,picture";
   for (const auto& t : tags) text += ',' + csv_field(t.name);
-  for (const auto& n : descriptor_names()) text += ',' + n;
+  for (int c : kept) text += ',' + names[size_t(c)];
   text += '\n';
   char buf[32];
   for (size_t r = 0; r < d.paths.size(); ++r) {
@@ -160,7 +201,7 @@ int cmd_describe(const Args& args) {
     if (ec || rel.empty()) rel = abs;
     text += csv_field(ids[d.input_index[r]]) + ',' + csv_field(rel.generic_string());
     for (const auto& t : tags) text += ',' + csv_field(t.values[d.input_index[r]]);
-    for (int c = 0; c < d.features.cols(); ++c) {
+    for (int c : kept) {
       std::snprintf(buf, sizeof buf, ",%.9g", d.features(Eigen::Index(r), c));
       text += buf;
     }
@@ -168,8 +209,13 @@ int cmd_describe(const Args& args) {
   }
   if (const std::string problem = write_file_safely(output, text, rule); !problem.empty())
     return write_failed(flags, problem);
-  std::printf("wrote %s: %zu pictures x %d features (%zu skipped)\n", output.c_str(), d.paths.size(),
-              int(d.features.cols()), d.skipped.size());
+  std::printf("wrote %s: %zu pictures x %zu features\n", output.c_str(), d.paths.size(), kept.size());
+  if (!d.skipped.empty()) std::printf("  left out, unreadable (listed above): %zu\n", d.skipped.size());
+  if (own_count) std::printf("  left out, pictures kith made: %zu\n", own_count);
+  if (kept.size() < size_t(d.features.cols()))
+    std::printf("  left out, features with one value for every picture: %d\n",
+                int(d.features.cols()) - int(kept.size()));
+  if (folder_tag) std::printf("  tag 'folder': the subfolder each picture sits in\n");
   return kExitOk;
 }
 
