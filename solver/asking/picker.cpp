@@ -19,6 +19,7 @@ bool PickerOptions::IsValid(std::string* error) const {
   else if (anchor_draws < 1) e = "picker: anchor_draws must be at least 1";
   else if (anchors_scored < 1) e = "picker: anchors_scored must be at least 1";
   else if (!(random_share >= 0.0 && random_share <= 1.0)) e = "picker: random_share must be between 0 and 1";
+  else if (warm_up_judgments < 0) e = "picker: warm_up_judgments must not be negative";
   else if (samples < 1) e = "picker: samples must be at least 1";
   else if (scored_places < 0) e = "picker: scored_places must not be negative";
   else if (!(local_share >= 0.0 && local_share <= 1.0)) e = "picker: local_share must be between 0 and 1";
@@ -355,13 +356,21 @@ Question Picker::next(const PickerInput& in, QuestionKind kind, int grid_size, i
     throw std::invalid_argument("picker: a grid needs at least 2 candidates and 1 <= choose < candidates");
   if (n < size + 1) return q;  // anchor -1: nothing to ask
 
-  const bool random_now = options_.rule == PickerRule::kRandom ||
+  // Without features the map means nothing until the judgments have reached every item: warm up
+  // with random questions, each anchored at the least judged of a few random items.
+  std::vector<int> warm_counts;
+  if (options_.warm_up_judgments > 0 && (!in.features || in.features->cols() == 0)) {
+    warm_counts = judgment_counts(in, size_t(n));
+    if (*std::min_element(warm_counts.begin(), warm_counts.end()) >= options_.warm_up_judgments) warm_counts.clear();
+  }
+  const bool warming_up = !warm_counts.empty() && options_.rule != PickerRule::kRandom;
+  const bool random_now = options_.rule == PickerRule::kRandom || warming_up ||
                           (options_.random_share > 0 &&
                            uniform01(rng_) < options_.random_share);
   if (random_now) {
     const PickerRule rule = options_.rule;
-    options_.rule = PickerRule::kRandom;
-    q.anchor = choose_anchor(in, {});
+    if (!warming_up) options_.rule = PickerRule::kRandom;
+    q.anchor = choose_anchor(in, warming_up ? warm_counts : std::vector<int>{});
     options_.rule = rule;
     auto item = [n](std::mt19937_64& g) { return int32_t(below(g, uint64_t(n))); };
     while (int(q.candidates.size()) < size) {

@@ -28,6 +28,9 @@
 //                      A question whose answer the model can already predict, or whose answer is
 //                      a coin toss wherever the anchor stands, gains little; one that splits the
 //                      anchor's plausible places in two gains most.
+//   warm-up:           with no features, random questions (anchor the least judged of a few
+//                      random items) until every item is named by warm_up_judgments judgments;
+//                      before that the map carries no information to score questions on.
 //   grid:              anchor + N candidates grown greedily, each new candidate adding the most
 //                      information over pairs with those already chosen;
 //   selection:         either rule, with the anchor restricted to a set of items.
@@ -60,6 +63,11 @@ struct PickerOptions {
   int anchor_draws = 8;        // anchor = least-judged of this many random items (default: 8)
   int anchors_scored = 3;      // anchors tried; the one whose best question gains most wins (default: 3)
   double random_share = 0.0;   // share of questions asked at random, to keep the map honest globally (default: 0)
+  // With no features (none given, or zero columns): random questions, anchored at the least judged
+  // of anchor_draws random items, until every item is named by this many judgments; 0 = never.
+  // The asking desk sets kWarmUpJudgments for a collection without features. (default: 0)
+  int warm_up_judgments = 0;
+  static constexpr int kWarmUpJudgments = 2;
   int samples = 256;           // candidate places for the anchor's posterior (default: 256)
   int scored_places = 48;      // places drawn from the posterior to score pairs; 0 = all (default: 48)
   double local_share = 0.5;    // share of the places drawn around the anchor's own position (default: 0.5)

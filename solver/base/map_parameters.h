@@ -26,6 +26,9 @@ struct MapParameters {
   double perplexity = kDefaultPerplexity;  // > 0 and below the item count (default: 30, see above)
   double theta = 0.5;          // Barnes-Hut angle, 0 .. 1.5 (default: 0.5)
   double dof = 1.0;            // Student-t degrees of freedom, 0.05 .. 100 (default: 1)
+  // The dof a collection without features is fitted with unless one is given: measured on a
+  // planted 3-D map of 60 items (README, "Judgments alone"; tests/test_judgments_alone_cli.cpp).
+  static constexpr double kJudgmentsAloneDof = 2.0;
   double learning_rate = 0.0;  // <= 0: auto, see solver/fit/schedule.h (default: auto)
   double blend = 1.0;          // weight of judgments against features, 0 .. 1000 (default: 1)
   double exaggeration = 1.0;   // the neighbour term's factor after the early phase, 0.01 .. 100 (default: 1)

@@ -6,6 +6,7 @@
 #include <cstdio>
 
 #include "solver/objective/blended_objective.h"
+#include "solver/fit/blended_fit.h"
 #include "solver/features/feature_prep.h"
 #include "solver/objective/neighbour_term.h"
 #include "solver/features/neighbours.h"
@@ -87,13 +88,41 @@ FitSummary run_schedule(ObjectiveTerm& objective, const std::function<void(doubl
   return summary;
 }
 
+namespace {
+
+// No features: the judgments' t-STE term alone (no KL term, so no exaggeration) from a seeded
+// Gaussian start of standard deviation kJudgmentsStartScale.
+constexpr double kJudgmentsStartScale = 1e-2;
+
+FitResult fit_judgments_alone(size_t n, const FitOptions& options, const ProgressFn& progress) {
+  const auto t0 = Clock::now();
+  FitResult r;
+  r.features_note = "no features: placed from " + std::to_string(options.judgments.size()) + " judgments alone";
+  BlendedObjective objective(n, options.dims);
+  objective.set_alpha(options.dof);
+  objective.set_judgments(options.judgments);  // throws JudgmentError for an unknown item
+  r.map = random_start(n, options.dims, options.seed, kJudgmentsStartScale);
+  LoopOptions loop;
+  loop.schedule.learning_rate = options.learning_rate;
+  loop.schedule.exaggeration_iterations = 0;  // nothing to exaggerate
+  loop.iterations = options.iterations;
+  r.summary = run_schedule(objective, {}, r.map, loop, progress);
+  r.summary.kl = 0.0;  // there is no KL term
+  r.summary.seconds = since(t0);
+  return r;
+}
+
+}  // namespace
+
 FitResult fit_map(const Points& features, const FitOptions& options, const ProgressFn& progress) {
   const auto t0 = Clock::now();
   const size_t n = size_t(features.rows());
   std::string error;
   if (n < 3) throw std::invalid_argument("a map needs at least 3 items (got " + std::to_string(n) + ")");
-  if (features.cols() < 1) throw std::invalid_argument("the items have no feature columns");
-  if (!options.IsValid(&error, n)) throw std::invalid_argument(error);
+  if (features.cols() < 1 && options.judgments.empty())
+    throw std::invalid_argument("the items have no feature columns and there are no judgments to place them by");
+  if (!options.IsValid(&error, features.cols() > 0 ? n : 0)) throw std::invalid_argument(error);
+  if (features.cols() < 1) return fit_judgments_alone(n, options, progress);
   for (Eigen::Index i = 0; i < features.rows(); ++i)
     for (Eigen::Index c = 0; c < features.cols(); ++c)
       if (!std::isfinite(features(i, c)))

@@ -5,7 +5,9 @@
 //   -> run_schedule(NeighbourTerm) for `iterations` steps of the Schedule (schedule.h).
 // run_schedule is the loop itself and takes any ObjectiveTerm plus a hook that sets the
 // exaggeration, so the blended objective (solver/objective/blended_objective.h) runs the same schedule.
-// Divergence (NaN, infinite or exploding coordinates) throws DivergenceError; the map is not
+// Items without features (features N x 0) are placed from options.judgments alone: the t-STE
+// term from a seeded Gaussian start, no KL term, no exaggeration; FitResult::features and p stay
+// empty. Divergence (NaN, infinite or exploding coordinates) throws DivergenceError; the map is not
 // returned. Functions here may be called from any thread; they share no state.
 #pragma once
 #include <cstdint>

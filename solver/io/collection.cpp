@@ -387,12 +387,23 @@ Collection load_table(std::string data, const std::string& name, const LoadOptio
   const size_t rows = t.rows(), cols = t.columns();
   check_too_few(name, t.end_line, rows, options, "rows below the header");
 
-  if (roles.features.empty() && !options.allow_no_features) {
+  // Names alone (an id column, perhaps tags or pictures, no numeric column at all) are a
+  // collection without features, embedded from its judgments; numbers all excluded, or no ids
+  // to name the items by, are still a mistake.
+  if (roles.features.empty()) {
     std::vector<std::string> text, excluded;
     for (size_t j : roles.tags) (cells.stats[j].numeric() ? excluded : text).push_back(names[j]);
-    std::string message = "expected at least one numeric feature column, found none (text columns: " + join(text);
-    if (!excluded.empty()) message += "; excluded: " + join(excluded);
-    fail(name, t.header_line, 0, message + ")");
+    const bool names_alone = roles.id != kNone && excluded.empty();
+    if (!names_alone && !options.allow_no_features) {
+      std::string message = "expected at least one numeric feature column, found none (text columns: " + join(text);
+      if (!excluded.empty()) message += "; excluded: " + join(excluded);
+      if (roles.id == kNone && excluded.empty()) message += "; nor an id column of unique names to judge them by";
+      fail(name, t.header_line, 0, message + ")");
+    }
+    if (names_alone)
+      c.warnings.push_back(Problem{name, t.header_line, 0,
+                                   "no numeric feature columns: the items are placed from judgments alone "
+                                   "(kith fit --judgments FILE, or ask in kith open)"});
   }
   // Feature values, row by row so the first problem in the file is the one reported.
   const size_t nf = roles.features.size();

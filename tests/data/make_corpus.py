@@ -54,7 +54,7 @@ write(BAD, "empty_value.csv", "id,width,height\nfern,1,2\nmoss,,4\nsage,5,6\n")
 write(BAD, "nan.csv", "id,width,height\nfern,1,2\nmoss,3,nan\nsage,5,6\n")
 write(BAD, "infinite.csv", "id,width,height\nfern,1,2\nmoss,3,4\nsage,-inf,6\n")
 write(BAD, "overflow.csv", "id,width,height\nfern,1,2\nmoss,3,1e999\nsage,5,6\n")
-write(BAD, "no_features.csv", "id,colour,family\nfern,green,plant\nmoss,green,plant\n")
+write(BAD, "no_features.csv", "colour,family\ngreen,plant\ngreen,plant\n")
 write(BAD, "duplicate_id.csv", "id,width,height\nfern,1,2\nmoss,3,4\nfern,5,6\n")
 write(BAD, "empty_id.csv", "id,width,height\nfern,1,2\n,3,4\n")
 write(BAD, "duplicate_column.csv", "id,width,width\nfern,1,2\nmoss,3,4\n")
@@ -86,7 +86,7 @@ write(BAD, "nan.npy", npy("<f8", (2, 3), f8([1, 2, 3, 4, float("nan"), 6])))
 write(BAD, "inf_f4.npy", npy("<f4", (2, 2), f4([1, float("inf"), 3, 4])))
 write(BAD, "one_row.npy", npy("<f8", (1, 2), f8([1, 2])))
 write(BAD, "tags_too_short.npy", npy("<f8", (3, 2), f8([1, 2, 3, 4, 5, 6])))
-write(BAD, "tags_too_short.csv", "id,family\nfern,plant\nmoss,plant\n")
+write(BAD, "tags_too_short.csv", "family\nplant\nplant\n")
 
 # ---- good files ----------------------------------------------------------------------------
 # RFC 4180 quoting: separators, doubled quotes and line breaks inside quoted fields.

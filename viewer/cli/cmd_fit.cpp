@@ -133,10 +133,12 @@ int cmd_fit(const Args& args) {
       std::fprintf(stderr, "kith fit: %s has %zu pins; kith fit does not hold items in place (kith open does)\n",
                    input.c_str(), in->session->pins().size());
   }
-  if (c.features.cols() == 0) {
-    std::fprintf(stderr, "kith fit: %s has no feature columns (numbers) to compute a map from\n", input.c_str());
-    return kExitBadInput;
-  }
+  const bool names_alone = c.features.cols() == 0;
+  if (names_alone && judgments_path.empty() && o.judgments.empty())
+    return flags.usage_error(input +
+                             " has no feature columns (numbers), so its map comes from judgments alone: give "
+                             "--judgments FILE (or ask them in kith new and kith open)");
+  if (names_alone && !flags.has("--dof")) o.dof = MapParameters::kJudgmentsAloneDof;
   if (c.size() < 3) {
     std::fprintf(stderr, "kith fit: %s has %zu items; a map needs at least 3\n", input.c_str(), c.size());
     return kExitBadInput;
@@ -191,7 +193,7 @@ int cmd_fit(const Args& args) {
   HealthOptions ho;
   ho.seed = o.seed;
   ho.threads = o.threads;
-  MapHealth h = measure_health(r.features, r.map, ho);
+  MapHealth h = names_alone ? MapHealth{} : measure_health(r.features, r.map, ho);
   h.kl = r.summary.kl;
   Layout layout;
   layout.collection = &c;

@@ -62,6 +62,7 @@ int cmd_new(const Args& args) {
   const std::optional<CollectionInput> in = read_input(flags, flags.positional()[0], &code);
   if (!in) return code;
   const Collection& collection = in->collection;
+  if (collection.features.cols() == 0 && !flags.has("--dof")) settings.dof = MapParameters::kJudgmentsAloneDof;
   // The settings as the engine will take them, before anything is written.
   if (std::string why; !settings.IsValid(&why, collection.size())) return flags.usage_error(why);
 

@@ -155,7 +155,13 @@ AskingDesk::AskingDesk(const Collection& collection, DeskLinks links, QuestionFl
               in.judgments = &js;
               return picker_.next(in, kind, n, k);
             }),
-      picker_(picker) {}
+      picker_(picker) {
+  // Names alone: random questions until every item has a few judgments (picker.h, warm-up).
+  if (collection_.features.cols() == 0 && picker_.options().warm_up_judgments == 0) {
+    picker.warm_up_judgments = PickerOptions::kWarmUpJudgments;
+    picker_ = Picker(picker);
+  }
+}
 
 void AskingDesk::set_mode(AskingMode mode) {
   if (mode == AskingMode::kPair || mode == AskingMode::kGrid) {

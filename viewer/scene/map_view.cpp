@@ -12,6 +12,14 @@
 
 namespace kith {
 
+namespace {
+// How far an item no judgment names is drawn toward the ground, in a collection without features.
+constexpr float kUnjudgedFade = 0.65f;
+Rgb toward(const Rgb& c, const Rgb& to, float t) {
+  return {c.r + (to.r - c.r) * t, c.g + (to.g - c.g) * t, c.b + (to.b - c.b) * t};
+}
+}  // namespace
+
 // ============================================================================ [options]
 
 std::string ViewOptions::IsValid() const {
@@ -84,6 +92,7 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
         if (i >= 0 && size_t(i) < judgment_count_.size()) ++judgment_count_[i];
     }
     if (options_.colour_by.kind == ColourKind::kJudgments) dirty_colours_ = true;
+    dirty_points_ = true;  // the faded items of a collection without features
   }
   update_bounds();
   if (first) {
@@ -334,7 +343,10 @@ void MapView::rebuild_points() {
   }
   for (size_t k = 0; k < positions_.size(); ++k) {
     const size_t i = size_t(draw_order_[k]);
-    const Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
+    Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
+    // Names alone: an item no judgment names yet has no place of its own; drawn faded.
+    if (collection_.features.cols() == 0 && i < judgment_count_.size() && judgment_count_[i] == 0)
+      c = toward(c, palette_.ground, kUnjudgedFade);
     uint32_t flags = 0;
     if (selection_.contains(int(i))) flags |= kPointSelected;
     if (i < pinned_.size() && pinned_[i]) flags |= kPointPinned;
