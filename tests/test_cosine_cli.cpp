@@ -58,7 +58,7 @@ TEST_CASE("cosine cli: digits rows scaled by random factors map as their unit ro
   CHECK(t_cosine > t_euclidean + kMargin);
 }
 
-TEST_CASE("cosine cli: a row of zeros is bad input naming its line; a session keeps the metric") {
+TEST_CASE("cosine cli: a row of zeros is bad input naming its line, and a session keeps the metric") {
   const std::string dir = kith::test::temp_dir("kith-cosine-zero");
   {
     std::ofstream f(dir + "/zero.csv");

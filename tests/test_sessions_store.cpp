@@ -388,7 +388,7 @@ static std::string setting_row(const std::string& path, const char* key) {
   return value;
 }
 
-TEST_CASE("sessions: a version 2 file (no metric) is migrated and opens as euclidean; a cosine session keeps it") {
+TEST_CASE("sessions: a version 2 file (no metric) is migrated and opens as euclidean, and a cosine session keeps it") {
   const std::string dir = kith::test::temp_dir("kith-migrate-metric");
   kith::MapParameters cosine;
   cosine.metric = kith::Metric::kCosine;
