@@ -359,6 +359,7 @@ TEST_CASE("sessions: a version 1 file is migrated after a backup, and keeps ever
   CHECK(e > 0);
   REQUIRE(store->events().size() == 1);
   CHECK(store->events()[0].kind == "cant_tell");
+  CHECK(store->settings().metric == kith::Metric::kEuclidean);  // sessions before version 3 were Euclidean
   store.reset();
 
   // The backup is still a version 1 session with the same judgments.
@@ -371,6 +372,58 @@ TEST_CASE("sessions: a version 1 file is migrated after a backup, and keeps ever
   CHECK(sqlite3_column_int(q, 1) == 1);
   sqlite3_finalize(q);
   sqlite3_close(db);
+}
+
+// The value of one key of a session's settings table, "" when there is no such row.
+static std::string setting_row(const std::string& path, const char* key) {
+  sqlite3* db = nullptr;
+  REQUIRE(sqlite3_open_v2(path.c_str(), &db, SQLITE_OPEN_READONLY, nullptr) == SQLITE_OK);
+  sqlite3_stmt* q = nullptr;
+  REQUIRE(sqlite3_prepare_v2(db, "SELECT value FROM settings WHERE key = ?", -1, &q, nullptr) == SQLITE_OK);
+  sqlite3_bind_text(q, 1, key, -1, SQLITE_TRANSIENT);
+  std::string value;
+  if (sqlite3_step(q) == SQLITE_ROW) value = reinterpret_cast<const char*>(sqlite3_column_text(q, 0));
+  sqlite3_finalize(q);
+  sqlite3_close(db);
+  return value;
+}
+
+TEST_CASE("sessions: a version 2 file (no metric) is migrated and opens as euclidean, and a cosine session keeps it") {
+  const std::string dir = kith::test::temp_dir("kith-migrate-metric");
+  kith::MapParameters cosine;
+  cosine.metric = kith::Metric::kCosine;
+  const std::string path = dir + "/cosine.kith";
+  SessionStore::create(path, kith::test::swatch_collection(40, 4, 2), cosine).reset();
+  CHECK(setting_row(path, "metric") == "cosine");
+  CHECK(SessionStore::open(path, {true})->settings() == cosine);
+
+  // As kith wrote version 2 files: no metric row.
+  sqlite3* db = nullptr;
+  REQUIRE(sqlite3_open(path.c_str(), &db) == SQLITE_OK);
+  REQUIRE(sqlite3_exec(db, "DELETE FROM settings WHERE key = 'metric'; PRAGMA user_version = 2;", nullptr, nullptr,
+                       nullptr) == SQLITE_OK);
+  sqlite3_close(db);
+  CHECK(SessionStore::inspect(path).schema_version == 2);
+  {
+    auto store = SessionStore::open(path);
+    CHECK(store->migration_backup().find(".schema-v2") != std::string::npos);
+    CHECK(store->settings().metric == kith::Metric::kEuclidean);
+  }
+  CHECK(setting_row(path, "metric") == "euclidean");  // the step wrote it
+  CHECK(SessionStore::inspect(path).schema_version == kith::kSessionSchemaVersion);
+
+  // A metric kith does not know is damage, named.
+  REQUIRE(sqlite3_open(path.c_str(), &db) == SQLITE_OK);
+  REQUIRE(sqlite3_exec(db, "UPDATE settings SET value = 'manhattan' WHERE key = 'metric';", nullptr, nullptr,
+                       nullptr) == SQLITE_OK);
+  sqlite3_close(db);
+  try {
+    SessionStore::open(path, {true})->settings();
+    FAIL("an unknown metric was read");
+  } catch (const SessionError& e) {
+    CHECK(e.kind() == SessionError::Kind::kCorrupt);
+    CHECK(std::string(e.what()).find("'manhattan'") != std::string::npos);
+  }
 }
 
 TEST_CASE("sessions: events and renamed people are kept, a copy saved as is complete and never overwrites") {

@@ -61,7 +61,16 @@ bool MapParameters::IsValid(std::string* error, size_t item_count) const {
 bool MapParameters::operator==(const MapParameters& o) const {
   return dims == o.dims && perplexity == o.perplexity && theta == o.theta && dof == o.dof &&
          learning_rate == o.learning_rate && blend == o.blend && exaggeration == o.exaggeration && seed == o.seed &&
-         iterations == o.iterations;
+         iterations == o.iterations && metric == o.metric;
+}
+
+const char* metric_name(Metric metric) { return metric == Metric::kCosine ? "cosine" : "euclidean"; }
+
+bool parse_metric(const std::string& text, Metric* metric) {
+  if (text == "euclidean") *metric = Metric::kEuclidean;
+  else if (text == "cosine") *metric = Metric::kCosine;
+  else return false;
+  return true;
 }
 
 double MapParameters::perplexity_for(size_t item_count) const {

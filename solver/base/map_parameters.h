@@ -12,6 +12,11 @@
 //               is too coarse to be useful.
 //   dof         the Student-t degrees of freedom of the map kernel (1 = the usual t-SNE kernel).
 //   blend       the weight of the judgment term against the neighbour term (README, "Blend").
+//   metric      how two items' features are compared: euclidean, or cosine: every row is divided
+//               by its length first (a zero row is bad input), so that the squared distance of
+//               two items is |u - v|^2 = 2 (1 - cos(x, y)), twice their cosine distance. The
+//               perplexity calibration absorbs the factor 2, so a cosine map of rows is the
+//               Euclidean map of the same rows scaled to length 1 (solver/features/feature_prep.h).
 // Plain values; any thread.
 #pragma once
 #include <cstddef>
@@ -19,6 +24,12 @@
 #include <string>
 
 namespace kith {
+
+// How features are compared (see `metric` above).
+enum class Metric { kEuclidean, kCosine };
+const char* metric_name(Metric metric);  // "euclidean", "cosine"
+// False (leaving *metric) when TEXT is neither name.
+bool parse_metric(const std::string& text, Metric* metric);
 
 struct MapParameters {
   int dims = 3;                // map dimensions, 2 or 3 (default: 3)
@@ -34,6 +45,7 @@ struct MapParameters {
   double exaggeration = 1.0;   // the neighbour term's factor after the early phase, 0.01 .. 100 (default: 1)
   uint64_t seed = 42;          // neighbour graph, start noise, questions (default: 42)
   int64_t iterations = 1000;   // gradient steps of a batch fit, 1 .. 10,000,000 (default: 1000)
+  Metric metric = Metric::kEuclidean;  // feature distance (default: euclidean)
 
   // The first impossible value, as a readable message naming the setting, its range and what
   // was given. item_count > 0 also checks the perplexity against the collection's size.

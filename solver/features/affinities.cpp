@@ -154,6 +154,7 @@ SparseAffinities joint_affinities_for(const Points& features, double perplexity,
   NeighbourOptions no;
   no.seed = search.seed;
   no.threads = search.threads;
+  no.metric = search.metric;
   if (search.exact) no.exact_below = size_t(-1);
   const size_t k = std::max<size_t>(neighbour_count(size_t(features.rows()), perplexity), 1);
   NeighbourGraph found = find_neighbours(features, k, no);

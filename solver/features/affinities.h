@@ -36,6 +36,9 @@ struct AffinitySearch {
   uint64_t seed = 42;   // HNSW's graph (default: 42)
   int threads = 0;      // 0 = all (default: 0)
   bool exact = false;   // exact neighbours at any size (default: false, exact below NeighbourOptions' threshold)
+  // The neighbours' metric (neighbours.h). Features from prepare_features already carry the map's
+  // metric in their rows (feature_prep.h), so the map's paths leave this at euclidean.
+  Metric metric = Metric::kEuclidean;  // (default: euclidean)
 };
 
 // The one path from (prepared) features to P: the k = neighbour_count(N, perplexity) nearest

@@ -1,4 +1,8 @@
 // Feature preparation before the neighbour search, and the PCA start of the map.
+//   metric:       under Metric::kCosine each row is first divided by its length (unit_rows,
+//                 neighbours.h), so every later step -- PCA, the neighbour search, the affinities,
+//                 the health figures -- compares items by the Euclidean distance of unit rows,
+//                 whose square is 2 (1 - cos): the cosine metric is decided here, once
 //   standardize:  x_ic <- (x_ic - mean_c) / std_c   (population std; constant columns left at 0)
 //   reduce:       when F > max_dims, project the centred features on their first max_dims
 //                 principal axes (eigenvectors of the covariance, largest variance first)
@@ -10,6 +14,7 @@
 #include <cstdint>
 #include <string>
 
+#include "solver/base/map_parameters.h"
 #include "solver/base/points.h"
 
 namespace kith {
@@ -17,6 +22,7 @@ namespace kith {
 struct FeaturePrepOptions {
   bool standardize = false;  // scale every feature column to unit variance (default: false)
   int max_dims = 50;         // PCA down to this many dims when wider; 0 = never (default: 50)
+  Metric metric = Metric::kEuclidean;  // kCosine: rows scaled to length 1 after standardizing (default: euclidean)
 };
 
 struct Pca {
@@ -26,10 +32,18 @@ struct Pca {
   Points project(const Points& x) const;  // (x - mean) * axes
 };
 
+// The preparation every map path uses: the defaults with the map's metric.
+inline FeaturePrepOptions map_prep(Metric metric) {
+  FeaturePrepOptions o;
+  o.metric = metric;
+  return o;
+}
+
 // The first m principal axes of x's rows (m <= F).
 Pca fit_pca(const Points& x, int m);
 
-// Standardization and reduction as above; `note` (if given) gets a one-line description.
+// Standardization, the metric's unit rows and reduction as above (in that order); throws
+// std::invalid_argument for a row without direction under cosine; `note` (if given) gets a one-line description.
 Points prepare_features(const Points& x, const FeaturePrepOptions& options, std::string* note = nullptr);
 
 // The PCA start of a map with `dims` columns; column 0 has standard deviation `first_std`.

@@ -12,6 +12,7 @@
 #include <hnswlib/hnswlib.h>
 
 #include <algorithm>
+#include <cmath>
 #include <memory>
 #include <numeric>
 #include <stdexcept>
@@ -97,7 +98,26 @@ void hnsw_search(const Points& x, size_t k, const NeighbourOptions& options, Nei
 
 }  // namespace
 
-NeighbourGraph find_neighbours(const Points& x, size_t k, const NeighbourOptions& options) {
+Eigen::Index first_zero_row(const Points& x) {
+  for (Eigen::Index i = 0; i < x.rows(); ++i) {
+    const double length = x.row(i).norm();
+    if (!(length > 0) || !std::isfinite(length)) return i;
+  }
+  return -1;
+}
+
+Points unit_rows(const Points& x) {
+  if (const Eigen::Index bad = first_zero_row(x); bad >= 0)
+    throw std::invalid_argument("row " + std::to_string(bad + 1) +
+                                " has no direction (all its features are 0), so it has no cosine distance");
+  return x.rowwise().normalized();
+}
+
+NeighbourGraph find_neighbours(const Points& given, size_t k, const NeighbourOptions& options) {
+  // Under cosine the search runs on the unit rows (a copy), so both paths below stay Euclidean.
+  Points unit;
+  if (options.metric == Metric::kCosine) unit = unit_rows(given);
+  const Points& x = options.metric == Metric::kCosine ? unit : given;
   const size_t n = size_t(x.rows());
   if (n < 2) throw std::invalid_argument("find_neighbours: need at least 2 items");
   if (k == 0 || k > n - 1) throw std::invalid_argument("find_neighbours: k must be in 1 .. N-1");

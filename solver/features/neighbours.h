@@ -1,10 +1,13 @@
-// k nearest neighbours in feature space (squared Euclidean distance), excluding the item itself.
+// k nearest neighbours in feature space, excluding the item itself, by squared Euclidean distance,
+// or under Metric::kCosine by the squared Euclidean distance of the rows scaled to length 1:
+//   |x/|x| - y/|y||^2 = 2 (1 - cos(x, y)),  twice the cosine distance (same order, same neighbours).
 // Exact (blocked Eigen products) below NeighbourOptions::exact_below items, HNSW (hnswlib) above.
 // Deterministic for a given seed. Pure functions; safe to call from any thread.
 #pragma once
 #include <cstdint>
 #include <vector>
 
+#include "solver/base/map_parameters.h"
 #include "solver/base/points.h"
 
 namespace kith {
@@ -21,7 +24,14 @@ struct NeighbourOptions {
   size_t exact_below = 20000;  // exact search for fewer items than this (default: 20000)
   uint64_t seed = 42;          // HNSW level generator seed (default: 42)
   int threads = 0;             // 0 = all hardware threads (default: 0)
+  Metric metric = Metric::kEuclidean;  // see above (default: euclidean)
 };
+
+// Row r divided by its length; throws std::invalid_argument naming the first row (1-based) whose
+// length is 0 (or not finite), which has no direction.
+Points unit_rows(const Points& x);
+// The first row (0-based) without a direction (length 0 or not finite), or -1.
+Eigen::Index first_zero_row(const Points& x);
 
 NeighbourGraph find_neighbours(const Points& x, size_t k, const NeighbourOptions& options = {});
 

@@ -8,6 +8,7 @@
 
 #include "solver/base/portable_random.h"
 #include "solver/features/feature_prep.h"
+#include "solver/features/neighbours.h"
 
 namespace kith {
 namespace {
@@ -89,6 +90,10 @@ Points prepare_features(const Points& x, const FeaturePrepOptions& options, std:
       if (sd > 0) out.col(c) /= sd;
     }
     what = "standardized";
+  }
+  if (options.metric == Metric::kCosine) {
+    out = unit_rows(out);
+    what += what.empty() ? "rows scaled to length 1 (cosine)" : ", rows scaled to length 1 (cosine)";
   }
   if (options.max_dims > 0 && out.cols() > options.max_dims) {
     const Pca p = fit_pca(out, options.max_dims);

@@ -132,6 +132,7 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
   FeaturePrepOptions prep;
   prep.standardize = options.standardize;
   prep.max_dims = options.pca_dims;
+  prep.metric = options.metric;
   r.features = prepare_features(features, prep, &r.features_note);
 
   // The graph (12 bytes per neighbour) is not kept once P exists.

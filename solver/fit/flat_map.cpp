@@ -34,7 +34,7 @@ Points flatten_map(const Collection& collection, const Points& map3d, const std:
   BlendedObjective objective(n, 2);
   std::shared_ptr<NeighbourTerm> term;
   if (collection.features.cols() > 0) {
-    const Points features = prepare_features(collection.features, FeaturePrepOptions{});
+    const Points features = prepare_features(collection.features, map_prep(options.metric));
     NeighbourTermOptions topt;
     topt.dof = options.dof;
     topt.theta = options.theta;

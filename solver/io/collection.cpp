@@ -428,6 +428,7 @@ Collection load_table(std::string data, const std::string& name, const LoadOptio
     }
   }
   for (size_t j : roles.features) c.feature_names.push_back(names[j]);
+  for (size_t r = 0; r < rows; ++r) c.lines.push_back(t.line(r));
 
   if (roles.id != kNone) {
     c.id_column = names[roles.id];

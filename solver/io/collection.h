@@ -53,6 +53,7 @@ struct Collection {
   std::string picture_column;              // name of the picture column, "" if none
   std::vector<std::string> pictures;       // resolved paths, one per item, or empty if none
   std::vector<Problem> warnings;
+  std::vector<long> lines;                 // CSV/TSV: the line each item's row starts on; else empty
 
   size_t size() const { return ids.size(); }
   // Index of an item by id; nullopt if unknown. Uses the lookup table made by the loaders (or by

@@ -126,7 +126,7 @@ class EngineModel : public LiveModel {
     objective_.set_judgments(std::move(judgments));
     objective_.set_blend(options.blend);
     objective_.set_alpha(options.dof);
-    if (has_features_) prepared_ = std::make_shared<const Points>(prepare_features(*raw_, FeaturePrepOptions{}));
+    if (has_features_) prepared_ = std::make_shared<const Points>(prepare_features(*raw_, map_prep(options.metric)));
     if (start.size() > 0) {
       if (start.rows() != Eigen::Index(n) || start.cols() != options.dims)
         throw std::invalid_argument("the start map is " + std::to_string(start.rows()) + " x " +
@@ -383,6 +383,10 @@ class EngineModel : public LiveModel {
                         std::to_string(c->features.cols()),
                nullptr;
       if (!c->features.allFinite()) return *error = "features: NaN or infinite values", nullptr;
+      if (o.metric == Metric::kCosine && first_zero_row(c->features) >= 0)
+        return *error = "features: row " + std::to_string(first_zero_row(c->features) + 1) +
+                        " is all zeros, which has no cosine distance",
+               nullptr;
       if (c->regroup_iterations < 0 || !(c->regroup_exaggeration >= 1.0) || !std::isfinite(c->regroup_exaggeration))
         return *error = "features: regroup iterations must be >= 0 and exaggeration >= 1", nullptr;
       auto raw = std::make_shared<const Points>(c->features);
@@ -390,7 +394,7 @@ class EngineModel : public LiveModel {
       const int regroup = c->regroup_iterations;
       const double factor = c->regroup_exaggeration;
       return [this, raw, perplexity, regroup, factor, o]() -> Finish {
-        auto prepared = std::make_shared<const Points>(prepare_features(*raw, FeaturePrepOptions{}));
+        auto prepared = std::make_shared<const Points>(prepare_features(*raw, map_prep(o.metric)));
         auto p = build_affinities(*prepared, perplexity, o);
         return [this, raw, prepared, p, regroup, factor] {
           raw_ = raw;
@@ -411,6 +415,10 @@ class EngineModel : public LiveModel {
                       std::to_string(c.features.cols()),
              nullptr;
     if (!c.features.allFinite()) return *error = "insert: the features contain NaN or infinite values", nullptr;
+    if (o.metric == Metric::kCosine && has_features_ && first_zero_row(c.features) >= 0)
+      return *error = "insert: row " + std::to_string(first_zero_row(c.features) + 1) +
+                      " is all zeros, which has no cosine distance",
+             nullptr;
     {
       std::unordered_set<std::string> seen(ids_.begin(), ids_.end());
       for (const std::string& id : c.ids)
@@ -431,7 +439,7 @@ class EngineModel : public LiveModel {
       // Placement weights: each new item's existing neighbours, weighted by p(j|i).
       std::vector<std::vector<std::pair<int32_t, double>>> place(size_t(extra.rows()));
       if (has_features) {
-        prepared = std::make_shared<const Points>(prepare_features(*all, FeaturePrepOptions{}));
+        prepared = std::make_shared<const Points>(prepare_features(*all, map_prep(o.metric)));
         NeighbourGraph graph;
         p = std::make_shared<const SparseAffinities>(
             joint_affinities_for(*prepared, perplexity, {o.seed, o.threads}, &graph));

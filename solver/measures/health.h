@@ -1,4 +1,6 @@
-// Health measures of a map against its features.
+// Health measures of a map against its features. The map's paths pass the prepared features
+// (solver/features/feature_prep.h), which under the cosine metric are the unit rows (reduced by
+// PCA when wider, as for the neighbour search), so the figures then judge the map by angle.
 //   trustworthiness (Venna & Kaski 2001), exactly as scikit-learn's
 //   sklearn.manifold.trustworthiness defines it (Euclidean distances):
 //     T(k) = 1 - 2 / (n k (2n - 3k - 1)) * sum_i sum_{j in U_i} (r(i, j) - k)

@@ -260,6 +260,7 @@ void write_settings(Db& d, const SessionSettings& s) {
   put("seed", std::to_string(s.seed));
   put("exaggeration", num(s.exaggeration));
   put("iterations", std::to_string(s.iterations));
+  put("metric", metric_name(s.metric));
 }
 
 std::string iso_time(double t) {

@@ -90,8 +90,11 @@ inline const char* const kRequiredTables[] = {"meta",   "settings",  "feature_co
 
 // Migration steps: kMigrations[v - 1] takes a file from version v to v + 1; a step is SQL run
 // inside the migration's transaction (after the backup copy is written).
-inline const std::vector<const char*> kMigrations = {kEventsTable};
-static_assert(kSessionSchemaVersion == 2, "a new schema version needs its migration step here");
+// Version 3 records the feature metric; sessions made before it compared features Euclidean.
+inline constexpr const char* kMetricSetting =
+    "INSERT OR IGNORE INTO settings(key, value) VALUES ('metric', 'euclidean');";
+inline const std::vector<const char*> kMigrations = {kEventsTable, kMetricSetting};
+static_assert(kSessionSchemaVersion == 3, "a new schema version needs its migration step here");
 static_assert(kSessionSchemaVersion >= 1, "schema versions start at 1");
 
 

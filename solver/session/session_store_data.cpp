@@ -147,6 +147,12 @@ SessionSettings SessionStore::settings() const {
   Stmt q(impl_->db, "SELECT key, value FROM settings");
   while (q.step()) {
     const std::string k = q.text(0), v = q.text(1);
+    if (k == "metric") {
+      if (!parse_metric(v, &s.metric))
+        throw SessionError(Kind::kCorrupt, impl_->path + ": damaged: setting 'metric' is '" + v +
+                                               "', not euclidean or cosine");
+      continue;
+    }
     try {
       if (k == "dims") s.dims = std::stoi(v);
       else if (k == "perplexity") s.perplexity = std::stod(v);

@@ -79,7 +79,8 @@ nlohmann::ordered_json fit_header(const Collection& c, const FitResult& r, const
                   {"seed", o.seed},
                   {"exact", o.exact},
                   {"learning_rate", r.summary.learning_rate},
-                  {"standardize", o.standardize}};
+                  {"standardize", o.standardize},
+                  {"metric", metric_name(o.metric)}};
   j["health"] = {{"kl", h.kl},
                  {"trustworthiness", h.trustworthiness},
                  {"neighbour_recall", h.neighbour_recall},
@@ -99,7 +100,7 @@ int cmd_fit(const Args& args) {
   FlagReader flags("fit", kUsage,
                    kOptions + load_flags() +
                        map_flags({"--dims", "--perplexity", "--iterations", "--theta", "--dof", "--seed",
-                                  "--learning-rate", "--blend"}),
+                                  "--learning-rate", "--blend", "--metric"}),
                    kFooter);
   if (!flags.read(args)) return flags.stop();
   if (!read_map_flags(flags, &o) || !flags.integer("--threads", &o.threads, 0)) return flags.usage_error();
@@ -144,6 +145,7 @@ int cmd_fit(const Args& args) {
     return kExitBadInput;
   }
   if (std::string error; !o.IsValid(&error, c.size())) return flags.usage_error(error);
+  if (const int bad = refuse_rows_without_direction("fit", c, o.metric)) return bad;
 
   if (!judgments_path.empty()) {
     JudgmentReadOptions jo;

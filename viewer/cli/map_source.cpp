@@ -3,6 +3,7 @@
 #include <cstdio>
 #include <filesystem>
 
+#include "solver/features/neighbours.h"
 #include "solver/io/safe_file.h"
 #include "viewer/cli/shared_flags.h"
 #include "viewer/cli/synthetic_collection.h"
@@ -93,6 +94,21 @@ std::optional<CollectionInput> read_input(FlagReader& flags, const std::string& 
   if (!loaded) return std::nullopt;
   in.collection = std::move(*loaded);
   return in;
+}
+
+int refuse_rows_without_direction(const std::string& command, const Collection& c, Metric metric) {
+  if (metric != Metric::kCosine || c.features.cols() == 0) return kExitOk;
+  const Eigen::Index r = first_zero_row(c.features);
+  if (r < 0) return kExitOk;
+  Problem p;
+  p.file = c.source;
+  const bool has_line = size_t(r) < c.lines.size();
+  if (has_line) p.line = c.lines[size_t(r)];
+  p.message = (has_line ? "item '" : "row " + std::to_string(r + 1) + ", item '") + c.ids[size_t(r)] +
+              "' has every feature 0, so it has no direction; --metric cosine compares items by the "
+              "angle between their rows (drop the item, or use --metric euclidean)";
+  std::fprintf(stderr, "kith %s: %s\n", command.c_str(), p.str().c_str());
+  return kExitBadInput;
 }
 
 bool choose_colour(const std::string& command, const Collection& c, const std::string& colour, ViewOptions* view) {

@@ -50,6 +50,11 @@ std::optional<CollectionInput> read_input(FlagReader& flags, const std::string& 
 // given with one (see read_input).
 int refuse_reading_flags(const FlagReader& flags, const std::string& session_path);
 
+// Under --metric cosine every row needs a direction: 0, or 3 after printing
+// "kith COMMAND: FILE:LINE: ..." (for .npy "row R", for a session the item's id) for the first
+// row whose features are all 0.
+int refuse_rows_without_direction(const std::string& command, const Collection& collection, Metric metric);
+
 // --colour COLUMN: colours VIEW by that tag column ("plain": one colour; "": leaves it). False,
 // with "kith COMMAND: --colour: ..." on stderr, when the collection has no such column.
 bool choose_colour(const std::string& command, const Collection& collection, const std::string& colour,

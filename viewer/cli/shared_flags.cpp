@@ -29,11 +29,23 @@ std::string map_flag(const std::string& name, const MapParameters& d, const std:
                                                 is(d.learning_rate > 0 ? number_text(d.learning_rate) : "auto"));
   if (name == "--seed")
     return option_line("--seed S", "random seed: neighbour graph, start, questions" + is(std::to_string(d.seed)));
+  if (name == "--metric")
+    return option_line("--metric euclidean|cosine",
+                       "how items' features are compared: euclidean (straight-line distance), or\n"
+                       "cosine (by angle: each row is scaled to length 1 first, and distances are\n"
+                       "between those unit rows, sqrt(2 - 2 cos); a row of zeros is refused)" +
+                           is(metric_name(d.metric)));
   if (name == "--iterations")
     return option_line("--iterations N",
                        "gradient steps, the first 250 with early exaggeration" + is(std::to_string(d.iterations)));
   assert(false && "not a map setting");
   return "";
+}
+
+bool metric(FlagReader& f, Metric* out) {
+  std::string name = metric_name(*out);
+  if (!f.declared("--metric")) return true;
+  return f.choice("--metric", &name, {"euclidean", "cosine"}) && parse_metric(name, out);
 }
 
 std::string lines_for(const std::vector<std::string>& names, const MapParameters& defaults, const std::string& fixed) {
@@ -57,7 +69,8 @@ bool read_map_flags(FlagReader& f, MapParameters* s) {
   auto whole = [&](const char* name, auto* target) { return !f.declared(name) || f.integer(name, target); };
   return whole("--dims", &s->dims) && number("--perplexity", &s->perplexity) && number("--theta", &s->theta) &&
          number("--dof", &s->dof) && number("--blend", &s->blend) && number("--learning-rate", &s->learning_rate) &&
-         (!f.declared("--seed") || f.seed("--seed", &s->seed)) && whole("--iterations", &s->iterations);
+         (!f.declared("--seed") || f.seed("--seed", &s->seed)) && whole("--iterations", &s->iterations) &&
+         metric(f, &s->metric);
 }
 
 std::string load_flags() {

@@ -1,6 +1,6 @@
 // The options several commands share, each declared, described and read in one place:
 //   the map settings (--dims --perplexity --theta --dof --blend --learning-rate --seed
-//   --iterations), read into MapParameters (solver/base/map_parameters.h) and checked by its
+//   --iterations --metric), read into MapParameters (solver/base/map_parameters.h) and checked by its
 //   IsValid once the collection is loaded, before anything is written;
 //   how to read ITEMS (--id --exclude --pictures --tags), read into LoadOptions;
 //   the output rule (--force): every file a command writes goes through write_file_safely
