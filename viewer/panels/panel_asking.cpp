@@ -137,13 +137,19 @@ void AskingPanel::apply_large_type() {
   }
   view_.set_options(o);
   large_applied_ = want;
+  if (desk_->asking()) {  // the band's height changed: frame the map in what it leaves (next frame's banner)
+    banner_rect_ = {};
+    frame_map();
+  }
 }
 
 float AskingPanel::band_height() const {
   if (!desk_->asking()) return 0.f;
   const float h = ImGui::GetIO().DisplaySize.y;
   const bool grid = desk_->mode() == AskingMode::kGrid;
-  return std::floor(h * (grid ? 0.48f : 0.40f) * (desk_->large_type() ? 1.25f : 1.f));
+  // Big type on a short screen gives the band more of it: the question matters more than the map.
+  const float large = h < 720.f ? (grid ? 1.3f : 1.45f) : 1.25f;
+  return std::floor(h * (grid ? 0.48f : 0.40f) * (desk_->large_type() ? large : 1.f));
 }
 
 // The map framed in the part of the window the question screens leave free: between the turn
@@ -463,26 +469,26 @@ ScreenRect chip(ImDrawList* dl, ImFont* font, float size, ImVec2 at, const std::
 float chip_height(float size) { return size * (1.f + 0.36f) + 2.f; }
 }  // namespace
 
-void AskingPanel::card(int item, float x, float y, float side, const char* key, bool picked, uint32_t person_rgb,
-                       KeyAction action) {
+void AskingPanel::card(int item, float x, float y, float side_w, float side, const char* key, bool picked,
+                       uint32_t person_rgb, KeyAction action) {
   ImDrawList* dl = ImGui::GetWindowDrawList();
   const bool anchor = key == nullptr;
-  const ScreenRect box{x, y, x + side, y + side};
-  const ImVec2 at(x, y), end(x + side, y + side);
+  const ScreenRect box{x, y, x + side_w, y + side};
+  const ImVec2 at(x, y), end(x + side_w, y + side);
   ImFont* body = ImGui::GetFont();
   const float body_px = ImGui::GetFontSize();
   const float pad = std::max(6.f, side * 0.05f);
   // A click answers as the card's key does.
   ImGui::SetCursorScreenPos(at);
   ImGui::PushID(item);
-  const bool clicked = ImGui::InvisibleButton("##card", ImVec2(side, side));
+  const bool clicked = ImGui::InvisibleButton("##card", ImVec2(side_w, side));
   const bool hovered = ImGui::IsItemHovered() && action.action != AskingAction::kNone;
   ImGui::PopID();
   if (clicked && action.action != AskingAction::kNone) act(action);
   dl->AddRectFilled(at, end, rgb32(look_.card), 8.f);
   dl->PushClipRect(at, end, true);
   const float top_room = anchor ? chip_height(body_px) * 0.5f + 2.f : chip_height(body_px) + 4.f;
-  const float inner = side - 2 * pad;
+  const float inner = side_w - 2 * pad;
   if (const Texture* t = texture(item)) {
     // The picture, and its caption in a strip under it.
     const float strip = body_px * 1.4f;
@@ -494,7 +500,7 @@ void AskingPanel::card(int item, float x, float y, float side, const char* key, 
     const std::string full = caption_of(item);
     const std::string text = fit_text(full, inner, width_in(body, body_px));
     const ImVec2 ts = body->CalcTextSizeA(body_px, FLT_MAX, 0.f, text.c_str());
-    const ImVec2 tp(x + (side - ts.x) * 0.5f, y + side - pad - strip + (strip - ts.y) * 0.5f);
+    const ImVec2 tp(x + (side_w - ts.x) * 0.5f, y + side - pad - strip + (strip - ts.y) * 0.5f);
     dl->AddText(body, body_px, tp, rgb32(look_.ink), text.c_str());
     note_text("caption", text, full, rect_of(tp, ImVec2(tp.x + ts.x, tp.y + ts.y)), box);
   } else {
@@ -505,12 +511,24 @@ void AskingPanel::card(int item, float x, float y, float side, const char* key, 
     auto line = [&](const char* role, const std::string& full, ImFont* f, float px, uint32_t ink) {
       const std::string text = fit_text(full, inner, width_in(f, px));
       const ImVec2 ts = f->CalcTextSizeA(px, FLT_MAX, 0.f, text.c_str());
-      const ImVec2 tp(x + (side - ts.x) * 0.5f, ty);
+      const ImVec2 tp(x + (side_w - ts.x) * 0.5f, ty);
       dl->AddText(f, px, tp, rgb32(ink), text.c_str());
       note_text(role, text, full, rect_of(tp, ImVec2(tp.x + ts.x, tp.y + ts.y)), box);
       ty += px * 1.2f;
     };
-    line("title", caption_of(item), title_font, title_px, look_.ink);
+    // A title too long for one line breaks at a space onto a second (shortened there if need be).
+    const std::string title = caption_of(item);
+    const auto title_width = width_in(title_font, title_px);
+    size_t cut = std::string::npos;
+    if (title_width(title) > inner)
+      for (size_t k = title.find(' '); k != std::string::npos; k = title.find(' ', k + 1))
+        if (title_width(title.substr(0, k)) <= inner) cut = k;
+    if (cut == std::string::npos) {
+      line("title", title, title_font, title_px, look_.ink);
+    } else {
+      line("title", title.substr(0, cut), title_font, title_px, look_.ink);
+      line("title", title.substr(cut + 1), title_font, title_px, look_.ink);
+    }
     std::vector<std::string> lines;
     if (caption_of(item) != collection_.ids[size_t(item)]) lines.push_back(collection_.ids[size_t(item)]);
     for (size_t c = 0; c < collection_.tags.size(); ++c) {
@@ -535,17 +553,15 @@ void AskingPanel::card(int item, float x, float y, float side, const char* key, 
     dl->AddRect(at, end, rgb32(look_.edge), 8.f, 0, hovered ? 3.f : 1.5f);
   // The key chip (top left), the picked chip (top right), the anchor's badge (on the top edge).
   if (anchor) {
-    const ScreenRect b = chip(dl, body, body_px, ImVec2(x + side * 0.5f, y), "this one", look_.badge_ink, look_.badge, true);
+    const ScreenRect b =
+        chip(dl, body, body_px, ImVec2(x + side_w * 0.5f, y), "this one", look_.badge_ink, look_.badge, true);
     note_text("badge", "this one", "this one", b, screen_rect());
   } else {
-    const ScreenRect k = chip(dl, body, body_px, ImVec2(x + 6, y + 6), key, look_.key_ink, look_.key_chip);
-    note_text("key", key, key, k, box);
-    if (picked) {
-      const float w = body->CalcTextSizeA(body_px, FLT_MAX, 0.f, "picked").x + body_px * 0.9f;
-      const ScreenRect p =
-          chip(dl, body, body_px, ImVec2(x + side - 6 - w, y + 6), "picked", look_.picked_ink, look_.picked_chip);
-      note_text("picked", "picked", "picked", p, box);
-    }
+    // A picked card's key chip says so, in the picked colours.
+    const std::string text = picked ? std::string(key) + "  picked" : std::string(key);
+    const ScreenRect k = chip(dl, body, body_px, ImVec2(x + 6, y + 6), text, picked ? look_.picked_ink : look_.key_ink,
+                              picked ? look_.picked_chip : look_.key_chip);
+    note_text(picked ? "picked" : "key", text, text, k, box);
   }
 }
 
@@ -574,14 +590,14 @@ float AskingPanel::draw_foot(float y, bool measure_only) {
     KeyAction action;
   };
   const std::vector<Entry> entries = {
-      {pair ? "\xe2\x86\x93 or 0  can't tell" : "0  can't tell", {AskingAction::kCantTell}},
-      {!pair && !desk_->grid_picks().empty() ? "Backspace  unpick" : "Backspace  undo", {AskingAction::kUndo}},
+      {"0  can't tell", {AskingAction::kCantTell}},
+      {"Backspace  undo", {AskingAction::kUndo}},
       {"W  next person", {AskingAction::kNextPerson}},
       {pair ? "A  grid questions" : "A  pair questions", {pair ? AskingAction::kStartGrid : AskingAction::kStartPair}},
-      {desk_->large_type() ? "B  normal type" : "B  big type", {AskingAction::kLargeType}},
-      {"Esc  stop asking", {AskingAction::kLeave}},
+      {desk_->large_type() ? "B  smaller type" : "B  big type", {AskingAction::kLargeType}},
+      {"Esc  stop", {AskingAction::kLeave}},
   };
-  const float margin = 12.f, spacing = style.ItemSpacing.x * 2.f;
+  const float margin = 8.f, spacing = style.ItemSpacing.x * 1.5f;
   const float row_h = ImGui::GetFrameHeight() + style.ItemSpacing.y;
   // Rows: as many buttons as fit the width, each row centred.
   std::vector<std::vector<size_t>> rows(1);
@@ -692,19 +708,24 @@ void AskingPanel::draw_pair() {
     const Question shown = q;
     heading("Which is more like this one, left or right?", b.heading_y);
     const float badge = chip_height(ImGui::GetFontSize()) * 0.5f;
-    float anchor_side = std::floor(b.cards_h - badge);
-    float gap = std::max(32.f, io.DisplaySize.x * 0.05f);
-    // Three cards and two gaps within the width.
+    // Cards with text only are wider than tall (the band is short, the screen wide); pictures square.
+    const float aspect = collection_.pictures.empty() ? 1.5f : 1.f;
+    const float anchor_h = std::floor(b.cards_h - badge), side_h = std::floor(anchor_h * 0.82f);
+    float anchor_w = anchor_h * aspect, side_w = side_h * aspect;
+    const float gap = std::max(28.f, io.DisplaySize.x * 0.04f);
+    // Three cards and two gaps within the width: narrower first, then smaller.
     const float most = io.DisplaySize.x - 24.f;
-    if (anchor_side * (1.f + 2 * 0.82f) + 2 * gap > most) anchor_side = std::floor((most - 2 * gap) / (1.f + 2 * 0.82f));
-    const float side = std::floor(anchor_side * 0.82f);
-    const float total = anchor_side + 2 * side + 2 * gap;
+    if (anchor_w + 2 * side_w + 2 * gap > most) {
+      const float k = (most - 2 * gap) / (anchor_w + 2 * side_w);
+      anchor_w = std::floor(anchor_w * k), side_w = std::floor(side_w * k);
+    }
+    const float total = anchor_w + 2 * side_w + 2 * gap;
     const float x0 = std::floor((io.DisplaySize.x - total) * 0.5f);
-    const float ay = b.cards_y + badge, cy = ay + (anchor_side - side) * 0.5f;
+    const float ay = b.cards_y + badge, cy = ay + (anchor_h - side_h) * 0.5f;
     const uint32_t who = turn_colour();
-    card(shown.candidates[0], x0, cy, side, "\xe2\x86\x90  1", false, who, {AskingAction::kLeft});
-    card(shown.anchor, x0 + side + gap, ay, anchor_side, nullptr, false, who, {});
-    card(shown.candidates[1], x0 + side + gap + anchor_side + gap, cy, side, "\xe2\x86\x92  2", false, who,
+    card(shown.candidates[0], x0, cy, side_w, side_h, "\xe2\x86\x90  1", false, who, {AskingAction::kLeft});
+    card(shown.anchor, x0 + side_w + gap, ay, anchor_w, anchor_h, nullptr, false, who, {});
+    card(shown.candidates[1], x0 + side_w + gap + anchor_w + gap, cy, side_w, side_h, "\xe2\x86\x92  2", false, who,
          {AskingAction::kRight});
   }
   draw_status(b.status_y, b.status_h);
@@ -729,26 +750,29 @@ void AskingPanel::draw_grid() {
     const float badge = chip_height(ImGui::GetFontSize()) * 0.5f;
     const float gap = 12.f, apart = 36.f;
     const float avail_h = b.cards_h;
-    float side = std::floor(std::min((avail_h - (rows - 1) * gap) / rows, (io.DisplaySize.x * 0.7f - (cols - 1) * gap) / cols));
-    float anchor_side = std::floor(std::min(avail_h - badge, side * 1.5f));
+    const float aspect = collection_.pictures.empty() ? 1.4f : 1.f;
+    const float side = std::floor((avail_h - (rows - 1) * gap) / rows);
+    const float anchor_side = std::floor(std::min(avail_h - badge, side * 1.5f));
+    float side_w = side * aspect, anchor_w = anchor_side * aspect;
     const float most = io.DisplaySize.x - 24.f;
-    const float want = anchor_side + apart + cols * side + (cols - 1) * gap;
-    if (want > most) {
-      const float k = (most - apart - (cols - 1) * gap) / (anchor_side + cols * side);
-      side = std::floor(side * k), anchor_side = std::floor(anchor_side * k);
+    const float want = anchor_w + apart + cols * side_w + (cols - 1) * gap;
+    if (want > most) {  // narrower cards, so all fit the width
+      const float k = (most - apart - (cols - 1) * gap) / (anchor_w + cols * side_w);
+      side_w = std::floor(side_w * k), anchor_w = std::floor(anchor_w * k);
     }
-    const float total = anchor_side + apart + cols * side + (cols - 1) * gap;
+    const float total = anchor_w + apart + cols * side_w + (cols - 1) * gap;
     const float x0 = std::floor((io.DisplaySize.x - total) * 0.5f);
     const float grid_h = rows * side + (rows - 1) * gap;
     const uint32_t who = turn_colour();
-    card(shown.anchor, x0, b.cards_y + std::max(badge, (grid_h - anchor_side) * 0.5f), anchor_side, nullptr, false, who, {});
+    card(shown.anchor, x0, b.cards_y + std::max(badge, (grid_h - anchor_side) * 0.5f), anchor_w, anchor_side, nullptr,
+         false, who, {});
     const auto& picks = desk_->grid_picks();
     for (int k = 0; k < n; ++k) {
       const int r = k / cols, c = k % cols;
       const std::string key = std::to_string(k + 1);
       const bool picked = std::find(picks.begin(), picks.end(), k) != picks.end();
-      card(shown.candidates[size_t(k)], x0 + anchor_side + apart + c * (side + gap), b.cards_y + r * (side + gap), side,
-           key.c_str(), picked, who, {AskingAction::kPick, k});
+      card(shown.candidates[size_t(k)], x0 + anchor_w + apart + c * (side_w + gap), b.cards_y + r * (side + gap), side_w,
+           side, key.c_str(), picked, who, {AskingAction::kPick, k});
     }
   }
   draw_status(b.status_y, b.status_h);

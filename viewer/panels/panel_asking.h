@@ -91,7 +91,7 @@ class AskingPanel {
   float draw_foot(float y, bool measure_only);
   // One item as a neutral card at (x, y): picture or caption, id and tags; `key` its key chip
   // (nullptr for the anchor, which gets the badge), `action` what a click on it does.
-  void card(int item, float x, float y, float side, const char* key, bool picked, uint32_t person_rgb,
+  void card(int item, float x, float y, float width, float height, const char* key, bool picked, uint32_t person_rgb,
             KeyAction action);
   void apply_large_type();
   std::string caption_of(int item) const;

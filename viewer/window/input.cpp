@@ -218,10 +218,13 @@ void App::apply_script_events() {
 // Keys, the band's buttons, the Ask menu and the Map panel's button all come here.
 bool App::ask(KeyAction action) {
   const bool was = asking->desk().asking();
+  const AskingMode before = asking->desk().mode();
   if (!asking->run(action)) return false;
   if (!was && asking->desk().asking()) {  // a clean shared screen: the map above the question band
     show_panels = false;
     asking->frame_map();
+  } else if (asking->desk().asking() && asking->desk().mode() != before) {
+    asking->frame_map();  // pair and grid bands differ in height
   } else if (was && !asking->desk().asking()) {
     show_panels = options.panels;
     view->fit_all(true);
