@@ -15,6 +15,7 @@
 #include <string>
 
 #include "solver/io/collection.h"
+#include "solver/io/png_file.h"
 #include "tests/approx.h"
 #include "tests/window_support.h"
 #include "viewer/scene/label_placement.h"
@@ -75,7 +76,7 @@ void check_screen(const json& a, float width, float height, const std::string& w
       ++shortened;
       CHECK(ends_with_ellipsis(text));
     }
-    cards += t["role"] == "title" ? 1 : 0;
+    cards += t["role"] == "title" || t["role"] == "caption" ? 1 : 0;
   }
   CHECK(cards >= 3);
   MESSAGE(what << ": " << s["texts"].size() << " texts, " << shortened << " shortened, " << labels.size()
@@ -91,11 +92,34 @@ std::set<std::string> blend_names() {
   return {};
 }
 
-// Runs pair then grid questions on a copy of the tea blends; dumps and shots named PREFIX-*.
-void run_screens(const std::string& dir, const std::string& prefix, const std::string& args, bool big) {
-  const std::string items = dir + "/" + prefix + ".csv";
-  std::filesystem::copy_file(std::string(KITH_SOURCE_DIR) + "/assets/tea_blends.csv", items,
-                             std::filesystem::copy_options::overwrite_existing);
+// An invented collection with pictures: N solid-colour squares of a paint chart, each named.
+std::string write_paint_chart(const std::string& dir, int n) {
+  std::filesystem::create_directories(dir + "/chips");
+  std::ostringstream csv;
+  csv << "id,name,warmth,depth,picture\n";
+  for (int i = 0; i < n; ++i) {
+    const uint8_t r = uint8_t(40 + (i * 37) % 200), g = uint8_t(60 + (i * 53) % 180), b = uint8_t(30 + (i * 71) % 210);
+    std::vector<uint8_t> pixels(size_t(48 * 48 * 3));
+    for (size_t k = 0; k < pixels.size(); k += 3) pixels[k] = r, pixels[k + 1] = g, pixels[k + 2] = b;
+    const std::string png = "chips/chip-" + std::to_string(i) + ".png";
+    REQUIRE(kith::write_png_file(dir + "/" + png, pixels.data(), 48, 48, 3).empty());
+    csv << "chip-" << i << ",Harbour evening chip number " << i << "," << r / 255.0 << "," << (g + b) / 510.0 << ","
+        << png << "\n";
+  }
+  const std::string path = dir + "/paint.csv";
+  std::ofstream(path) << csv.str();
+  return path;
+}
+
+// Runs pair then grid questions on ITEMS (a copy of the tea blends when empty); dumps and shots
+// named PREFIX-*.
+void run_screens(const std::string& dir, const std::string& prefix, const std::string& args, bool big,
+                 std::string items = "") {
+  if (items.empty()) {
+    items = dir + "/" + prefix + ".csv";
+    std::filesystem::copy_file(std::string(KITH_SOURCE_DIR) + "/assets/tea_blends.csv", items,
+                               std::filesystem::copy_options::overwrite_existing);
+  }
   std::ostringstream script;
   const std::string p = dir + "/" + prefix;
   script << "3 wait-settle 60\n10 key A\n";
@@ -150,4 +174,23 @@ TEST_CASE("question screen window: labels apart, text inside its cards, at 1024x
   bool picked = false;
   for (const json& t : small_grid["screen"]["texts"]) picked |= t["role"] == "picked";
   CHECK(picked);
+}
+
+TEST_CASE("question screen window: picture cards keep their key and caption inside the card in big type at 1024x640") {
+  KITH_SKIP_WITHOUT_XVFB();
+  const std::string dir = kith::test::temp_dir("question-pictures");
+  run_screens(dir, "pictures", "--size 1024x640", true, write_paint_chart(dir, 40));
+  const json pair = asking_of(dir + "/pictures-pair.json"), grid = asking_of(dir + "/pictures-grid.json");
+  check_screen(pair, 1024, 640, "pictures 1024x640 big pair");
+  check_screen(grid, 1024, 640, "pictures 1024x640 big grid");
+  // A caption under each picture (9 cards on the grid), shortened where the card is narrow.
+  size_t captions = 0, titles = 0, shortened = 0;
+  for (const json& t : grid["screen"]["texts"]) {
+    captions += t["role"] == "caption" ? 1 : 0;
+    titles += t["role"] == "title" ? 1 : 0;
+    shortened += t["role"] == "caption" && t["text"] != t["full"] ? 1 : 0;
+  }
+  CHECK(captions == 9);
+  CHECK(titles == 0);
+  CHECK(shortened > 0);  // "Harbour evening chip number 12" does not fit a grid card
 }

@@ -395,7 +395,10 @@ void AskingPanel::draw_people(float top) {
     }
     ImGui::PopID();
   }
-  ImGui::SetNextItemWidth(w - 90);
+  // The box takes what the "add" button leaves (less when the panel scrolls).
+  const ImGuiStyle& style = ImGui::GetStyle();
+  ImGui::SetNextItemWidth(ImGui::GetContentRegionAvail().x - ImGui::CalcTextSize("add").x -
+                          2 * style.FramePadding.x - style.ItemSpacing.x);
   bool add = ImGui::InputTextWithHint("##new", "name or pseudonym", new_name_, sizeof new_name_,
                                       ImGuiInputTextFlags_EnterReturnsTrue);
   ImGui::SameLine();
@@ -406,6 +409,8 @@ void AskingPanel::draw_people(float top) {
     if (panel_message_.empty()) new_name_[0] = 0;
   }
   if (!panel_message_.empty()) ImGui::TextWrapped("%s", panel_message_.c_str());
+  // Big type is the facilitator's choice, here rather than among the answer buttons.
+  if (bool big = desk_->large_type(); ImGui::Checkbox("big type  (B)", &big)) act({AskingAction::kLargeType});
   if (!collection_.tags.empty()) {  // what the cards show under (or instead of) the picture
     const std::string now = caption_ >= 0 ? collection_.tags[size_t(caption_)].name : "id";
     ImGui::SetNextItemWidth(w * 0.5f);
@@ -489,20 +494,45 @@ void AskingPanel::card(int item, float x, float y, float side_w, float side, con
   dl->PushClipRect(at, end, true);
   const float top_room = anchor ? chip_height(body_px) * 0.5f + 2.f : chip_height(body_px) + 4.f;
   const float inner = side_w - 2 * pad;
-  if (const Texture* t = texture(item)) {
-    // The picture, and its caption in a strip under it.
-    const float strip = body_px * 1.4f;
-    const float bw = inner, bh = side - 2 * pad - strip;
+  // The key chip; a picked card's says so, in the picked colours (on a card too narrow for that,
+  // the key alone in those colours, and the word on its own chip where there is room for it).
+  auto chip_width = [&](const std::string& t) { return body->CalcTextSizeA(body_px, FLT_MAX, 0.f, t.c_str()).x + body_px * 0.9f; };
+  std::string key_text = anchor ? "" : picked ? std::string(key) + "  picked" : std::string(key);
+  const bool word_apart = picked && chip_width(key_text) > side_w - 12.f;
+  if (word_apart) key_text = key;
+  auto key_chip = [&](ImVec2 where) {
+    const ScreenRect k = chip(dl, body, body_px, where, key_text, picked ? look_.picked_ink : look_.key_ink,
+                              picked ? look_.picked_chip : look_.key_chip);
+    note_text(picked ? "picked" : "key", key_text, key_text, k, box);
+    return k;
+  };
+  const Texture* t = texture(item);
+  if (t) {
+    // The picture, clear of everything; under it a strip with the key chip and the caption.
+    const float strip = chip_height(body_px) + 2.f;
+    const float above = anchor ? top_room : 0.f;
+    const float bw = inner, bh = side - 2 * pad - strip - above;
     const float s = std::min(bw / float(t->width), bh / float(t->height));
     const float w = t->width * s, h = t->height * s;
-    const ImVec2 p0(x + pad + (bw - w) * 0.5f, y + pad + (bh - h) * 0.5f);
+    const ImVec2 p0(x + pad + (bw - w) * 0.5f, y + pad + above + (bh - h) * 0.5f);
     dl->AddImage(ImTextureID(intptr_t(t->id)), p0, ImVec2(p0.x + w, p0.y + h));
+    if (word_apart && chip_width("picked") <= side_w - 12.f) {
+      const ScreenRect r = chip(dl, body, body_px, ImVec2(x + side_w * 0.5f, y + 6.f + chip_height(body_px) * 0.5f),
+                                "picked", look_.picked_ink, look_.picked_chip, true);
+      note_text("picked", "picked", "picked", r, box);
+    }
+    const float strip_y = y + side - pad - strip;
+    float left = x + pad;
+    if (!anchor) left = key_chip(ImVec2(left, strip_y + 1.f)).x1 + 6.f;
+    const float room = x + side_w - pad - left;
     const std::string full = caption_of(item);
-    const std::string text = fit_text(full, inner, width_in(body, body_px));
-    const ImVec2 ts = body->CalcTextSizeA(body_px, FLT_MAX, 0.f, text.c_str());
-    const ImVec2 tp(x + (side_w - ts.x) * 0.5f, y + side - pad - strip + (strip - ts.y) * 0.5f);
-    dl->AddText(body, body_px, tp, rgb32(look_.ink), text.c_str());
-    note_text("caption", text, full, rect_of(tp, ImVec2(tp.x + ts.x, tp.y + ts.y)), box);
+    const std::string text = fit_text(full, room, width_in(body, body_px));
+    if (!text.empty()) {
+      const ImVec2 ts = body->CalcTextSizeA(body_px, FLT_MAX, 0.f, text.c_str());
+      const ImVec2 tp(std::floor(left + (room - ts.x) * 0.5f), strip_y + (strip - ts.y) * 0.5f);
+      dl->AddText(body, body_px, tp, rgb32(look_.ink), text.c_str());
+      note_text("caption", text, full, rect_of(tp, ImVec2(tp.x + ts.x, tp.y + ts.y)), box);
+    }
   } else {
     // No picture: a neutral card with the caption (or id) large, the id under a caption, the tags.
     ImFont* title_font = font_or_current(desk_->large_type() && g_big ? g_big : g_medium);
@@ -551,17 +581,13 @@ void AskingPanel::card(int item, float x, float y, float side_w, float side, con
     dl->AddRect(at, end, rgb32(person_rgb), 8.f, 0, 4.f);
   else
     dl->AddRect(at, end, rgb32(look_.edge), 8.f, 0, hovered ? 3.f : 1.5f);
-  // The key chip (top left), the picked chip (top right), the anchor's badge (on the top edge).
+  // The anchor's badge on the top edge; a text card's key chip at its top left.
   if (anchor) {
     const ScreenRect b =
         chip(dl, body, body_px, ImVec2(x + side_w * 0.5f, y), "this one", look_.badge_ink, look_.badge, true);
     note_text("badge", "this one", "this one", b, screen_rect());
-  } else {
-    // A picked card's key chip says so, in the picked colours.
-    const std::string text = picked ? std::string(key) + "  picked" : std::string(key);
-    const ScreenRect k = chip(dl, body, body_px, ImVec2(x + 6, y + 6), text, picked ? look_.picked_ink : look_.key_ink,
-                              picked ? look_.picked_chip : look_.key_chip);
-    note_text(picked ? "picked" : "key", text, text, k, box);
+  } else if (!t) {
+    key_chip(ImVec2(x + 6, y + 6));
   }
 }
 
@@ -594,7 +620,6 @@ float AskingPanel::draw_foot(float y, bool measure_only) {
       {"Backspace  undo", {AskingAction::kUndo}},
       {"W  next person", {AskingAction::kNextPerson}},
       {pair ? "A  grid questions" : "A  pair questions", {pair ? AskingAction::kStartGrid : AskingAction::kStartPair}},
-      {desk_->large_type() ? "B  smaller type" : "B  big type", {AskingAction::kLargeType}},
       {"Esc  stop", {AskingAction::kLeave}},
   };
   const float margin = 8.f, spacing = style.ItemSpacing.x * 1.5f;
