@@ -13,6 +13,7 @@
 #include <filesystem>
 #include <iterator>
 
+#include "viewer/panels/ui_style.h"
 #include "viewer/scene/text_fit.h"
 
 namespace kith {
@@ -246,6 +247,11 @@ void AskingPanel::note_text(const char* role, const std::string& text, const std
 }
 void AskingPanel::note_region(const char* name, const ScreenRect& rect) { regions_.push_back({name, rect}); }
 
+int AskingPanel::push_colours() {
+  look_ = QuestionLook::for_ground(view_.options().dark);
+  return push_look(look_);
+}
+
 void AskingPanel::set_status(const std::string& message, const std::string& notice, std::function<void()> dismiss) {
   status_message_ = message;
   status_notice_ = notice;
@@ -276,14 +282,13 @@ void AskingPanel::draw(float top, float inv_scale) {
     regions_drawn_.clear();
     return;
   }
-  look_ = QuestionLook::for_ground(view_.options().dark);
-  const int pushed = push_look(look_);
+  const int pushed = push_colours();
   // The map keeps growing and moving while people answer: keep the question's items in sight.
   if (desk_->asking() && ImGui::GetTime() - last_frame_time_ > 1.5 && !view_.camera().moving() &&
       question_out_of_view())
     frame_map();
   if (mode == AskingMode::kOwn) {
-    draw_turn_banner(top);
+    if (desk_->flow().turn() >= 0) draw_turn_banner(top);  // whose judgment it is, when anyone is listed
     draw_own(top);
   } else {
     draw_people(top);
@@ -808,7 +813,10 @@ void AskingPanel::draw_grid() {
 
 void AskingPanel::draw_own(float top) {
   const ImGuiIO& io = ImGui::GetIO();
-  ImGui::SetNextWindowPos(ImVec2(io.DisplaySize.x * 0.5f, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.5f, 1.f));
+  // With the panels shown (top > 0), clear of the Selection panel in the bottom-left corner.
+  const float half = own_rect_.width() * 0.5f;
+  const float cx = top > 0.f ? std::max(io.DisplaySize.x * 0.5f, kSelectionPanelInset + kSelectionPanelWidth + 10.f + half) : io.DisplaySize.x * 0.5f;
+  ImGui::SetNextWindowPos(ImVec2(cx, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.5f, 1.f));
   ImGui::SetNextWindowBgAlpha(1.f);
   ImGui::Begin("Your own judgment", nullptr,
                ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoMove |
@@ -911,7 +919,7 @@ void AskingPanel::draw_map_marks(float inv_scale, float top) {
   const float px = ImGui::GetFontSize();
   const ImVec2 pad(px * 0.4f, px * 0.15f);
   // The free part of the map: under the menu, above the band (or the own-judgment window).
-  const float bottom = own ? own_rect_.y0 : io.DisplaySize.y - band_height();
+  const float bottom = io.DisplaySize.y - band_height();  // the own-judgment window is among the regions
   const ScreenRect area{0.f, top, io.DisplaySize.x, bottom};
   std::vector<ScreenRect> obstacles;
   for (const auto& [name, rect] : regions_) obstacles.push_back(rect);

@@ -51,11 +51,12 @@ class AskingPanel {
   void set_caption(int column) { caption_ = column; }
   int caption() const { return caption_; }
   // The window's short message and its notice (a refusal; "" when none), shown in the band's
-  // status line while a question screen is up; `dismiss` clears the notice.
+  // status line while a question screen is up (the window then draws no toast, notice or
+  // selection labels over the map); `dismiss` clears the notice.
   void set_status(const std::string& message, const std::string& notice, std::function<void()> dismiss);
-  // True while the band is up (pair or grid): the window then draws no toast, notice or
-  // selection labels over the map.
-  bool band_up() const { return desk_->asking(); }
+  // Pushes the question screens' colours (QuestionLook, on the view's ground) onto ImGui's style
+  // for what the window draws over them (the hover tooltip); returns how many to pop.
+  int push_colours();
   const std::string& message() const { return desk_->message(); }
   // While making an own judgment, a left click on an item fills the next slot (true = used).
   bool wants_item_clicks() const { return desk_->mode() == AskingMode::kOwn; }

@@ -107,8 +107,10 @@ void App::panels() {
   ImGui::SetNextWindowPos(ImVec2(io.DisplaySize.x - right_w - 10, top + 330), ImGuiCond_FirstUseEver);
   ImGui::SetNextWindowSize(ImVec2(right_w, 0), ImGuiCond_FirstUseEver);
   panel_health();
-  ImGui::SetNextWindowPos(ImVec2(10, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.f, 1.f));
-  ImGui::SetNextWindowSizeConstraints(ImVec2(420, 0), ImVec2(420, io.DisplaySize.y * 0.5f));
+  ImGui::SetNextWindowPos(ImVec2(kSelectionPanelInset, io.DisplaySize.y - kSelectionPanelInset), ImGuiCond_Always,
+                          ImVec2(0.f, 1.f));
+  ImGui::SetNextWindowSizeConstraints(ImVec2(kSelectionPanelWidth, 0),
+                                      ImVec2(kSelectionPanelWidth, io.DisplaySize.y * 0.5f));
   panel_selection();
   if (hooks.take_selection) {
     std::vector<int> items;
@@ -353,6 +355,7 @@ void App::overlays() {
   // Hover tooltip: id, tags, pinned.
   const int h = view->hovered();
   if (h >= 0 && !io.WantCaptureMouse && interaction->state() != MapInteraction::State::kDragging) {
+    const int pushed = question_screen ? asking->push_colours() : 0;  // in the question screens' colours
     ImGui::BeginTooltip();
     ImGui::TextUnformatted(collection.ids[h].c_str());
     for (const auto& t : collection.tags)
@@ -360,6 +363,7 @@ void App::overlays() {
     if (view->pinned(h)) ImGui::TextDisabled("pinned (U unpins the selection)");
     if (!collection.pictures.empty()) ImGui::TextDisabled("picture: %s", std::filesystem::path(collection.pictures[h]).filename().c_str());
     ImGui::EndTooltip();
+    ImGui::PopStyleColor(pushed);
   }
   // The release choice after a drag.
   if (interaction->choosing()) {
