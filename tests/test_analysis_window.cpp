@@ -32,7 +32,7 @@ TEST_CASE("map view colours by an outside measure and by groups, with legends") 
   std::vector<float> m(r.collection.size(), 0.f);
   m[5] = 2.f;
   m[6] = std::nanf("");
-  r.view.set_measure("suspect score", m);
+  r.view.set_measure("suspect score", "", m);
   r.view.frame(0.f, 1000, 700);
   CHECK(r.view.options().colour_by.kind == ColourKind::kMeasure);
   CHECK(r.view.colour_title() == "suspect score");
@@ -40,8 +40,11 @@ TEST_CASE("map view colours by an outside measure and by groups, with legends") 
   CHECK(r.view.colour_of(5).r == doctest::Approx(top.r));
   CHECK(r.view.colour_of(0).g == doctest::Approx(low.g));
   CHECK(r.view.colour_of(6).b == doctest::Approx(muted.b));
-  REQUIRE(r.view.legend().size() == 3);
-  CHECK(r.view.legend().back().label == "2");
+  // Five stops from 0 to the largest value, then the items with no value.
+  REQUIRE(r.view.legend().size() == 6);
+  CHECK(r.view.legend()[4].label == "2");
+  CHECK(r.view.legend().back().label == "no value");
+  CHECK(r.view.legend().back().count == 1);
 
   std::vector<int> g(r.collection.size(), -1);
   for (size_t i = 0; i < 100; ++i) g[i] = int(i % 2);

@@ -18,24 +18,10 @@
 
 namespace {
 
+using kith::test::Image;
 using kith::test::kXvfb;
+using kith::test::load_png;
 int run(const std::string& command) { return kith::test::run_command(command); }
-
-struct Image {
-  int w = 0, h = 0;
-  std::vector<unsigned char> rgb;
-  const unsigned char* at(int x, int y) const { return &rgb[(size_t(y) * w + x) * 3]; }
-};
-
-Image load_png(const std::string& path) {
-  Image im;
-  int channels = 0;
-  unsigned char* data = stbi_load(path.c_str(), &im.w, &im.h, &channels, 3);
-  REQUIRE_MESSAGE(data != nullptr, "cannot read " << path);
-  im.rgb.assign(data, data + size_t(im.w) * im.h * 3);
-  stbi_image_free(data);
-  return im;
-}
 
 nlohmann::json load_json(const std::string& path) {
   std::ifstream in(path);

@@ -11,6 +11,7 @@
 #include "solver/session/session_store.h"
 #include "viewer/cli/commands.h"
 #include "viewer/cli/flags.h"
+#include "viewer/cli/map_source.h"
 #include "viewer/cli/session_cli.h"
 #include "viewer/cli/shared_flags.h"
 #include "viewer/session/session_export.h"
@@ -23,10 +24,11 @@ namespace {
 const char* const kUsage =
     "usage: kith export SESSION [--layout out.csv|out.json] [--judgments out.csv] [--picture out.png]\n"
     "                           [--flat out.csv] [--people names|codes|leave-out] [--include-retracted]\n"
-    "                           [--tag COLUMN] [--size WxH]\n"
+    "                           [--tag COLUMN] [--size WxH] [--colour COLUMN]\n"
     "\n"
     "Writes what a session holds for use elsewhere. Several exports may be given at once. The\n"
-    "session is only read (it may be open in a window at the same time).\n";
+    "session is only read (it may be open in a window at the same time). It keeps its collection\n"
+    "as it was read (README, 'Reading a collection'), so no reading options go with it.\n";
 
 const char* const kFooter =
     "exit codes: 0 written, 1 a write failed (disk full, ...), 2 bad usage (also an export file that\n"
@@ -59,7 +61,7 @@ const char* const kOptions =
 int cmd_export(const Args& args) {
   FlagReader flags(
       "export", kUsage,
-      kOptions + session_map_flags({"--perplexity", "--theta", "--dof", "--blend", "--learning-rate", "--seed"}),
+      kOptions + colour_flag() + session_map_flags({"--perplexity", "--theta", "--dof", "--blend", "--learning-rate", "--seed"}),
       kFooter);
   if (!flags.read(args)) return flags.stop();
   if (flags.positional().size() != 1)
@@ -121,6 +123,9 @@ int cmd_export(const Args& args) {
     }
 
     if (flags.has("--picture")) {
+      if (!choose_colour("export", c, flags.text("--colour"), &picture.view)) return kExitUsage;
+      for (const Judgment& j : store->judgments())
+        if (!j.retracted) picture.judgments.push_back(j);  // for colour by judgments per item
       picture.pinned = pinned_items(*store, c.size());
       picture.title = std::filesystem::path(path).filename().string();
       const std::string out = flags.text("--picture");

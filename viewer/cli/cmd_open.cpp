@@ -32,8 +32,6 @@ const char* const kFooter =
 const char* const kOptions =
     "  --size WxH            window size (default: 1280x800)\n"
     "  --paused              start with the optimization paused\n"
-    "  --colour, --color COLUMN\n"
-    "                        colour by this tag column, or 'plain' (default: the first that groups)\n"
     "  --caption COLUMN      the text column the question cards show, e.g. a name (default: id)\n"
     "  --dark                the night ground instead of paper\n"
     "  --turn                start with the slow turn on (for a shared screen)\n"
@@ -101,7 +99,7 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
 
 int cmd_open(const Args& args) {
   FlagReader flags("open", kUsage,
-                   kOptions + load_flags() + map_flags({"--perplexity", "--theta", "--blend", "--seed", "--metric"}), kFooter,
+                   kOptions + colour_flag() + load_flags() + map_flags({"--perplexity", "--theta", "--blend", "--seed", "--metric"}), kFooter,
                    kHidden);
   if (!flags.read(args)) return flags.stop();
   WindowOptions wo;

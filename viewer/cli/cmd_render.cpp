@@ -30,8 +30,6 @@ const char* const kOptions =
     "                        yaw and pitch in radians, distance, optional target point\n"
     "                        (default: the whole map from a three-quarter view; without X,Y,Z\n"
     "                        the camera looks at the map's centre)\n"
-    "  --colour, --color COLUMN\n"
-    "                        colour by this tag column, or 'plain' (default: the first that groups)\n"
     "  --iterations N        optimization steps before drawing, 0 = the start (default: 1000)\n"
     "  --select ID,ID,...    draw these items selected, with their picture cards\n"
     "  --dark                the night ground instead of paper\n"
@@ -43,7 +41,7 @@ const char* const kOptions =
 int cmd_render(const Args& args) {
   FlagReader flags(
       "render", kUsage,
-      kOptions + force_flag("FILE") + load_flags() + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
+      kOptions + colour_flag() + force_flag("FILE") + load_flags() + map_flags({"--perplexity", "--theta", "--blend", "--seed"}), "",
       "--generate N");  // a generated collection, for tests
   if (!flags.read(args)) return flags.stop();
   RenderOptions ro;

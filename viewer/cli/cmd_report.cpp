@@ -63,7 +63,7 @@ std::string fixed(double v, int digits) {
 
 int cmd_report(const Args& args) {
   FlagReader flags("report", kUsage,
-                   kOptions + force_flag("FILE") + load_flags() +
+                   kOptions + colour_flag() + force_flag("FILE") + load_flags() +
                        map_flags({"--dims", "--perplexity", "--iterations", "--seed"}),
                    kFooter);
   if (!flags.read(args)) return flags.stop();
@@ -175,6 +175,20 @@ int cmd_report(const Args& args) {
   }
 
   ReportContent c;
+  if (const std::string colour = flags.text("--colour"); !colour.empty()) {
+    ColourBy by;
+    std::string why;
+    if (!colour_by_name(items, colour, &by, &why)) return flags.usage_error("--colour: " + why);
+    if (by.kind == ColourKind::kJudgments) {
+      std::vector<double> count(items.size(), 0.0);
+      for (const Judgment& j : judgments)
+        if (!j.retracted)
+          for (int32_t i : {j.anchor, j.nearer, j.farther}) count[size_t(i)] += 1.0;
+      c.colour = ramp_code("judgments per item", "judgments", count, true, Palette::paper());
+    } else {
+      c.colour = collection_code(items, by, Palette::paper());
+    }
+  }
   c.title = std::filesystem::path(input).filename().string();
   c.source = input;
   c.ids = items.ids;

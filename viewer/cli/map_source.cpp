@@ -113,16 +113,9 @@ int refuse_rows_without_direction(const std::string& command, const Collection& 
 
 bool choose_colour(const std::string& command, const Collection& c, const std::string& colour, ViewOptions* view) {
   if (colour.empty()) return true;
-  if (colour == "plain") {
-    view->colour_by.kind = ColourKind::kPlain;
-    return true;
-  }
-  for (size_t t = 0; t < c.tags.size(); ++t)
-    if (c.tags[t].name == colour) {
-      view->colour_by = {ColourKind::kTag, int(t)};
-      return true;
-    }
-  std::fprintf(stderr, "kith %s: --colour: no tag column named '%s'\n", command.c_str(), colour.c_str());
+  std::string why;
+  if (colour_by_name(c, colour, &view->colour_by, &why)) return true;
+  std::fprintf(stderr, "kith %s: --colour: %s\n", command.c_str(), why.c_str());
   return false;
 }
 

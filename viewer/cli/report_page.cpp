@@ -10,7 +10,7 @@
 #include <sstream>
 
 #include "solver/io/png_file.h"
-#include "viewer/scene/palette.h"
+#include "viewer/scene/colour_code.h"
 
 namespace kith {
 
@@ -94,15 +94,12 @@ std::string fmt(const char* format, double v) {
 
 using Rgb8 = std::array<uint8_t, 3>;
 constexpr Rgb8 rgb8(uint32_t hex) { return {uint8_t(hex >> 16), uint8_t(hex >> 8), uint8_t(hex)}; }
-// The window's categorical colours (viewer/scene/palette.h), so a tag value or group has the same
-// colour here; the rest share a neutral grey.
-const std::array<Rgb8, Palette::kCategorical.size()> kPalette = [] {
-  std::array<Rgb8, Palette::kCategorical.size()> out{};
-  for (size_t k = 0; k < out.size(); ++k) out[k] = rgb8(Palette::kCategorical[k]);
-  return out;
-}();
-constexpr size_t kPaletteSize = Palette::kCategorical.size();
-const Rgb8 kOther = rgb8(Palette::kOther);
+// Colours come from the code the window uses (viewer/scene/colour_code.h) on the paper ground, so
+// an item has the same colour and mark here.
+Rgb8 rgb8(const Rgb& c) {
+  auto byte = [](float v) { return uint8_t(std::lround(std::clamp(v, 0.f, 1.f) * 255.f)); };
+  return {byte(c.r), byte(c.g), byte(c.b)};
+}
 const Rgb8 kPaper = {0xFB, 0xF9, 0xF4};
 const Rgb8 kInk = {0x22, 0x22, 0x22};
 
@@ -126,6 +123,24 @@ class Raster {
         const double d = std::hypot(x + 0.5 - cx, y + 0.5 - cy);
         double a = std::clamp(r + 0.5 - d, 0.0, 1.0);
         if (ring > 0.0) a = std::min(a, std::clamp(d - (r - ring) + 0.5, 0.0, 1.0));
+        if (a <= 0.0) continue;
+        uint8_t* p = &pixels_[(size_t(y) * size_t(size_) + size_t(x)) * 3];
+        for (int k = 0; k < 3; ++k) p[k] = uint8_t(std::lround(p[k] * (1 - a) + c[size_t(k)] * a));
+      }
+  }
+  // An item's mark: a disc, a ring, a square or a diamond of about the disc's area.
+  void mark(double cx, double cy, double r, const Rgb8& c, Mark m) {
+    if (m == Mark::kDisc) return disc(cx, cy, r, c);
+    if (m == Mark::kRing) return disc(cx, cy, r * 1.1, c, std::max(1.0, r * 0.55));
+    const double half = m == Mark::kSquare ? r * 0.89 : r * 1.2;
+    const int x0 = std::max(0, int(std::floor(cx - half - 1))), x1 = std::min(size_ - 1, int(std::ceil(cx + half + 1)));
+    const int y0 = std::max(0, int(std::floor(cy - half - 1))), y1 = std::min(size_ - 1, int(std::ceil(cy + half + 1)));
+    for (int y = y0; y <= y1; ++y)
+      for (int x = x0; x <= x1; ++x) {
+        const double dx = std::abs(x + 0.5 - cx), dy = std::abs(y + 0.5 - cy);
+        const double d = m == Mark::kSquare ? std::max(dx, dy) : (dx + dy) / std::sqrt(2.0);
+        const double edge = m == Mark::kSquare ? half : half / std::sqrt(2.0);
+        const double a = std::clamp(edge + 0.5 - d, 0.0, 1.0);
         if (a <= 0.0) continue;
         uint8_t* p = &pixels_[(size_t(y) * size_t(size_) + size_t(x)) * 3];
         for (int k = 0; k < 3; ++k) p[k] = uint8_t(std::lround(p[k] * (1 - a) + c[size_t(k)] * a));
@@ -157,6 +172,37 @@ double disc_radius(size_t n, int size) {
   return std::clamp(0.9 * size / std::sqrt(double(std::max<size_t>(n, 1))) * 0.35, 1.2, 5.0);
 }
 
+// A legend entry's swatch, in its mark's shape.
+std::string swatch(const CodeEntry& e) {
+  const char* shape = e.mark == Mark::kDisc ? "" : e.mark == Mark::kRing ? " ring" : e.mark == Mark::kSquare ? " square" : " diamond";
+  const std::string colour = hex(rgb8(e.colour));
+  return "<span class='sw" + std::string(shape) + "' style='background:" + colour + ";border-color:" + colour + "'></span>";
+}
+
+// The legend of a code: each value's swatch and name (count), or a ramp's bar and range.
+std::string legend_html(const ColourCode& code) {
+  std::ostringstream h;
+  if (code.ramp) {
+    h << " " << html_escape(ramp_label(code.lo, code.unit)) << "<span class='ramp' style='background:linear-gradient(to right";
+    const Palette paper = Palette::paper();
+    for (int k = 0; k <= 8; ++k) h << "," << hex(rgb8(paper.ramp(float(k) / 8)));
+    h << ")'></span>" << html_escape(ramp_label(code.hi, code.unit));
+    for (const CodeEntry& e : code.entries)
+      if (e.count) h << swatch(e) << html_escape(e.label) << " (" << e.count << ")";
+  } else {
+    for (const CodeEntry& e : code.entries) h << swatch(e) << html_escape(e.label) << " (" << e.count << ")";
+  }
+  for (const std::string& note : code.notes) h << "<br><small>" << html_escape(note) << "</small>";
+  return h.str();
+}
+
+ColourCode group_code_of(const Grouping& g, const Palette& palette) {
+  std::vector<int> label(g.label.begin(), g.label.end());
+  std::vector<std::string> names;
+  for (size_t k = 0; k < g.groups.size(); ++k) names.push_back("group " + std::to_string(k + 1));
+  return group_code("group", label, names, palette);
+}
+
 // An inline SVG holding the PNG and text labels.
 std::string picture(const Raster& raster, int size, const std::string& caption,
                     const std::vector<std::pair<std::array<double, 2>, std::string>>& labels) {
@@ -182,7 +228,9 @@ th{font-weight:600;border-bottom:1px solid #cfc8b8}tr:nth-child(even) td{backgro
 td.num{text-align:right;font-variant-numeric:tabular-nums}
 .pics{display:flex;flex-wrap:wrap;gap:18px}figure{margin:0;background:#fbf9f4;border:1px solid #ddd6c6;padding:6px}
 figcaption{font-size:13px;color:#5a554b;margin-top:4px;max-width:560px}
-.sw{display:inline-block;width:11px;height:11px;border-radius:50%;margin:0 4px 0 10px;vertical-align:-1px}
+.sw{display:inline-block;width:11px;height:11px;border-radius:50%;margin:0 4px 0 10px;vertical-align:-1px;box-sizing:border-box}
+.sw.ring{background:none!important;border:3px solid}.sw.square{border-radius:0}.sw.diamond{border-radius:0;transform:rotate(45deg) scale(.85)}
+.ramp{display:inline-block;width:160px;height:11px;margin:0 6px;vertical-align:-1px}
 .lbl{font:bold 14px system-ui,sans-serif;fill:#222;paint-order:stroke;stroke:#fbf9f4;stroke-width:3px}
 .bar{display:inline-block;height:9px;background:#b8683a;vertical-align:0}
 )";
@@ -209,48 +257,32 @@ std::string report_html(const ReportContent& c) {
   // Pictures.
   const auto px = to_pixels(c.view, size);
   const double r = disc_radius(n, size);
-  std::map<std::string, size_t> tag_count;
-  if (have_tags)
-    for (const auto& t : c.tags)
-      if (!t.empty()) ++tag_count[t];
-  std::vector<std::pair<std::string, size_t>> tag_order(tag_count.begin(), tag_count.end());
-  std::stable_sort(tag_order.begin(), tag_order.end(), [](const auto& a, const auto& b) { return a.second > b.second; });
-  std::map<std::string, Rgb8> tag_colour;
-  for (size_t i = 0; i < tag_order.size(); ++i) tag_colour[tag_order[i].first] = i < kPaletteSize ? kPalette[i] : kOther;
+  const Palette paper = Palette::paper();
+  const ColourCode code = c.colour.colour.size() == n ? c.colour
+                          : have_tags                 ? categorical_code(c.tag_name, c.tags, paper)
+                                                      : plain_code("items", n, paper);
   const size_t ringed = c.suspects ? std::min(c.list_rows, c.suspects->ranking.size()) : 0;
 
-  h << "<h2>The map</h2><p class='note'>Seen along the map's two widest directions.";
-  if (have_tags) {
-    h << " Tags:";
-    for (size_t i = 0; i < tag_order.size() && i < kPaletteSize; ++i)
-      h << "<span class='sw' style='background:" << hex(kPalette[i]) << "'></span>" << html_escape(tag_order[i].first);
-    if (tag_order.size() > kPaletteSize) h << "<span class='sw' style='background:" << hex(kOther) << "'></span>others";
-  }
-  h << "</p><div class='pics'>\n";
+  h << "<h2>The map</h2><p class='note'>Seen along the map's two widest directions. Colour: "
+    << html_escape(code.title) << legend_html(code) << "</p><div class='pics'>\n";
   {
     Raster pic(size);
-    for (size_t i = 0; i < n; ++i) {
-      const auto it = have_tags ? tag_colour.find(c.tags[i]) : tag_colour.end();
-      pic.disc(px[i][0], px[i][1], r, it == tag_colour.end() ? kOther : it->second);
-    }
+    for (size_t i = 0; i < n; ++i) pic.mark(px[i][0], px[i][1], r, rgb8(code.colour[i]), code.mark[i]);
     std::vector<std::pair<std::array<double, 2>, std::string>> labels;
     for (size_t s = 0; s < ringed; ++s) {
       const size_t i = size_t(c.suspects->ranking[s]);
-      const auto it = have_tags ? tag_colour.find(c.tags[i]) : tag_colour.end();
-      pic.disc(px[i][0], px[i][1], r, it == tag_colour.end() ? kOther : it->second);  // on top of its crowd
+      pic.mark(px[i][0], px[i][1], r, rgb8(code.colour[i]), code.mark[i]);  // on top of its crowd
       pic.disc(px[i][0], px[i][1], r + 3.5, kInk, 1.6);
     }
     h << picture(pic, size,
-                 have_tags ? "Coloured by tag; rings mark the " + std::to_string(ringed) + " strongest suspects."
-                           : "The map (no tag column).",
+                 "Coloured by " + html_escape(code.title) +
+                     (ringed ? "; rings mark the " + std::to_string(ringed) + " strongest suspects." : "."),
                  labels);
   }
+  const ColourCode groups = c.groups ? group_code_of(*c.groups, paper) : ColourCode{};
   if (c.groups) {
     Raster pic(size);
-    for (size_t i = 0; i < n; ++i) {
-      const int32_t g = c.groups->label[i];
-      pic.disc(px[i][0], px[i][1], r, g < 0 ? kOther : kPalette[size_t(g) % kPaletteSize]);
-    }
+    for (size_t i = 0; i < n; ++i) pic.mark(px[i][0], px[i][1], r, rgb8(groups.colour[i]), groups.mark[i]);
     std::vector<std::pair<std::array<double, 2>, std::string>> labels;
     for (size_t g = 0; g < c.groups->groups.size(); ++g) {
       double x = 0, y = 0;
@@ -266,17 +298,12 @@ std::string report_html(const ReportContent& c) {
   if (c.displacement) {
     Raster pic(size);
     const auto& d = c.displacement->distance;
-    const double top = d.empty() ? 1.0 : std::max(1e-12, d[size_t(c.displacement->ranking.front())]);
+    const ColourCode moved = ramp_code("moved by judgments", "map units", d, true, paper);
     std::vector<size_t> order(n);
     for (size_t i = 0; i < n; ++i) order[i] = i;
     std::sort(order.begin(), order.end(), [&](size_t a, size_t b) { return d[a] < d[b]; });  // most moved on top
-    for (size_t i : order) {
-      const double t = std::sqrt(std::clamp(d[i] / top, 0.0, 1.0));
-      const Rgb8 col = {uint8_t(std::lround(0xE4 + (0x8A - 0xE4) * t)), uint8_t(std::lround(0xDF + (0x2E - 0xDF) * t)),
-                       uint8_t(std::lround(0xD4 + (0x0E - 0xD4) * t))};
-      pic.disc(px[i][0], px[i][1], r, col);
-    }
-    h << picture(pic, size, "Coloured by how far judgments moved each item (darker: further).", {});
+    for (size_t i : order) pic.mark(px[i][0], px[i][1], r, rgb8(moved.colour[i]), Mark::kDisc);
+    h << picture(pic, size, "Coloured by how far judgments moved each item:" + legend_html(moved), {});
   }
   h << "</div>\n";
 
@@ -307,8 +334,7 @@ std::string report_html(const ReportContent& c) {
       << "<th>size</th><th>most common tags</th><th>purity</th><th>representatives</th></tr>";
     for (size_t k = 0; k < g.groups.size(); ++k) {
       const Group& grp = g.groups[k];
-      h << "<tr><td class='num'><span class='sw' style='background:" << hex(kPalette[k % kPaletteSize]) << "'></span>"
-        << k + 1 << "</td><td class='num'>" << grp.size << "</td><td>";
+      h << "<tr><td class='num'>" << swatch(groups.entries[std::min(k, groups.entries.size() - 1)]) << k + 1 << "</td><td class='num'>" << grp.size << "</td><td>";
       for (size_t t = 0; t < grp.tags.size(); ++t)
         h << (t ? ", " : "") << html_escape(grp.tags[t].tag) << " " << fmt("%.0f%%", 100 * grp.tags[t].share);
       h << "</td><td class='num'>" << (grp.tags.empty() ? std::string("-") : fmt("%.2f", grp.purity)) << "</td><td>";

@@ -11,6 +11,7 @@
 #include "solver/measures/groups.h"
 #include "solver/base/points.h"
 #include "solver/measures/suspects.h"
+#include "viewer/scene/colour_code.h"
 
 namespace kith {
 
@@ -20,6 +21,7 @@ struct ReportContent {
   std::vector<std::string> ids;       // N
   std::string tag_name;               // the tag column used ("" if none)
   std::vector<std::string> tags;      // N, or empty
+  ColourCode colour;                  // the map picture's colours (default, when empty: by the tags)
   Points view;                        // N x 2: the map as seen in the pictures
   std::vector<std::pair<std::string, std::string>> figures;  // health and fit figures: name, value
   const SuspectScores* suspects = nullptr;   // optional

@@ -84,6 +84,16 @@ std::string load_flags() {
          "                        its collection as it was read, so these options do not go with one)\n";
 }
 
+std::string colour_flag() {
+  return option_line("--colour, --color COLUMN",
+                     "what colours the map: a tag column (a colour a value, most common first;\n"
+                     "past 12 values the colours repeat as rings, squares, diamonds), a numeric\n"
+                     "column (a ramp from its smallest to its largest value; a unit in brackets\n"
+                     "at the end of the name, as in 'caffeine (mg)', is shown with the range),\n"
+                     "'judgments' (per item) or 'plain' (default: the first tag column that\n"
+                     "groups items). The window, render, export --picture and report agree");
+}
+
 std::string force_flag(const std::string& what) {
   return option_line("--force", "replace " + what + " if it exists (never a session, a folder or an input)");
 }

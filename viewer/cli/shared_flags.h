@@ -34,6 +34,10 @@ bool read_map_flags(FlagReader& flags, MapParameters* settings);
 std::string load_flags();
 bool read_load_flags(FlagReader& flags, LoadOptions* options);
 
+// The --colour option line (open, render, export --picture, report); map_source.h choose_colour
+// reads it.
+std::string colour_flag();
+
 // The --force option line; WHAT names the outputs it lets replace ("FILE", "the exports").
 std::string force_flag(const std::string& what);
 // The rule for this command's outputs: replace with --force, never one of INPUTS.

@@ -148,7 +148,7 @@ void StructurePanel::tab_suspects() {
   const SuspectScores& s = found_->suspects;
   if (ImGui::Button("Colour by suspect score")) {
     std::vector<float> v(s.score.begin(), s.score.end());
-    view_.set_measure("suspect score", v);
+    view_.set_measure("suspect score", "", v);  // 0..1, the share of neighbours tagged otherwise
   }
   ImGui::SameLine();
   ImGui::TextDisabled("%zu scored", s.ranking.size());
@@ -303,7 +303,7 @@ void StructurePanel::tab_neighbours() {
   ImGui::TextUnformatted("Kept worst:");
   ImGui::SameLine();
   if (ImGui::SmallButton("Colour by neighbours kept"))
-    view_.set_measure("neighbours kept", std::vector<float>(found_->kept.begin(), found_->kept.end()));
+    view_.set_measure("neighbours kept", "", std::vector<float>(found_->kept.begin(), found_->kept.end()));
   const std::vector<int32_t> worst = worst_kept(found_->kept, 50);
   if (ImGui::BeginTable("worst", 3, ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg, ImVec2(0, 160))) {
     for (int32_t i : worst) item_row(i, false, "%.2f", found_->kept[size_t(i)]);
@@ -384,7 +384,7 @@ void StructurePanel::tab_moved() {
   if (!moved_) return;
   ImGui::SameLine();
   if (ImGui::Button("Colour by displacement"))
-    view_.set_measure("moved by judgments", std::vector<float>(moved_->distance.begin(), moved_->distance.end()));
+    view_.set_measure("moved by judgments", "map units", std::vector<float>(moved_->distance.begin(), moved_->distance.end()));
   ImGui::TextDisabled("aligned by rotation, scale %.3g and shift; rms %.3g", moved_->alignment.scale,
                       moved_->alignment.rms);
   if (ImGui::BeginTable("moved", 3, ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg, ImVec2(0, 200))) {

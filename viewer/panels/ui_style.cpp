@@ -2,6 +2,7 @@
 
 #include <imgui.h>
 
+#include <algorithm>
 #include <filesystem>
 #include <utility>
 
@@ -91,6 +92,21 @@ void load_ui_font(float pixels) {
   io.Fonts->AddFontDefault();
 }
 
+void draw_mark(ImDrawList* dl, ImVec2 centre, float radius, Mark mark, ImU32 colour) {
+  switch (mark) {
+    case Mark::kDisc: dl->AddCircleFilled(centre, radius, colour, 20); break;
+    case Mark::kRing: dl->AddCircle(centre, radius * 0.78f, colour, 20, radius * 0.45f); break;
+    case Mark::kSquare:
+      dl->AddRectFilled(ImVec2(centre.x - radius * 0.88f, centre.y - radius * 0.88f),
+                        ImVec2(centre.x + radius * 0.88f, centre.y + radius * 0.88f), colour);
+      break;
+    case Mark::kDiamond:
+      dl->AddQuadFilled(ImVec2(centre.x, centre.y - radius * 1.1f), ImVec2(centre.x + radius * 1.1f, centre.y),
+                        ImVec2(centre.x, centre.y + radius * 1.1f), ImVec2(centre.x - radius * 1.1f, centre.y), colour);
+      break;
+  }
+}
+
 LegendClick draw_legend(const MapView& view, const std::string& title, const std::string& subtitle, bool interactive,
                         float x, float y) {
   LegendClick click;
@@ -104,13 +120,46 @@ LegendClick draw_legend(const MapView& view, const std::string& title, const std
     ImGui::TextUnformatted(title.c_str());
     if (!subtitle.empty()) ImGui::TextDisabled("%s", subtitle.c_str());
     ImGui::Separator();
-    ImGui::TextDisabled("colour: %s", view.colour_title().c_str());
+    const ColourCode& code = view.colour_code();
+    const std::string heading = code.ramp && !code.unit.empty() && code.title.find(code.unit) == std::string::npos
+                                    ? code.title + " (" + code.unit + ")"
+                                    : code.title;
+    ImGui::TextDisabled("colour: %s", heading.c_str());
     ImDrawList* dl = ImGui::GetWindowDrawList();
-    for (const auto& e : view.legend()) {
+    const float h = ImGui::GetTextLineHeight();
+    if (code.ramp) {
+      // A bar from the smallest to the largest value, the range printed under its ends.
       const ImVec2 p = ImGui::GetCursorScreenPos();
-      const float h = ImGui::GetTextLineHeight();
-      dl->AddCircleFilled(ImVec2(p.x + h * 0.5f, p.y + h * 0.55f), h * 0.36f,
-                          ImGui::ColorConvertFloat4ToU32(ImVec4(e.colour.r, e.colour.g, e.colour.b, 1.f)), 20);
+      const float width = 14.f * h;
+      constexpr int kSegments = 48;
+      for (int k = 0; k < kSegments; ++k) {
+        const Rgb a = view.palette().ramp(float(k) / kSegments);
+        dl->AddRectFilled(ImVec2(p.x + width * k / kSegments, p.y + 2),
+                          ImVec2(p.x + width * (k + 1) / kSegments + 0.5f, p.y + h),
+                          ImGui::ColorConvertFloat4ToU32(ImVec4(a.r, a.g, a.b, 1.f)));
+      }
+      ImGui::Dummy(ImVec2(width, h + 2));
+      const std::string lo = ramp_label(code.lo, code.unit), hi = ramp_label(code.hi, code.unit);
+      const float left = ImGui::GetCursorPosX();
+      ImGui::TextUnformatted(lo.c_str());
+      // The largest value ends under the bar's right end, never over the smallest.
+      ImGui::SameLine(std::max(left + ImGui::CalcTextSize(lo.c_str()).x + h,
+                               left + width - ImGui::CalcTextSize(hi.c_str()).x));
+      ImGui::TextUnformatted(hi.c_str());
+    }
+    // A long list is cut short so that the legend stays inside the window.
+    const size_t most = size_t(std::max(6.f, (ImGui::GetIO().DisplaySize.y - y) / (h + 4.f) - 8.f));
+    size_t shown = 0, hidden = 0;
+    for (const auto& e : view.legend()) {
+      if (code.ramp && e.count == 0) continue;  // the bar shows the stops
+      if (shown >= most) {
+        ++hidden;
+        continue;
+      }
+      ++shown;
+      const ImVec2 p = ImGui::GetCursorScreenPos();
+      draw_mark(dl, ImVec2(p.x + h * 0.5f, p.y + h * 0.55f), h * 0.36f, e.mark,
+                ImGui::ColorConvertFloat4ToU32(ImVec4(e.colour.r, e.colour.g, e.colour.b, 1.f)));
       ImGui::Dummy(ImVec2(h, h));
       ImGui::SameLine();
       const std::string label = e.count ? e.label + "  (" + std::to_string(e.count) + ")" : e.label;
@@ -119,10 +168,17 @@ LegendClick draw_legend(const MapView& view, const std::string& title, const std
           click.column = e.tag_column;
           click.value = e.value;
         }
-        if (ImGui::IsItemHovered()) ImGui::SetTooltip("select the items tagged '%s'", e.value.c_str());
+        if (ImGui::IsItemHovered())
+          ImGui::SetTooltip("select the items tagged '%s' (drawn as a %s)", e.value.c_str(), mark_name(e.mark));
       } else {
         ImGui::TextUnformatted(label.c_str());
       }
+    }
+    if (hidden) ImGui::TextDisabled("... and %zu more values", hidden);
+    for (const std::string& note : code.notes) {
+      ImGui::PushTextWrapPos(ImGui::GetCursorPosX() + 18.f * h);
+      ImGui::TextDisabled("%s", note.c_str());
+      ImGui::PopTextWrapPos();
     }
   }
   ImGui::End();

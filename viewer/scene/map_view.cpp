@@ -55,12 +55,16 @@ MapView::MapView(const Collection& collection, Renderer& renderer) : collection_
 
 void MapView::set_options(const ViewOptions& o) {
   const bool colours = o.colour_by.kind != options_.colour_by.kind ||
-                       o.colour_by.tag_column != options_.colour_by.tag_column || o.dark != options_.dark;
+                       o.colour_by.tag_column != options_.colour_by.tag_column ||
+                       o.colour_by.feature_column != options_.colour_by.feature_column || o.dark != options_.dark;
   options_ = o;
   if (options_.colour_by.kind == ColourKind::kTag && options_.colour_by.tag_column == -1)
     options_.colour_by.tag_column = default_tag_column(collection_);
   if (options_.colour_by.kind == ColourKind::kTag &&
       (options_.colour_by.tag_column < 0 || size_t(options_.colour_by.tag_column) >= collection_.tags.size()))
+    options_.colour_by.kind = ColourKind::kPlain;
+  if (options_.colour_by.kind == ColourKind::kColumn &&
+      (options_.colour_by.feature_column < 0 || options_.colour_by.feature_column >= collection_.features.cols()))
     options_.colour_by.kind = ColourKind::kPlain;
   palette_ = options_.dark ? Palette::night() : Palette::paper();
   if (colours) dirty_colours_ = dirty_grid_ = dirty_lines_ = true;
@@ -216,8 +220,10 @@ void MapView::clear_drag() {
 // ============================================================================ [colour]
 
 std::string MapView::colour_title() const {
-  switch (options_.colour_by.kind) {
-    case ColourKind::kTag: return collection_.tags[options_.colour_by.tag_column].name;
+  const ColourBy& by = options_.colour_by;
+  switch (by.kind) {
+    case ColourKind::kTag: return collection_.tags[size_t(by.tag_column)].name;
+    case ColourKind::kColumn: return collection_.feature_names[size_t(by.feature_column)];
     case ColourKind::kDisplacement: return "moved since opening";
     case ColourKind::kJudgments: return "judgments per item";
     case ColourKind::kPlain: return "items";
@@ -227,8 +233,9 @@ std::string MapView::colour_title() const {
   return "";
 }
 
-void MapView::set_measure(const std::string& title, std::vector<float> values) {
+void MapView::set_measure(const std::string& title, const std::string& unit, std::vector<float> values) {
   external_title_ = title;
+  external_unit_ = unit;
   external_measure_ = std::move(values);
   ViewOptions o = options_;
   o.colour_by.kind = ColourKind::kMeasure;
@@ -247,78 +254,45 @@ void MapView::set_groups(const std::string& title, std::vector<int> groups, std:
 }
 
 Rgb MapView::colour_of(int item) const {
-  if (item < 0 || size_t(item) >= colours_.size()) return palette_.muted;
-  return colours_[item];
+  if (item < 0 || size_t(item) >= code_.colour.size()) return palette_.muted;
+  return code_.colour[size_t(item)];
 }
 
 void MapView::rebuild_colours() {
   const size_t n = collection_.size();
-  colours_.assign(n, palette_.category(0));
-  legend_.clear();
   const ColourBy& by = options_.colour_by;
-  if (by.kind == ColourKind::kTag) {
-    const auto& values = collection_.tags[by.tag_column].values;
-    std::map<std::string, size_t> counts;
-    for (const auto& v : values) ++counts[v];
-    std::vector<std::pair<std::string, size_t>> order(counts.begin(), counts.end());
-    std::stable_sort(order.begin(), order.end(), [](const auto& a, const auto& b) { return a.second > b.second; });
-    // Eight distinguishable colours at most; the rest share the muted one as "other".
-    const size_t named = order.size() <= Palette::kCategorical.size() ? order.size() : Palette::kCategorical.size() - 1;
-    std::map<std::string, int> colour_index;
-    int next = 0;
-    for (size_t k = 0; k < order.size(); ++k)
-      colour_index[order[k].first] = (k < named && !order[k].first.empty()) ? next++ : -1;
-    size_t other = 0;
-    for (size_t k = 0; k < order.size(); ++k) {
-      const int ci = colour_index[order[k].first];
-      if (ci < 0) {
-        other += order[k].second;
-        continue;
-      }
-      legend_.push_back({order[k].first, palette_.category(ci), order[k].second, by.tag_column, order[k].first});
+  switch (by.kind) {
+    case ColourKind::kJudgments: {
+      code_ = ramp_code(colour_title(), "judgments",
+                        std::vector<double>(judgment_count_.begin(), judgment_count_.end()), true, palette_);
+      break;
     }
-    if (other) legend_.push_back({"other / none", palette_.muted, other, -1, ""});
-    for (size_t i = 0; i < n && i < values.size(); ++i) colours_[i] = palette_.category(colour_index[values[i]]);
-  } else if (by.kind == ColourKind::kDisplacement || by.kind == ColourKind::kJudgments) {
-    std::vector<float> m(n, 0.f);
-    for (size_t i = 0; i < n; ++i) {
-      if (by.kind == ColourKind::kJudgments)
-        m[i] = float(judgment_count_[i]);
-      else if (i < positions_.size() && i < start_positions_.size())
-        m[i] = glm::length(positions_[i] - start_positions_[i]);
+    case ColourKind::kDisplacement: {
+      // In percent of the map's size (the diagonal of its bounding box), a unit that reads the
+      // same whatever the map's scale.
+      const float size = std::max(glm::length(hi_ - lo_), 1e-6f);
+      std::vector<double> m(n, 0.0);
+      for (size_t i = 0; i < n && i < positions_.size() && i < start_positions_.size(); ++i)
+        m[i] = 100.0 * glm::length(positions_[i] - start_positions_[i]) / size;
+      code_ = ramp_code(colour_title(), "% of the map's size", m, true, palette_);
+      break;
     }
-    const float top = std::max(*std::max_element(m.begin(), m.end()), 1e-6f);
-    for (size_t i = 0; i < n; ++i) colours_[i] = palette_.ramp(m[i] / top);
-    char buf[64];
-    for (float t : {0.f, 0.5f, 1.f}) {
-      std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
-      legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
-    }
-  } else if (by.kind == ColourKind::kMeasure && external_measure_.size() == n) {
-    float top = 1e-6f;
-    for (float v : external_measure_)
-      if (std::isfinite(v)) top = std::max(top, v);
-    for (size_t i = 0; i < n; ++i)
-      colours_[i] = std::isfinite(external_measure_[i]) ? palette_.ramp(external_measure_[i] / top) : palette_.muted;
-    char buf[64];
-    for (float t : {0.f, 0.5f, 1.f}) {
-      std::snprintf(buf, sizeof buf, "%.3g", double(t * top));
-      legend_.push_back({buf, palette_.ramp(t), 0, -1, ""});
-    }
-  } else if (by.kind == ColourKind::kGroup && external_groups_.size() == n) {
-    std::vector<size_t> count(external_group_names_.size(), 0);
-    size_t none = 0;
-    for (size_t i = 0; i < n; ++i) {
-      const int g = external_groups_[i];
-      colours_[i] = palette_.category(g);  // -1: muted
-      if (g >= 0 && size_t(g) < count.size()) ++count[size_t(g)];
-      else ++none;
-    }
-    for (size_t g = 0; g < count.size(); ++g)
-      legend_.push_back({external_group_names_[g], palette_.category(int(g)), count[g], -1, ""});
-    if (none) legend_.push_back({"no group", palette_.muted, none, -1, ""});
-  } else {
-    legend_.push_back({"item", palette_.category(0), n, -1, ""});
+    case ColourKind::kMeasure:
+      code_ = external_measure_.size() == n
+                  ? ramp_code(external_title_, external_unit_,
+                              std::vector<double>(external_measure_.begin(), external_measure_.end()), true, palette_)
+                  : plain_code("items", n, palette_);
+      break;
+    case ColourKind::kGroup:
+      code_ = external_groups_.size() == n ? group_code(external_title_, external_groups_, external_group_names_, palette_)
+                                           : plain_code("items", n, palette_);
+      break;
+    default: code_ = collection_code(collection_, by, palette_);
+  }
+  legend_.clear();
+  for (const CodeEntry& e : code_.entries) {
+    const bool tag_value = by.kind == ColourKind::kTag && !e.value.empty();
+    legend_.push_back({e.label, e.colour, e.count, tag_value ? by.tag_column : -1, e.value, e.mark});
   }
   dirty_colours_ = false;
   dirty_points_ = true;
@@ -343,11 +317,11 @@ void MapView::rebuild_points() {
   }
   for (size_t k = 0; k < positions_.size(); ++k) {
     const size_t i = size_t(draw_order_[k]);
-    Rgb c = i < colours_.size() ? colours_[i] : palette_.muted;
+    Rgb c = i < code_.colour.size() ? code_.colour[i] : palette_.muted;
     // Names alone: an item no judgment names yet has no place of its own; drawn faded.
     if (collection_.features.cols() == 0 && i < judgment_count_.size() && judgment_count_[i] == 0)
       c = toward(c, palette_.ground, kUnjudgedFade);
-    uint32_t flags = 0;
+    uint32_t flags = i < code_.mark.size() ? uint32_t(code_.mark[i]) << kPointMarkShift : 0u;
     if (selection_.contains(int(i))) flags |= kPointSelected;
     if (i < pinned_.size() && pinned_[i]) flags |= kPointPinned;
     if (int(i) == hovered_) flags |= kPointHovered;

@@ -16,20 +16,12 @@
 #include "solver/live/snapshot.h"
 #include "solver/base/judgment.h"
 #include "viewer/scene/camera.h"
+#include "viewer/scene/colour_code.h"
 #include "viewer/scene/palette.h"
 #include "viewer/scene/renderer.h"
 #include "viewer/scene/selection.h"
 
 namespace kith {
-
-// kMeasure and kGroup colour by values given from outside (set_measure / set_groups), e.g. the
-// structure panel's suspect scores, displacement from the reference map and groups.
-enum class ColourKind { kTag, kDisplacement, kJudgments, kPlain, kMeasure, kGroup };
-
-struct ColourBy {
-  ColourKind kind = ColourKind::kTag;  // (default: a tag column, if any)
-  int tag_column = -1;                 // -1: default_tag_column() (solver/io/collection.h) (default: -1)
-};
 
 struct ViewOptions {
   float point_size = 0.f;      // disc diameter in pixels at the target distance; 0 = by item count (default: 0)
@@ -56,6 +48,7 @@ struct LegendEntry {
   size_t count = 0;
   int tag_column = -1;   // >= 0: a tag value (click selects those items)
   std::string value;
+  Mark mark = Mark::kDisc;
 };
 
 class MapView {
@@ -107,9 +100,11 @@ class MapView {
   const std::vector<LegendEntry>& legend() const { return legend_; }
   Rgb colour_of(int item) const;
   std::string colour_title() const;
-  // Colour by a measure (ramp from 0 to its largest value; NaN = muted) or by groups (-1 = muted,
-  // names[g] in the legend) and switch the colouring to it. N values each.
-  void set_measure(const std::string& title, std::vector<float> values);
+  // The whole code: per-item colours and marks, the legend's entries and notes, a ramp's range.
+  const ColourCode& colour_code() const { return code_; }
+  // Colour by a measure (ramp from 0 to its largest value, `unit` in the legend; NaN = muted) or
+  // by groups (-1 = muted, names[g] in the legend) and switch the colouring to it. N values each.
+  void set_measure(const std::string& title, const std::string& unit, std::vector<float> values);
   void set_groups(const std::string& title, std::vector<int> groups, std::vector<std::string> names);
 
   // ---- nearest lists for the selection panel -----------------------------------
@@ -154,8 +149,8 @@ class MapView {
   glm::vec3 fitted_lo_{0.f}, fitted_hi_{0.f};  // the box last framed
   bool have_bounds_ = false;
   glm::vec3 grid_lo_{0.f}, grid_hi_{0.f};
-  std::vector<Rgb> colours_;
-  std::string external_title_;
+  ColourCode code_;
+  std::string external_title_, external_unit_;
   std::vector<float> external_measure_;
   std::vector<int> external_groups_;
   std::vector<std::string> external_group_names_;

@@ -1,19 +1,71 @@
 #include "viewer/scene/palette.h"
 
 #include <algorithm>
+#include <array>
+#include <cmath>
+#include <vector>
+
+#include "solver/features/colour.h"
 
 namespace kith {
 
 namespace {
-Rgb mix(Rgb a, Rgb b, float t) { return {a.r + (b.r - a.r) * t, a.g + (b.g - a.g) * t, a.b + (b.b - a.b) * t}; }
+
+// The ramp's path in CIELAB: from pale sand (L* 88) towards copper (62) and on to slate blue (32),
+// every point inside the sRGB gamut. Lightness falls along it, so order reads without hue; it is sampled at equal
+// CIEDE2000 steps so that equal differences of value look equally different.
+constexpr double kRampPath[3][3] = {{88, 0, 14}, {62, 24, 34}, {32, -6, -26}};
+constexpr int kRampSteps = 256;
+
+struct RampTable {
+  std::array<Rgb, kRampSteps> colour;
+};
+
+RampTable make_ramp() {
+  // Dense samples along the path, their cumulative CIEDE2000, then equal steps of it.
+  constexpr int kDense = 2048;
+  std::vector<Lab> dense(kDense + 1);
+  for (int k = 0; k <= kDense; ++k) {
+    // A quadratic Bézier curve with copper as its control point: it bends evenly, so steps
+    // measured straight across (as eyes compare two colours) stay equal near the bend as well.
+    const double u = double(k) / kDense;
+    const double w[3] = {(1 - u) * (1 - u), 2 * u * (1 - u), u * u};
+    double v[3];
+    for (int c = 0; c < 3; ++c) v[c] = w[0] * kRampPath[0][c] + w[1] * kRampPath[1][c] + w[2] * kRampPath[2][c];
+    dense[size_t(k)] = {v[0], v[1], v[2]};
+  }
+  std::vector<double> along(kDense + 1, 0.0);
+  for (int k = 1; k <= kDense; ++k) along[size_t(k)] = along[size_t(k) - 1] + ciede2000(dense[size_t(k) - 1], dense[size_t(k)]);
+  RampTable t;
+  size_t k = 0;
+  for (int i = 0; i < kRampSteps; ++i) {
+    const double want = along.back() * i / (kRampSteps - 1);
+    while (k + 1 < along.size() && along[k + 1] < want) ++k;
+    const size_t k1 = std::min(k + 1, along.size() - 1);
+    const double span = along[k1] - along[k];
+    const double u = span > 0 ? std::clamp((want - along[k]) / span, 0.0, 1.0) : 0.0;
+    const Lab& a = dense[k];
+    const Lab& b = dense[k1];
+    double r, g, bl;
+    lab_to_srgb({a.L + (b.L - a.L) * u, a.a + (b.a - a.a) * u, a.b + (b.b - a.b) * u}, &r, &g, &bl);
+    t.colour[size_t(i)] = {float(r), float(g), float(bl)};
+  }
+  return t;
+}
+
 }  // namespace
 
 Rgb Palette::ramp(float t) const {
-  t = std::clamp(t, 0.f, 1.f);
-  const Rgb low = dark ? rgb_hex(0x4A5A6A) : rgb_hex(0xB9C6D3);
-  const Rgb mid = rgb_hex(0x0072B2);
-  const Rgb high = rgb_hex(0xD55E00);
-  return t < 0.6f ? mix(low, mid, t / 0.6f) : mix(mid, high, (t - 0.6f) / 0.4f);
+  static const RampTable table = make_ramp();
+  t = std::clamp(std::isfinite(t) ? t : 0.f, 0.f, 1.f);
+  // Low values lie nearest the ground: light on paper, dark at night.
+  if (dark) t = 1.f - t;
+  const float at = t * (kRampSteps - 1);
+  const size_t i = std::min(size_t(at), size_t(kRampSteps - 2));
+  const float u = at - float(i);
+  const Rgb& a = table.colour[i];
+  const Rgb& b = table.colour[i + 1];
+  return {a.r + (b.r - a.r) * u, a.g + (b.g - a.g) * u, a.b + (b.b - a.b) * u};
 }
 
 // Each ground's colours in the order of the struct: ground, ink, faint, muted, nearer, farther,

@@ -43,8 +43,9 @@ struct Palette {
   // People's colours, in the order they are added: the categorical table's own order, which already
   // puts the most different colours first.
   static uint32_t person_colour(size_t k) { return kCategorical[k % kCategorical.size()]; }
-  // A sequential ramp for measures (0..1): from the paper's pale blue-grey to deep blue, then
-  // vermillion at the top end, so high values stand out on either ground.
+  // A sequential ramp for measures (0..1, low to high): a path in CIELAB from pale sand through
+  // copper to slate blue at equal CIEDE2000 steps (palette.cpp), run from light to dark on paper
+  // and from dark to light at night, so low values lie nearest the ground on either.
   Rgb ramp(float t) const;
 
   static Palette paper();

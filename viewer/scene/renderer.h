@@ -17,6 +17,8 @@ namespace kith {
 
 // Per-item flags drawn by the point shader.
 enum PointFlag : uint32_t { kPointSelected = 1, kPointPinned = 2, kPointHovered = 4, kPointDragged = 8 };
+// Bits 8-9 of the flags: the item's Mark (viewer/scene/colour_code.h): disc, ring, square, diamond.
+constexpr uint32_t kPointMarkShift = 8;
 
 struct PointVertex {
   glm::vec3 position;

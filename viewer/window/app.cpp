@@ -95,19 +95,24 @@ void App::set_view(const std::function<void(ViewOptions&)>& change) {
 
 void App::cycle_colour() {
   set_view([&](ViewOptions& o) {
-    // tag columns in order, then judgments, moved, plain
+    // tag columns in order, then the numeric columns, judgments, moved, plain
     auto& by = o.colour_by;
-    const int tags = int(collection.tags.size());
+    const int tags = int(collection.tags.size()), numbers = int(collection.feature_names.size());
     if (by.kind == ColourKind::kTag && by.tag_column + 1 < tags) {
       ++by.tag_column;
-    } else if (by.kind == ColourKind::kTag) {
+    } else if (by.kind == ColourKind::kTag && numbers > 0) {
+      by = {ColourKind::kColumn, -1, 0};
+    } else if (by.kind == ColourKind::kColumn && by.feature_column + 1 < numbers) {
+      ++by.feature_column;
+    } else if (by.kind == ColourKind::kTag || by.kind == ColourKind::kColumn) {
       by.kind = ColourKind::kJudgments;
     } else if (by.kind == ColourKind::kJudgments) {
       by.kind = ColourKind::kDisplacement;
     } else if (by.kind == ColourKind::kDisplacement) {
       by.kind = ColourKind::kPlain;
     } else {
-      by = tags > 0 ? ColourBy{ColourKind::kTag, 0} : ColourBy{ColourKind::kPlain, 0};
+      by = tags > 0 ? ColourBy{ColourKind::kTag, 0, -1} : numbers > 0 ? ColourBy{ColourKind::kColumn, -1, 0}
+                                                                       : ColourBy{ColourKind::kPlain, -1, -1};
     }
   });
   say("colour: " + view->colour_title());

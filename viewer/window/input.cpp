@@ -378,7 +378,7 @@ const std::vector<KeyRow> kTable = {
        return true;
      }},
     // ---- the view ----
-    {"C", "next colouring (tags, judgments, moved, plain)", {any(keys::letter('c'))}, nullptr,
+    {"C", "next colouring (tags, numeric columns, judgments, moved, plain)", {any(keys::letter('c'))}, nullptr,
      [](App& a, int, int) { return a.cycle_colour(), true; }},
     {"G / J / I", "floor grid / judgment lines / picture cards",
      any_of({keys::letter('g'), keys::letter('j'), keys::letter('i')}), nullptr, toggle_view},

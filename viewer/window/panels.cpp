@@ -157,7 +157,13 @@ void App::panel_map() {
   ImGui::SetNextItemWidth(150);
   if (ImGui::BeginCombo("colour", current.c_str())) {
     for (size_t t = 0; t < collection.tags.size(); ++t)
-      if (ImGui::Selectable(collection.tags[t].name.c_str())) o.colour_by = {ColourKind::kTag, int(t)}, changed = true;
+      if (ImGui::Selectable(collection.tags[t].name.c_str())) o.colour_by = {ColourKind::kTag, int(t), -1}, changed = true;
+    if (!collection.feature_names.empty()) ImGui::TextDisabled("numbers, on a ramp");
+    for (size_t f = 0; f < collection.feature_names.size(); ++f) {
+      ImGui::PushID(int(f));
+      if (ImGui::Selectable(collection.feature_names[f].c_str())) o.colour_by = {ColourKind::kColumn, -1, int(f)}, changed = true;
+      ImGui::PopID();
+    }
     if (ImGui::Selectable("judgments per item")) o.colour_by.kind = ColourKind::kJudgments, changed = true;
     if (ImGui::Selectable("moved since opening")) o.colour_by.kind = ColourKind::kDisplacement, changed = true;
     if (ImGui::Selectable("plain")) o.colour_by.kind = ColourKind::kPlain, changed = true;
