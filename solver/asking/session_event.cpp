@@ -25,6 +25,7 @@ json detail(const event::CantTell& e) {
   return j;
 }
 json detail(const event::CantTellUndone& e) { return {{"person", e.person}, {"question", question_json(e.question)}}; }
+json detail(const event::Undone& e) { return {{"action", e.redo ? "redo" : "undo"}, {"what", e.what}}; }
 json detail(const event::Reasked& e) {
   return {{"repeat_of", e.question.repeat_of},
           {"person", e.person},

@@ -53,10 +53,17 @@ struct Reasked {
   AskedQuestion question;
   std::vector<int64_t> judgments;  // the stored ids of the answer's judgments
 };
+// Undo or redo in the window (viewer/scene/undo_feed.h): what it took back or brought back.
+// The pins, unpins and retractions it made are stored as such; this says why they happened.
+struct Undone {
+  static constexpr const char* kKind = "undo";
+  bool redo = false;  // true: redo
+  std::string what;   // e.g. "pin of c7", "3 judgments"
+};
 }  // namespace event
 
 using SessionEvent = std::variant<event::PersonAdded, event::PersonRenamed, event::PersonColoured, event::CantTell,
-                                  event::CantTellUndone, event::Reasked>;
+                                  event::CantTellUndone, event::Reasked, event::Undone>;
 
 // The stored form: a short kind word and a JSON object as text.
 struct EventRecord {

@@ -57,15 +57,21 @@ void MapInteraction::pointer_move(const glm::vec2& pixel) {
       break;
     case State::kBoxing:
       break;
+    case State::kLasso:
+      if (lasso_.empty() || glm::length(pixel - lasso_.back()) >= 3.f) lasso_.push_back(pixel);
+      break;
   }
 }
 
-void MapInteraction::button_down(int button, bool shift) {
+void MapInteraction::button_down(int button, bool shift, bool lasso) {
   if (state_ == State::kChoosing) choose_release();  // a new gesture lets go of the last drop
   if (state_ != State::kIdle) return;
   press_at_ = pointer_;
   press_shift_ = shift;
-  if (button == 0) {
+  if (button == 0 && lasso) {
+    lasso_.assign(1, pointer_);
+    state_ = State::kLasso;
+  } else if (button == 0) {
     press_item_ = view_.item_at(pointer_);
     if (press_item_ >= 0) {
       if (shift)
@@ -107,6 +113,15 @@ void MapInteraction::button_up(int button) {
       std::vector<int> hits = pick_box(view_.camera(), view_.positions(), press_at_, pointer_);
       for (int i : hits) view_.selection().add(i);
       view_.selection_changed();
+      state_ = State::kIdle;
+      break;
+    }
+    case State::kLasso: {
+      const std::vector<int> hits = pick_lasso(view_.camera(), view_.positions(), lasso_);
+      if (!press_shift_) view_.selection().clear();
+      for (int i : hits) view_.selection().add(i);
+      view_.selection_changed();
+      lasso_.clear();
       state_ = State::kIdle;
       break;
     }

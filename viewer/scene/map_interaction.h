@@ -25,13 +25,14 @@ using TeachHook = std::function<std::vector<Judgment>(const Snapshot& snapshot, 
 
 class MapInteraction {
  public:
-  enum class State { kIdle, kPressedItem, kDragging, kOrbiting, kPanning, kBoxing, kChoosing };
+  enum class State { kIdle, kPressedItem, kDragging, kOrbiting, kPanning, kBoxing, kLasso, kChoosing };
   static constexpr float kDragThresholdPx = 4.f;
 
   MapInteraction(MapView& view, MapFeed& feed) : view_(view), feed_(feed) {}
 
   void pointer_move(const glm::vec2& pixel);
-  void button_down(int button, bool shift);
+  // `shift`: add to the selection (click, box, lasso); `lasso`: a left drag draws a lasso (ctrl held).
+  void button_down(int button, bool shift, bool lasso = false);
   void button_up(int button);
   void scroll(float steps) { view_.camera().zoom(steps); }
   // Call once per frame: posts the drag target if the dragged item moved.
@@ -40,6 +41,7 @@ class MapInteraction {
   State state() const { return state_; }
   glm::vec2 pointer() const { return pointer_; }
   glm::vec2 box_start() const { return press_at_; }
+  const std::vector<glm::vec2>& lasso_path() const { return lasso_; }  // while kLasso
 
   // ---- the release choice -------------------------------------------------------
   bool choosing() const { return state_ == State::kChoosing; }
@@ -73,6 +75,7 @@ class MapInteraction {
   State state_ = State::kIdle;
   glm::vec2 pointer_{0.f}, press_at_{0.f}, last_{0.f};
   bool press_shift_ = false;
+  std::vector<glm::vec2> lasso_;
   int press_item_ = -1;
   int drag_item_ = -1;
   glm::vec3 drag_from_{0.f}, drag_to_{0.f};

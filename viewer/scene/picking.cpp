@@ -33,9 +33,11 @@ int pick_item(const Camera& camera, const std::vector<glm::vec3>& positions, con
   return best;
 }
 
-std::vector<int> pick_box(const Camera& camera, const std::vector<glm::vec3>& positions, const glm::vec2& a,
-                          const glm::vec2& b, const std::vector<uint8_t>* hidden) {
-  const glm::vec2 lo = glm::min(a, b), hi = glm::max(a, b);
+namespace {
+// The visible items (in front of the camera, not hidden) whose screen position passes `inside`.
+template <typename Inside>
+std::vector<int> pick_on_screen(const Camera& camera, const std::vector<glm::vec3>& positions,
+                                const std::vector<uint8_t>* hidden, Inside inside) {
   const glm::mat4 vp = camera.projection() * camera.view();
   const float w = float(camera.width()), h = float(camera.height());
   std::vector<int> out;
@@ -44,9 +46,31 @@ std::vector<int> pick_box(const Camera& camera, const std::vector<glm::vec3>& po
     const glm::vec4 c = vp * glm::vec4(positions[i], 1.f);
     if (c.w <= camera.near_plane()) continue;
     const glm::vec2 s((c.x / c.w * 0.5f + 0.5f) * w, (1.f - (c.y / c.w * 0.5f + 0.5f)) * h);
-    if (s.x >= lo.x && s.x <= hi.x && s.y >= lo.y && s.y <= hi.y) out.push_back(int(i));
+    if (inside(s)) out.push_back(int(i));
   }
   return out;
+}
+}  // namespace
+
+std::vector<int> pick_box(const Camera& camera, const std::vector<glm::vec3>& positions, const glm::vec2& a,
+                          const glm::vec2& b, const std::vector<uint8_t>* hidden) {
+  const glm::vec2 lo = glm::min(a, b), hi = glm::max(a, b);
+  return pick_on_screen(camera, positions, hidden, [&](const glm::vec2& s) {
+    return s.x >= lo.x && s.x <= hi.x && s.y >= lo.y && s.y <= hi.y;
+  });
+}
+
+std::vector<int> pick_lasso(const Camera& camera, const std::vector<glm::vec3>& positions,
+                            const std::vector<glm::vec2>& lasso, const std::vector<uint8_t>* hidden) {
+  if (lasso.size() < 3) return {};
+  return pick_on_screen(camera, positions, hidden, [&](const glm::vec2& s) {
+    bool in = false;  // even-odd: count the edges a ray to the right crosses
+    for (size_t k = 0, prev = lasso.size() - 1; k < lasso.size(); prev = k++) {
+      const glm::vec2 &a = lasso[k], &b = lasso[prev];
+      if ((a.y > s.y) != (b.y > s.y) && s.x < (b.x - a.x) * (s.y - a.y) / (b.y - a.y) + a.x) in = !in;
+    }
+    return in;
+  });
 }
 
 namespace {

@@ -19,6 +19,10 @@ int pick_item(const Camera& camera, const std::vector<glm::vec3>& positions, con
 // Items whose projection lies inside the screen rectangle with corners a and b (any order).
 std::vector<int> pick_box(const Camera& camera, const std::vector<glm::vec3>& positions, const glm::vec2& a,
                           const glm::vec2& b, const std::vector<uint8_t>* hidden = nullptr);
+// Items whose screen position lies inside the closed path `lasso` (window pixels; even-odd rule,
+// so a path that crosses itself leaves out what it encloses twice), skipping `hidden` ones.
+std::vector<int> pick_lasso(const Camera& camera, const std::vector<glm::vec3>& positions,
+                            const std::vector<glm::vec2>& lasso, const std::vector<uint8_t>* hidden = nullptr);
 
 // Items whose id or any tag value contains `text` (case-insensitive); "column=value" matches that
 // tag column exactly. At most `limit` results, in collection order.

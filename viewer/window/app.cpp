@@ -77,6 +77,16 @@ uint64_t App::post(CommandBody body) {
   return seq;
 }
 
+void App::undo(bool redo) {
+  if (!undo_feed) return;
+  std::string refused;
+  const std::string what = redo ? undo_feed->redo(&refused) : undo_feed->undo(&refused);
+  if (what.empty()) return say(redo ? "nothing to redo" : "nothing to undo");
+  if (!refused.empty()) return say(std::string(redo ? "redo" : "undo") + " of " + what + ": " + refused);
+  if (hooks.record_event) hooks.record_event(event::Undone{redo, what});
+  say(std::string(redo ? "redid: " : "undid: ") + what);
+}
+
 void App::toggle_pause() {
   if (paused()) {
     post(cmd::Resume{});
@@ -131,12 +141,15 @@ void glfw_error(int code, const char* text) { std::fprintf(stderr, "kith: window
 
 // ============================================================================ [SECTION] main loop
 
-int run_window(const Collection& collection, MapFeed& feed, const WindowOptions& options, WindowHooks hooks) {
+int run_window(const Collection& collection, MapFeed& given, const WindowOptions& options, WindowHooks hooks) {
+  UndoFeed undo_feed(given);  // every command the window sends passes it (ctrl+Z, ctrl+shift+Z)
+  MapFeed& feed = undo_feed;
   if (std::string e = options.IsValid(); !e.empty()) {
     std::fprintf(stderr, "kith open: %s\n", e.c_str());
     return kExitUsage;
   }
   App app(collection, feed, options, std::move(hooks));
+  app.undo_feed = &undo_feed;
   if (!options.script.empty()) {
     try {
       app.script = load_input_script(options.script);
@@ -305,6 +318,7 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
         last_title = now;
       }
       ++app.frame;
+      undo_feed.end_step();  // what this frame sent is one step
       // A script's frame counter also holds while the camera glides (at most 2 s per glide), so
       // "dump" and "shot" see the same settled view however loaded the machine is.
       const bool gliding = app.scripted && app.view->camera().moving() &&

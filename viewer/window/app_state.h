@@ -18,6 +18,7 @@
 #include "viewer/panels/panel_judgments.h"
 #include "viewer/panels/panel_structure.h"
 #include "viewer/scene/map_settings.h"
+#include "viewer/scene/undo_feed.h"
 #include "viewer/window/app.h"
 #include "viewer/window/input_script.h"
 
@@ -49,6 +50,7 @@ struct App {
 
   const Collection& collection;
   MapFeed& feed;
+  UndoFeed* undo_feed = nullptr;  // the same feed: undo and redo (viewer/scene/undo_feed.h)
   WindowOptions options;
   WindowHooks hooks;
 
@@ -106,6 +108,7 @@ struct App {
   uint64_t post(CommandBody body);  // the same; 0 when refused
   bool paused() const { return view->snapshot() && view->snapshot()->paused; }
   void toggle_pause();
+  void undo(bool redo);  // ctrl+Z / ctrl+shift+Z: says what it did, and records it in the session
   void set_view(const std::function<void(ViewOptions&)>& change);
   void cycle_colour();
   void select_all();

@@ -112,7 +112,8 @@ void App::process_queue() {
           }
         }
         if (e.action == GLFW_PRESS) {
-          if (!io.WantCaptureMouse || scripted) interaction->button_down(e.button, (e.mods & GLFW_MOD_SHIFT) != 0);
+          if (!io.WantCaptureMouse || scripted) interaction->button_down(e.button, (e.mods & GLFW_MOD_SHIFT) != 0,
+                                                                         (e.mods & GLFW_MOD_CONTROL) != 0);
         } else {
           interaction->button_up(e.button);  // always, so a gesture never sticks
         }
@@ -309,6 +310,7 @@ const std::vector<KeyRow> kTable = {
        return a.view->camera().zoom(closer ? 1.f : -1.f), true;
      }},
     about("shift + left drag", "select with a box"),
+    about("ctrl + left drag", "select with a lasso (ctrl + shift: add to the selection)"),
     about("click, shift + click", "select, add to the selection"),
     // ---- after a drag: the release choice ----
     {"P or Enter / Esc / T (after a drag)", "pin it where it was dropped / let it go / teach (the move as judgments)",
@@ -345,6 +347,11 @@ const std::vector<KeyRow> kTable = {
        a.asking && a.asking->desk().asking() ? a.asking->frame_map() : a.view->fit_all(true);
        return true;
      }},
+    {"ctrl + Z / ctrl + shift + Z, ctrl + Y", "undo / redo a pin, unpin, teach, judgment or retraction",
+     {K{keys::letter('z'), kCtrl, kCtrl | kShift}, K{keys::letter('z'), kCtrl | kShift, kCtrl | kShift},
+      ctrl(keys::letter('y'))},
+     nullptr,
+     [](App& a, int key, int mods) { return a.undo(key == keys::letter('y') || (mods & kShift)), true; }},
     {"Z", "zoom to the selection", {any(keys::letter('z'))}, nullptr,
      [](App& a, int, int) { return a.view->focus_selection(), true; }},
     {"R", "slow turn on/off", {plain(keys::letter('r'))}, nullptr,

@@ -43,6 +43,9 @@ void App::panels() {
       if (ImGui::MenuItem(paused() ? "Resume" : "Pause", "Space")) toggle_pause();
       if (ImGui::MenuItem("Restart", "shift+R")) handle_key(keys::letter('r'), keys::kShift);
       ImGui::Separator();
+      if (ImGui::MenuItem("Undo", "ctrl+Z", false, undo_feed && undo_feed->can_undo())) undo(false);
+      if (ImGui::MenuItem("Redo", "ctrl+shift+Z", false, undo_feed && undo_feed->can_redo())) undo(true);
+      ImGui::Separator();
       if (ImGui::MenuItem("Fit the whole map", "F")) view->fit_all(true);
       if (ImGui::MenuItem("Zoom to the selection", "Z")) view->focus_selection();
       if (ImGui::MenuItem("Slow turn", "R", view->auto_rotate)) view->auto_rotate = !view->auto_rotate;
@@ -344,6 +347,12 @@ void App::overlays() {
                       IM_COL32(0, 114, 178, 40));
     fg->AddRect(ImVec2(std::min(a.x, b.x), std::min(a.y, b.y)), ImVec2(std::max(a.x, b.x), std::max(a.y, b.y)),
                 IM_COL32(0, 114, 178, 200));
+  }
+  // Lasso selection: the path drawn so far, closed back to where it started.
+  if (interaction->state() == MapInteraction::State::kLasso && interaction->lasso_path().size() > 1) {
+    std::vector<ImVec2> path;
+    for (const glm::vec2& p : interaction->lasso_path()) path.push_back(ImVec2(p.x * inv, p.y * inv));
+    fg->AddPolyline(path.data(), int(path.size()), IM_COL32(0, 114, 178, 220), ImDrawFlags_Closed, 1.5f);
   }
   // Labels for the selection (first few) and the hovered item.
   const Rgb ink = view->palette().ink;

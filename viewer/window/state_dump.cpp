@@ -48,6 +48,9 @@ void App::dump_state(const std::string& path) {
   j["camera"] = view->camera().str();
   j["live"] = feed.live();
   j["title"] = title_text();
+  j["undo_steps"] = undo_feed ? undo_feed->undo_depth() : 0;
+  j["redo_steps"] = undo_feed ? undo_feed->redo_depth() : 0;
+  j["said"] = Clock::now() < toast_until ? toast : "";
   json items = json::array();
   const auto& pos = view->positions();
   for (size_t i = 0; i < pos.size() && i < 20000; ++i) {
