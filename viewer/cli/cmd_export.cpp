@@ -8,7 +8,6 @@
 #include <filesystem>
 
 #include "solver/io/layout_writer.h"
-#include "solver/measures/health.h"
 #include "solver/measures/judgment_health.h"
 #include "solver/session/session_store.h"
 #include "viewer/cli/commands.h"
@@ -28,7 +27,7 @@ const char* const kUsage =
     "usage: kith export SESSION [--layout out.csv|out.json] [--judgments out.csv] [--picture out.png]\n"
     "                           [--flat out.csv] [--people names|codes|leave-out] [--include-retracted]\n"
     "                           [--poster out.png|out.pdf|out.svg] [--caption COLUMN] [--contact-sheets]\n"
-    "                           [--tag COLUMN] [--size WxH|A3|A2]\n"
+    "                           [--tag COLUMN] [--size WxH|A3|A2|A4]\n"
     "\n"
     "Writes what a session holds for use elsewhere. Several exports may be given at once. The\n"
     "session is only read (it may be open in a window at the same time).\n";
@@ -65,7 +64,8 @@ const char* const kOptions =
     "  --people RULE         in --judgments: names (default), codes (P1, P2, ... in order of first\n"
     "                        appearance) or leave-out (an empty person column)\n"
     "  --include-retracted   in --judgments: also withdrawn judgments (default: left out)\n"
-    "  --tag COLUMN          the tag column for suspect scores (default: the first that groups items)\n"
+    "  --tag COLUMN          the tag column for suspect scores and for naming the poster's groups\n"
+    "                        (default: the first that groups items)\n"
     "  --force               replace the export files if they exist (never a session or a folder)\n"
     "  --raw-csv             CSV text fields exactly as they are: without it, a field that a\n"
     "                        spreadsheet would run as a formula (starting with = + - @, tab or CR,\n"
@@ -211,13 +211,12 @@ int cmd_export(const Args& args) {
       const std::string problem = write_poster(c, flat, out, poster, rule, &made);
       if (!made.refused.empty()) return refuse_output(flags, made.refused, rule);
       if (!problem.empty()) return report("--poster: ", problem);
-      const int k = int(std::min<size_t>(10, c.size() - 1));
       std::printf("%s: poster (%s) of %zu items, %zu as pictures, %zu groups, cards %.1f mm across\n", out.c_str(),
                   poster.page.name.c_str(), made.items, made.pictures, made.groups, made.card_mm);
-      std::printf("  of each item's %d nearest neighbours, the poster keeps %.1f%% of the flat layout's; the flat "
+      std::printf("  of each item's 10 nearest neighbours, the poster keeps %.1f%% of the flat layout's; the flat "
                   "layout keeps %.1f%% of the 3-D map's, the poster %.1f%%\n",
-                  k, 100.0 * made.kept, 100.0 * neighbour_recall(checkpoint->positions, flat, k),
-                  100.0 * neighbour_recall(checkpoint->positions, made.centres, k));
+                  100.0 * made.kept, 100.0 * neighbours_kept(checkpoint->positions, flat),
+                  100.0 * neighbours_kept(checkpoint->positions, made.centres));
       if (made.captions_too_small)
         std::printf("  captions left out: the cards are too small to hold legible text; a larger --size (A2) makes "
                     "room for them, and the contact sheets (--contact-sheets) always have them\n");

@@ -398,7 +398,8 @@ void draw_sheet(cairo_t* cr, const Palette& pal, const Plan& p, const std::vecto
   const double strip = captions ? 0.16 * cell : 0.0;
   for (size_t k = 0; k < members.size(); ++k) {
     const size_t i = size_t(members[k]);
-    const double cx = m + cell * double(k % size_t(columns)), cy = top + cell * double(k / size_t(columns));
+    const double cx = m + (w - 2 * m - cell * columns) / 2 + cell * double(k % size_t(columns)),
+                 cy = top + cell * double(k / size_t(columns));
     const double room = cell * 0.9, avail_h = room - strip;
     const Card& card = p.cards[i];
     if (pictures[i]) {
@@ -499,6 +500,15 @@ std::vector<std::string> contact_sheet_files(const std::string& out, size_t grou
   for (size_t g = 0; g < groups; ++g) files.push_back(stem + "-group-" + std::to_string(g + 1) + ext);
   if (ungrouped) files.push_back(stem + "-no-group" + ext);
   return files;
+}
+
+double neighbours_kept(const Points& from, const Points& to) {
+  const size_t n = size_t(from.rows());
+  if (n < 3) return 1.0;
+  HealthOptions o;
+  o.recall_k = int(std::min<size_t>(10, n - 1));
+  o.trust_k = 1;
+  return n <= o.sample_above ? neighbour_recall(from, to, o.recall_k) : measure_health(from, to, o).neighbour_recall;
 }
 
 std::string write_poster(const Collection& c, const Points& flat, const std::string& out, const PosterOptions& o,
@@ -671,13 +681,7 @@ std::string write_poster(const Collection& c, const Points& flat, const std::str
   summary->spacing_rounds = spaced.rounds;
   summary->overlaps_at_start = spaced.overlaps_at_start;
   summary->centres = p.centres;
-  // Recall is O(N^2): past measure_health's sample size it is taken on its fixed-seed sample.
-  HealthOptions kept;
-  kept.recall_k = int(std::min<size_t>(10, n > 1 ? n - 1 : 1));
-  kept.trust_k = 1;
-  summary->kept = n < 3                    ? 1.0
-                  : n <= kept.sample_above ? neighbour_recall(flat, p.centres, kept.recall_k)
-                                           : measure_health(flat, p.centres, kept).neighbour_recall;
+  summary->kept = neighbours_kept(flat, p.centres);
   return "";
 }
 

@@ -64,6 +64,11 @@ struct PosterSummary {
 std::vector<std::string> contact_sheet_files(const std::string& out, size_t groups, bool ungrouped,
                                              const PosterOptions& options);
 
+// Share of each item's 10 nearest neighbours in FROM that are among its 10 nearest in TO
+// (neighbour_recall, solver/measures/health.h; past 5,000 items on measure_health's fixed-seed
+// sample, since it costs O(N^2)). 1 for fewer than 3 items.
+double neighbours_kept(const Points& from, const Points& to);
+
 // FLAT: N x 2 (the flat layout of COLLECTION). Returns "" or what went wrong (a refused or failed
 // write names the file).
 std::string write_poster(const Collection& collection, const Points& flat, const std::string& out,
