@@ -211,15 +211,16 @@ int cmd_export(const Args& args) {
       const std::string problem = write_poster(c, flat, out, poster, rule, &made);
       if (!made.refused.empty()) return refuse_output(flags, made.refused, rule);
       if (!problem.empty()) return report("--poster: ", problem);
-      std::printf("%s: poster (%s) of %zu items, %zu as pictures, %zu groups, cards %.1f mm across\n", out.c_str(),
+      std::printf("%s: poster (%s) of %zu items, %zu as pictures, %zu group(s), cards %.1f mm across\n", out.c_str(),
                   poster.page.name.c_str(), made.items, made.pictures, made.groups, made.card_mm);
       std::printf("  of each item's 10 nearest neighbours, the poster keeps %.1f%% of the flat layout's; the flat "
                   "layout keeps %.1f%% of the 3-D map's, the poster %.1f%%\n",
                   100.0 * made.kept, 100.0 * neighbours_kept(checkpoint->positions, flat),
                   100.0 * neighbours_kept(checkpoint->positions, made.centres));
       if (made.captions_too_small)
-        std::printf("  captions left out: the cards are too small to hold legible text; a larger --size (A2) makes "
-                    "room for them, and the contact sheets (--contact-sheets) always have them\n");
+        std::printf("  captions left out: they need cards of about %.1f mm (a larger --size, or fewer items); the "
+                    "contact sheets (--contact-sheets) always have them\n",
+                    made.caption_mm);
       for (size_t f = 1; f < made.files.size(); ++f) std::printf("%s: contact sheet\n", made.files[f].c_str());
     }
   } catch (const SessionError& e) {

@@ -30,6 +30,7 @@ constexpr double kSvgPixelsPerPoint = 2.0 * 96.0 / 72.0;
 constexpr double kPictureMemory = 256e6;   // bytes all decoded pictures may take together
 constexpr uint32_t kBlankCard = 0xE4E0D8;  // neutral card: never a tag's colour
 constexpr double kSmallestText = 4.0;      // points: captions smaller than this are left out
+constexpr double kCaptionFont = 0.17;      // caption type size, in card units
 
 struct Card {
   double w = 1, h = 1;   // the whole card, caption strip included
@@ -128,10 +129,10 @@ void draw_card(cairo_t* cr, const Palette& pal, const Card& card, cairo_surface_
     cairo_set_line_width(cr, line);
     cairo_rectangle(cr, x + line / 2, y + line / 2, w - line, ph - line);
     cairo_stroke(cr);
-    if (captions && !card.caption.empty() && 0.13 * s >= kSmallestText) {
-      font(cr, 0.13 * s);
+    if (captions && !card.caption.empty() && kCaptionFont * s >= kSmallestText) {
+      font(cr, kCaptionFont * s);
       set_colour(cr, pal.ink);
-      centred_text(cr, card.caption, x + w / 2, y + ph + 0.16 * s, w);
+      centred_text(cr, card.caption, x + w / 2, y + ph + 0.19 * s, w);
     }
     return;
   }
@@ -345,7 +346,7 @@ void draw_poster_page(cairo_t* cr, const Palette& pal, const Plan& p, const std:
     set_colour(cr, pal.category(int(g)), 0.10);
     cairo_fill_preserve(cr);
     set_colour(cr, pal.category(int(g)), 0.85);
-    cairo_set_line_width(cr, std::max(0.5, 0.03 * p.scale));
+    cairo_set_line_width(cr, std::clamp(0.03 * p.scale, 0.5, 1.5));
     cairo_stroke(cr);
   }
   for (size_t i = 0; i < p.cards.size(); ++i) {
@@ -677,7 +678,8 @@ std::string write_poster(const Collection& c, const Points& flat, const std::str
   for (const auto& s : pictures) summary->pictures += s ? 1 : 0;
   summary->groups = p.grouping.groups.size();
   summary->card_mm = p.scale * kMmPerPoint;
-  summary->captions_too_small = captions && 0.13 * p.scale < kSmallestText;
+  summary->captions_too_small = captions && kCaptionFont * p.scale < kSmallestText;
+  summary->caption_mm = kSmallestText / kCaptionFont * kMmPerPoint;
   summary->spacing_rounds = spaced.rounds;
   summary->overlaps_at_start = spaced.overlaps_at_start;
   summary->centres = p.centres;

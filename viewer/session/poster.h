@@ -56,6 +56,7 @@ struct PosterSummary {
   size_t overlaps_at_start = 0;
   std::vector<std::string> files;   // written, the poster first
   bool captions_too_small = false;  // captions were asked for but the cards are too small to hold them
+  double caption_mm = 0.0;          // the card size (mm) that captions need
   std::string refused;              // a target that may not be written (nothing was written then)
 };
 
