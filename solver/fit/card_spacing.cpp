@@ -154,12 +154,12 @@ CardSpacing space_cards(const Points& places, const std::vector<double>& w, cons
     c += o.pull * (out.places - c);
   }
   const Eigen::RowVector2d centre = c.colwise().mean();
-  auto settle = [&](Points* cards, int limit) {  // pushes until clear; false when LIMIT rounds do not do it
-    for (int r = 0; count_overlaps(*cards, w, h, o.gap) > 0; ++r, ++out.rounds) {
-      if (r == limit) return false;
-      push(cards, w, h, o.gap);
-    }
-    return true;
+  // Pushes until clear (a push that finds no overlapping pair moves nothing); false when LIMIT
+  // rounds do not do it.
+  auto settle = [&](Points* cards, int limit) {
+    for (int r = 0; r <= limit; ++r, ++out.rounds)
+      if (push(cards, w, h, o.gap) == 0) return true;
+    return false;
   };
   while (!settle(&c, o.settle_rounds)) {
     c = ((c.rowwise() - centre) * 1.05).rowwise() + centre;
