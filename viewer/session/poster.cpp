@@ -569,9 +569,19 @@ std::string write_poster(const Collection& c, const Points& flat, const std::str
   // title and the legend.
   std::vector<double> ws(n), hs(n);
   for (size_t i = 0; i < n; ++i) ws[i] = p.cards[i].w, hs[i] = p.cards[i].h;
+  // A page of fixed shape (WxH) is not turned; the arrangement is, a quarter turn, when it is
+  // wide on a tall page or tall on a wide one (a turn keeps every neighbourhood).
+  Points places = flat;
+  {
+    const Eigen::RowVector2d extent = flat.colwise().maxCoeff() - flat.colwise().minCoeff();
+    if (!o.page.paper && (extent(0) > extent(1)) != (o.page.width > o.page.height)) {
+      places.col(0) = flat.col(1);
+      places.col(1) = -flat.col(0);
+    }
+  }
   CardSpacing spaced;
   try {
-    spaced = space_cards(flat, ws, hs, o.spacing);
+    spaced = space_cards(places, ws, hs, o.spacing);
   } catch (const std::exception& e) {
     return std::string("the cards could not be spaced: ") + e.what();
   }

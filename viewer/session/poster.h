@@ -23,7 +23,8 @@
 namespace kith {
 
 // The page, in points (1/72 inch). A3 and A2 are paper sizes (turned to suit the arrangement,
-// PNGs at 150 pixels per inch); WxH is a page of W x H pixels at 96 per inch, as a screen shows it.
+// PNGs at 150 pixels per inch); WxH is a page of W x H pixels at 96 per inch, as a screen shows it,
+// which keeps its shape (the arrangement is given a quarter turn to suit it instead).
 struct PosterPage {
   double width = 0, height = 0;  // points
   double png_scale = 1.0;        // PNG pixels per point
