@@ -1,4 +1,5 @@
-// kith export SESSION --layout out.csv|out.json | --judgments out.csv | --picture out.png | --flat out.csv:
+// kith export SESSION --layout out.csv|out.json | --judgments out.csv | --picture out.png | --flat out.csv |
+// --poster out.png|out.pdf|out.svg:
 // writes what a session holds in formats other tools read. The session is opened read-only (so
 // it may be open in a window meanwhile); each output is written to a temporary file and renamed,
 // and an existing session file is never overwritten by an export. Main thread only.
@@ -15,6 +16,7 @@
 #include "viewer/cli/session_cli.h"
 #include "viewer/cli/shared_flags.h"
 #include "viewer/session/session_export.h"
+#include "viewer/session/poster.h"
 #include "viewer/session/session_link.h"
 #include "viewer/window/offscreen_render.h"
 
@@ -24,7 +26,8 @@ namespace {
 const char* const kUsage =
     "usage: kith export SESSION [--layout out.csv|out.json] [--judgments out.csv] [--picture out.png]\n"
     "                           [--flat out.csv] [--people names|codes|leave-out] [--include-retracted]\n"
-    "                           [--tag COLUMN] [--size WxH] [--colour COLUMN]\n"
+    "                           [--poster out.png|out.pdf|out.svg] [--caption COLUMN] [--contact-sheets]\n"
+    "                           [--tag COLUMN] [--size WxH|A3|A2|A4] [--colour COLUMN]\n"
     "\n"
     "Writes what a session holds for use elsewhere. Several exports may be given at once. The\n"
     "session is only read (it may be open in a window at the same time). It keeps its collection\n"
@@ -42,7 +45,19 @@ const char* const kOptions =
     "                        positions with STEM.ids.csv beside them\n"
     "  --judgments FILE      every judgment as CSV: anchor,nearer,farther,person,time,kind,weight by id\n"
     "  --picture FILE        a PNG of the map from the last checkpoint, pins marked\n"
-    "  --size WxH            size of --picture in pixels (default: 1280x800)\n"
+    "  --poster FILE         a poster of the flat layout (.png, .pdf or .svg): every item's picture\n"
+    "                        at its place, moved apart just enough that none overlap, the groups\n"
+    "                        outlined and named; items without a picture are plain cards with their\n"
+    "                        caption. It prints how many of each item's 10 nearest neighbours the\n"
+    "                        poster keeps (README, 'Posters')\n"
+    "  --size SIZE           of --picture: WxH in pixels (default: 1280x800); of --poster: A3, A2 or\n"
+    "                        A4 paper, turned to suit the arrangement (a PNG at 150 pixels per inch),\n"
+    "                        or WxH in pixels (default: A3)\n"
+    "  --caption COLUMN      on --poster: a text column printed under each picture ('id' for the ids;\n"
+    "                        default: no captions, except on cards without a picture, which show ids)\n"
+    "  --contact-sheets      with --poster: one sheet per group listing its items with their captions;\n"
+    "                        pages after the poster in a PDF, else files beside it: NAME-group-1.png,\n"
+    "                        ..., NAME-no-group.png\n"
     "  --flat FILE           a 2-D arrangement (for print or a slide): the same blended objective\n"
     "                        (features, judgments, pins) run in 2-D, started from the 3-D map seen\n"
     "                        along its flattest direction; CSV (or JSON) like --layout without z;\n"
@@ -50,7 +65,8 @@ const char* const kOptions =
     "  --people RULE         in --judgments: names (default), codes (P1, P2, ... in order of first\n"
     "                        appearance) or leave-out (an empty person column)\n"
     "  --include-retracted   in --judgments: also withdrawn judgments (default: left out)\n"
-    "  --tag COLUMN          the tag column for suspect scores (default: the first that groups items)\n"
+    "  --tag COLUMN          the tag column for suspect scores and for naming the poster's groups\n"
+    "                        (default: the first that groups items)\n"
     "  --force               replace the export files if they exist (never a session or a folder)\n"
     "  --raw-csv             CSV text fields exactly as they are: without it, a field that a\n"
     "                        spreadsheet would run as a formula (starting with = + - @, tab or CR,\n"
@@ -67,19 +83,32 @@ int cmd_export(const Args& args) {
   if (flags.positional().size() != 1)
     return flags.usage_error(flags.positional().empty() ? "which session? give SESSION" : "one SESSION only");
   const std::string path = flags.positional()[0];
-  if (!flags.has("--layout") && !flags.has("--judgments") && !flags.has("--picture") && !flags.has("--flat"))
-    return flags.usage_error("nothing to export: give --layout, --judgments, --picture or --flat");
+  if (!flags.has("--layout") && !flags.has("--judgments") && !flags.has("--picture") && !flags.has("--flat") &&
+      !flags.has("--poster"))
+    return flags.usage_error("nothing to export: give --layout, --judgments, --picture, --flat or --poster");
   PeopleInExport people = PeopleInExport::kNames;
   if (flags.has("--people") && !people_from_string(flags.text("--people"), &people))
     return flags.usage_error("--people is names, codes or leave-out, got '" + flags.text("--people") + "'");
   RenderOptions picture;
   MapParameters typed;  // the map settings' values are read again over the session's below
-  if (!flags.size("--size", &picture.width, &picture.height) || !read_map_flags(flags, &typed))
+  PosterOptions poster;
+  if (std::string e; !parse_poster_page(flags.text("--size", "A3"), &poster.page, &e)) {
+    if (flags.has("--poster") || !flags.has("--picture")) return flags.usage_error("--size: " + e);
+  }
+  if (flags.has("--picture") && poster.page.paper && flags.has("--size"))
+    return flags.usage_error("--size: --picture takes WxH in pixels; A3, A2 and A4 are paper sizes for --poster");
+  if ((flags.has("--picture") && !flags.size("--size", &picture.width, &picture.height)) ||
+      !read_map_flags(flags, &typed))
     return flags.usage_error();
   if (const std::string problem = picture.IsValid(); !problem.empty()) return flags.usage_error("--size: " + problem);
+  if (PosterFormat f; flags.has("--poster") && !poster_format_for(flags.text("--poster"), &f))
+    return flags.usage_error("--poster: " + flags.text("--poster") + " is not a .png, .pdf or .svg file");
+  for (const char* option : {"--caption", "--contact-sheets"})
+    if (flags.has(option) && !flags.has("--poster"))
+      return flags.usage_error(std::string(option) + " goes with --poster");
   const SafeWriteOptions rule = output_rule(flags, {path});
   std::vector<std::string> outputs;
-  for (const char* option : {"--layout", "--judgments", "--picture", "--flat"}) {
+  for (const char* option : {"--layout", "--judgments", "--picture", "--flat", "--poster"}) {
     if (!flags.has(option)) continue;
     if (std::find(outputs.begin(), outputs.end(), flags.text(option)) != outputs.end())
       return flags.usage_error(std::string(option) + ": " + flags.text(option) + " is named by another export too");
@@ -104,9 +133,12 @@ int cmd_export(const Args& args) {
     // The flat map's settings: the session's, changed by the flags, checked before anything is written.
     SessionSettings flat_settings = store->settings();
     read_map_flags(flags, &flat_settings);
-    if (std::string e; flags.has("--flat") && !flat_settings.IsValid(&e, c.size())) return flags.usage_error(e);
+    const bool flat_wanted = flags.has("--flat") || flags.has("--poster");
+    if (std::string e; flat_wanted && !flat_settings.IsValid(&e, c.size())) return flags.usage_error(e);
+    if (flags.has("--caption") && !choose_caption("export", c, flags.text("--caption"), &poster.caption_column))
+      return kExitUsage;
     const auto checkpoint = store->last_checkpoint();
-    if (!checkpoint && (flags.has("--layout") || flags.has("--picture") || flags.has("--flat"))) {
+    if (!checkpoint && (flags.has("--layout") || flags.has("--picture") || flat_wanted)) {
       std::fprintf(stderr, "kith export: %s has no map yet: open it (kith open %s) and let the map settle first\n",
                    path.c_str(), path.c_str());
       return kExitBadInput;
@@ -164,6 +196,36 @@ int cmd_export(const Args& args) {
         std::printf("; judgments honoured: %.1f%% in the 3-D map, %.1f%% flat",
                     100.0 * judgment_agreement(checkpoint->positions, judgments), 100.0 * flat_agreement);
       std::printf("\n");
+    }
+
+    if (flags.has("--poster")) {
+      std::vector<int32_t> pinned;
+      for (const auto& pin : store->pins()) pinned.push_back(pin.item);
+      Points flat;
+      try {
+        flat = flatten_map(c, checkpoint->positions, store->judgments(), pinned, flat_options(flat_settings, c.size()));
+      } catch (const std::exception& e) {
+        return report("--poster: ", std::string("the flat layout could not be made: ") + e.what());
+      }
+      poster.group_tag = tag;
+      poster.contact_sheets = flags.has("--contact-sheets");
+      poster.title = std::filesystem::path(path).stem().string();
+      PosterSummary made;
+      const std::string out = flags.text("--poster");
+      const std::string problem = write_poster(c, flat, out, poster, rule, &made);
+      if (!made.refused.empty()) return refuse_output(flags, made.refused, rule);
+      if (!problem.empty()) return report("--poster: ", problem);
+      std::printf("%s: poster (%s) of %zu items, %zu as pictures, %zu group(s), cards %.1f mm across\n", out.c_str(),
+                  poster.page.name.c_str(), made.items, made.pictures, made.groups, made.card_mm);
+      std::printf("  of each item's 10 nearest neighbours, the poster keeps %.1f%% of the flat layout's; the flat "
+                  "layout keeps %.1f%% of the 3-D map's, the poster %.1f%%\n",
+                  100.0 * made.kept, 100.0 * neighbours_kept(checkpoint->positions, flat),
+                  100.0 * neighbours_kept(checkpoint->positions, made.centres));
+      if (made.captions_too_small)
+        std::printf("  captions left out: they need cards of about %.1f mm (a larger --size, or fewer items); the "
+                    "contact sheets (--contact-sheets) always have them\n",
+                    made.caption_mm);
+      for (size_t f = 1; f < made.files.size(); ++f) std::printf("%s: contact sheet\n", made.files[f].c_str());
     }
   } catch (const SessionError& e) {
     return session_cli::report("export", e);

@@ -24,8 +24,8 @@ const Subcommand kSubcommands[] = {
     {"render", kith::cmd_render, "render ITEMS|SESSION -o map.png", "draw the map to a PNG with no display"},
     {"new", kith::cmd_new, "new ITEMS -o SESSION.kith", "create a session file from a collection"},
     {"judge", kith::cmd_judge, "judge SESSION --add A,N,F | --import J.csv", "add judgments to a session"},
-    {"export", kith::cmd_export, "export SESSION --layout|--judgments|--picture|--flat FILE",
-     "write what a session holds in formats other tools read"},
+    {"export", kith::cmd_export, "export SESSION --layout|--judgments|--picture|--flat|--poster FILE",
+     "write what a session holds in formats other tools read, or a poster"},
     {"report", kith::cmd_report, "report SESSION|ITEMS -o report.html", "a self-contained HTML report"},
     {"describe", kith::cmd_describe, "describe PICTURES -o features.csv", "features computed from pictures"},
 };
