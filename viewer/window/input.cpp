@@ -165,6 +165,7 @@ void App::apply_script_events() {
         q.kind = QueuedEvent::kButton;
         q.button = e.button;
         q.action = e.kind == InputEvent::kPress ? GLFW_PRESS : GLFW_RELEASE;
+        q.mods = e.mods;
         scripted_down[e.button] = e.kind == InputEvent::kPress;
         queue.push_back(q);
         break;

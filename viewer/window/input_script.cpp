@@ -64,6 +64,21 @@ std::vector<InputEvent> parse_input_script(const std::string& text, const std::s
       fail("expected left, right or middle, found '" + b + "'");
       return 0;
     };
+    // "ctrl+shift+X" -> "X", the modifiers' bits added to *mods.
+    auto modifiers = [&](std::string name, int* mods) {
+      for (;;) {
+        const auto plus = name.find('+');
+        if (plus == std::string::npos || plus + 1 >= name.size()) break;
+        std::string mod = name.substr(0, plus);
+        std::transform(mod.begin(), mod.end(), mod.begin(), ::tolower);
+        if (mod == "shift") *mods |= GLFW_MOD_SHIFT;
+        else if (mod == "ctrl") *mods |= GLFW_MOD_CONTROL;
+        else if (mod == "alt") *mods |= GLFW_MOD_ALT;
+        else fail("unknown modifier '" + mod + "' (shift, ctrl, alt)");
+        name = name.substr(plus + 1);
+      }
+      return name;
+    };
     std::string a, b;
     if (verb == "move") {
       if (!(ls >> a)) fail("move needs X Y, @ID or +DX +DY");
@@ -83,21 +98,10 @@ std::vector<InputEvent> parse_input_script(const std::string& text, const std::s
     } else if (verb == "press" || verb == "release") {
       ls >> a;
       e.kind = verb == "press" ? InputEvent::kPress : InputEvent::kRelease;
-      e.button = button(a);
+      e.button = button(modifiers(a, &e.mods));
     } else if (verb == "key") {
       if (!(ls >> a)) fail("key needs a key name");
-      std::string name = a;
-      for (;;) {
-        const auto plus = name.find('+');
-        if (plus == std::string::npos || plus + 1 >= name.size()) break;
-        std::string mod = name.substr(0, plus);
-        std::transform(mod.begin(), mod.end(), mod.begin(), ::tolower);
-        if (mod == "shift") e.mods |= GLFW_MOD_SHIFT;
-        else if (mod == "ctrl") e.mods |= GLFW_MOD_CONTROL;
-        else if (mod == "alt") e.mods |= GLFW_MOD_ALT;
-        else fail("unknown modifier '" + mod + "' (shift, ctrl, alt)");
-        name = name.substr(plus + 1);
-      }
+      const std::string name = modifiers(a, &e.mods);
       e.kind = InputEvent::kKey;
       e.key = key_from_name(name);
       if (e.key < 0) fail("unknown key '" + name + "'");

@@ -3,7 +3,7 @@
 //   10 move 400 300        pointer to pixel (400, 300) (top-left origin, window pixels)
 //   10 move @s00012        pointer to where item s00012 is drawn in that frame
 //   11 move +30 -10        pointer moved relative to where it is
-//   12 press left          mouse button down at the pointer (left | right | middle)
+//   12 press left          mouse button down at the pointer (left | right | middle; ctrl+left etc.)
 //   20 release left
 //   21 key P               a key press (letters, digits, SPACE, ESCAPE, ENTER, TAB, F1..F12,
 //   21 key shift+R         LEFT, RIGHT, UP, DOWN, PAGE_UP, PAGE_DOWN, MINUS, EQUAL, SLASH),
