@@ -31,18 +31,31 @@ TEST_CASE("cosine cli: digits rows scaled by random factors map as their unit ro
   kith::test::run_reference("cosine_digits.py", "write " + dir + " 500 7");
   const std::string common = " --iterations 600 --seed 3 --threads 2 --quiet";
   REQUIRE(run_kith("fit " + dir + "/scaled.csv -o " + dir + "/cosine.npy --metric cosine" + common).code == 0);
+  REQUIRE(run_kith("fit " + dir + "/plain.csv -o " + dir + "/plain.npy --metric cosine" + common).code == 0);
   REQUIRE(run_kith("fit " + dir + "/unit.csv -o " + dir + "/unit.npy" + common).code == 0);
   REQUIRE(run_kith("fit " + dir + "/scaled.csv -o " + dir + "/euclidean.npy" + common).code == 0);
 
-  // Claim 1. Under cosine each row is divided by its length and the squared distance is
-  // |u - v|^2 = 2 (1 - cos), so the cosine map of the scaled rows is the Euclidean map of the unit
-  // rows. Not to the bit: kith divides x * c by |x * c| where the script wrote x / |x| with 17
-  // digits, and those differ in the last bit of a value. Measured: the largest coordinate
-  // difference is below 1e-9 of the map's RMS coordinate; kSameMap allows 1e-6 of it.
-  constexpr double kSameMap = 1e-6;
-  const std::string same = kith::test::run_reference("cosine_digits.py", "compare " + dir + "/cosine.npy " + dir + "/unit.npy");
-  CAPTURE(same);
-  CHECK(first_number(same) < kSameMap);
+  // Claim 1a. Under cosine each row is divided by its length, so a row's scale does not matter.
+  // The script's factors are powers of two, which scale a row, its squared length and its length
+  // exactly in floating point; so the unit rows, and with them the whole map, are the same to the
+  // bit as those of the unscaled rows.
+  const std::string bits = kith::test::run_reference("cosine_digits.py", "compare " + dir + "/cosine.npy " + dir + "/plain.npy");
+  CAPTURE(bits);
+  CHECK(bits.find(" 1") != std::string::npos);
+
+  // Claim 1b. The squared distance of unit rows is |u - v|^2 = 2 (1 - cos), so the cosine map is
+  // the Euclidean map of the unit rows. Not to the bit: kith divides by a length it sums in its
+  // own order where the script wrote x / |x| from numpy's sum, the last bits differ, and 600 steps
+  // of t-SNE carry such differences into a visibly different but equally good layout (measured:
+  // largest coordinate difference 0.26 of the RMS coordinate, KL 0.3366 against 0.3373). So the
+  // check is on shape: scipy.spatial.procrustes disparity (measured 0.002; kSameShape allows ten
+  // times that).
+  constexpr double kSameShape = 0.02;
+  const std::string shape =
+      kith::test::run_reference("cosine_digits.py", "procrustes " + dir + "/cosine.npy " + dir + "/unit.npy");
+  CAPTURE(shape);
+  CHECK(first_number(shape) >= 0.0);
+  CHECK(first_number(shape) < kSameShape);
 
   // Claim 2. Judged by angle (trustworthiness with metric='cosine', k = 10), the cosine map keeps
   // the rows' neighbourhoods better than the Euclidean map of the same scaled rows, whose

@@ -34,6 +34,7 @@ const char* const kOptions =
     "  --paused              start with the optimization paused\n"
     "  --colour, --color COLUMN\n"
     "                        colour by this tag column, or 'plain' (default: the first that groups)\n"
+    "  --caption COLUMN      the text column the question cards show, e.g. a name (default: id)\n"
     "  --dark                the night ground instead of paper\n"
     "  --turn                start with the slow turn on (for a shared screen)\n"
     "  --no-panels           start with the panels hidden (Tab shows them)\n"
@@ -65,8 +66,8 @@ int run_linked(SessionLink& link, WindowOptions wo, const EngineOptions& eo) {
   return code;
 }
 
-int open_session(const std::string& path, WindowOptions wo, const std::string& colour, bool read_only,
-                 bool start_paused, const std::string& continued_from = "") {
+int open_session(const std::string& path, WindowOptions wo, const std::string& colour, const std::string& caption,
+                 bool read_only, bool start_paused, const std::string& continued_from = "") {
   if (!display_available()) {
     std::fprintf(stderr,
                  "kith open: no display (DISPLAY is not set). Use 'kith render %s -o map.png' for a picture,\n"
@@ -81,7 +82,9 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
     std::fprintf(stderr, "kith open: %s\n", e.what());
     return kExitBadInput;
   }
-  if (!choose_colour("open", link->collection(), colour, &wo.view)) return kExitUsage;
+  if (!choose_colour("open", link->collection(), colour, &wo.view) ||
+      !choose_caption("open", link->collection(), caption, &wo.caption_column))
+    return kExitUsage;
   for (size_t item : link->store()->missing_pictures())
     std::fprintf(stderr, "kith open: %s: the picture of item %s was not found (%s)\n", path.c_str(),
                  link->collection().ids[item].c_str(), link->collection().pictures[item].c_str());
@@ -109,6 +112,7 @@ int cmd_open(const Args& args) {
       !read_map_flags(flags, &eo))
     return flags.usage_error();
   const std::string colour = flags.text("--colour");
+  const std::string caption = flags.text("--caption");
   wo.view.dark = flags.has("--dark");
   wo.auto_rotate = flags.has("--turn");
   wo.panels = !flags.has("--no-panels");
@@ -127,7 +131,7 @@ int cmd_open(const Args& args) {
   if (!positional.empty() && is_session_path(positional[0])) {
     if (const int refused = refuse_reading_flags(flags, positional[0])) return refused;
     if (flags.has("--fresh")) return flags.usage_error("--fresh goes with ITEMS; a session always continues");
-    return open_session(positional[0], wo, colour, read_only, eo.start_paused);
+    return open_session(positional[0], wo, colour, caption, read_only, eo.start_paused);
   }
   if (read_only) return flags.usage_error("--read-only is for session files (.kith)");
   int code = kExitOk;
@@ -139,14 +143,16 @@ int cmd_open(const Args& args) {
   if (std::string e; !eo.IsValid(&e, collection->size())) return flags.usage_error(e);
   if (const int refused = refuse_graph_perplexity(flags, *collection, eo)) return refused;
   if (const int bad = refuse_rows_without_direction("open", *collection, eo.metric)) return bad;
-  if (!choose_colour("open", *collection, colour, &wo.view)) return kExitUsage;
+  if (!choose_colour("open", *collection, colour, &wo.view) ||
+      !choose_caption("open", *collection, caption, &wo.caption_column))
+    return kExitUsage;
   // The session this collection started before, made from the same content: continue it.
   if (!in->path.empty() && !flags.has("--fresh")) {
     const std::string earlier = SessionLink::earlier_session(in->path, content_hash(*collection));
     if (!earlier.empty()) {
       std::fprintf(stderr, "kith open: continuing %s, the session made from this collection (--fresh starts anew)\n",
                    earlier.c_str());
-      return open_session(earlier, wo, colour, false, eo.start_paused, in->path);
+      return open_session(earlier, wo, colour, caption, false, eo.start_paused, in->path);
     }
   }
   if (!display_available()) {

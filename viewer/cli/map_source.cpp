@@ -133,4 +133,20 @@ bool choose_colour(const std::string& command, const Collection& c, const std::s
   return false;
 }
 
+bool choose_caption(const std::string& command, const Collection& c, const std::string& caption, int* column) {
+  *column = -1;
+  if (caption.empty() || caption == "id") return true;
+  std::string names;
+  for (size_t t = 0; t < c.tags.size(); ++t) {
+    if (c.tags[t].name == caption) {
+      *column = int(t);
+      return true;
+    }
+    names += (names.empty() ? "" : ", ") + c.tags[t].name;
+  }
+  std::fprintf(stderr, "kith %s: --caption: no text column named '%s' (%s)\n", command.c_str(), caption.c_str(),
+               names.empty() ? "this collection has none; 'id' shows the ids" : ("there are: id, " + names).c_str());
+  return false;
+}
+
 }  // namespace kith

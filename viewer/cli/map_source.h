@@ -64,4 +64,9 @@ int refuse_graph_perplexity(const FlagReader& flags, const Collection& collectio
 bool choose_colour(const std::string& command, const Collection& collection, const std::string& colour,
                    ViewOptions* view);
 
+// --caption COLUMN: the tag column whose value the question cards show (*column its index; "id"
+// or "": the item's id, -1). False, with "kith COMMAND: --caption: ..." naming the columns there
+// are, when the collection has no such column.
+bool choose_caption(const std::string& command, const Collection& collection, const std::string& caption, int* column);
+
 }  // namespace kith

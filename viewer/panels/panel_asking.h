@@ -3,11 +3,18 @@
 // candidates either side; grid screen: the anchor and N numbered candidates; both in a band at
 // the bottom so the map above stays visible and moving, with the question's items ringed in it.
 // Whose turn it is is shown large at the top; the people panel (add, rename, colour, turn rule,
-// picker, re-ask rate, grid size) sits at the left. Items show their picture when the collection
-// has pictures, else a swatch of their map colour with id and tags. Large type (B, big) swaps in a
-// bigger font and bigger cards and discs for a shared screen.
+// picker, re-ask rate, grid size, the caption column) sits at the left. Items show their picture
+// when the collection has pictures, else a neutral card with their caption (or id) and tags,
+// never in a tag's colour; a tag line too long for its card ends in an ellipsis. The anchor
+// carries a badge ("this one"), each candidate its key; a click on a candidate answers as its key
+// does, and the band's buttons do what the keys do. The marks in the map are labelled without
+// overlaps (viewer/scene/label_placement.h); the window's short messages and notices show in the
+// band's status line, not over the map. Every colour is from QuestionLook
+// (viewer/scene/question_look.h), on the paper or the night ground. Large type (B, big) swaps in
+// bigger fonts for every text, the heading included, and bigger cards and discs.
 // Window thread only, with the ImGui and GL contexts current.
 #pragma once
+#include <functional>
 #include <memory>
 #include <nlohmann/json.hpp>
 #include <string>
@@ -15,7 +22,9 @@
 #include <vector>
 
 #include "viewer/scene/asking_desk.h"
+#include "viewer/scene/label_placement.h"
 #include "viewer/scene/map_view.h"
+#include "viewer/scene/question_look.h"
 
 struct ImFont;
 
@@ -34,6 +43,20 @@ class AskingPanel {
   AskingDesk& desk() { return *desk_; }
   // A key the window has not used otherwise; true when it was an asking key. message() says what happened.
   bool handle_key(int key, int mods);
+  bool run(KeyAction a);  // the same for an action already known (a button, a menu entry)
+  // What the band's buttons and a click on a card do: the window's path for an asking key (which
+  // also shows or hides the panels). Set by the window; unset, buttons go straight to the desk.
+  std::function<void(KeyAction)> on_action;
+  // The tag column whose value the cards show as their caption; -1: the item's id.
+  void set_caption(int column) { caption_ = column; }
+  int caption() const { return caption_; }
+  // The window's short message and its notice (a refusal; "" when none), shown in the band's
+  // status line while a question screen is up (the window then draws no toast, notice or
+  // selection labels over the map); `dismiss` clears the notice.
+  void set_status(const std::string& message, const std::string& notice, std::function<void()> dismiss);
+  // Pushes the question screens' colours (QuestionLook, on the view's ground) onto ImGui's style
+  // for what the window draws over them (the hover tooltip); returns how many to pop.
+  int push_colours();
   const std::string& message() const { return desk_->message(); }
   // While making an own judgment, a left click on an item fills the next slot (true = used).
   bool wants_item_clicks() const { return desk_->mode() == AskingMode::kOwn; }
@@ -46,7 +69,8 @@ class AskingPanel {
   float band_height() const;
   // Frames the map in the part of the window above the question band.
   void frame_map();
-  // For state dumps: mode, people, turn, the question on screen, every answer.
+  // For state dumps: mode, people, turn, the question on screen, every answer, and the screen's
+  // layout as drawn in the last frame (regions, texts with the box each must fit, map labels).
   nlohmann::json state();
 
  private:
@@ -60,10 +84,42 @@ class AskingPanel {
   void draw_pair();
   void draw_grid();
   void draw_own(float top);
-  void draw_map_marks(float inv_scale);
-  // One item as a card at the cursor: picture (or colour swatch, id and tags), framed.
-  void card(int item, float side, const char* key_label, bool picked, uint32_t frame_rgb);
+  void draw_map_marks(float inv_scale, float top);
+  void draw_status(float y, float height);
+  void heading(const std::string& full, float y);
+  uint32_t turn_colour() const;  // whose turn it is, as a colour for rings and frames
+  // The band's buttons, flowed into rows from `y`; returns the height used. `measure_only`: no drawing.
+  float draw_foot(float y, bool measure_only);
+  // One item as a neutral card at (x, y): picture or caption, id and tags; `key` its key chip
+  // (nullptr for the anchor, which gets the badge), `action` what a click on it does.
+  void card(int item, float x, float y, float width, float height, const char* key, bool picked, uint32_t person_rgb,
+            KeyAction action);
   void apply_large_type();
+  std::string caption_of(int item) const;
+  // Text of a role, for the dump: drawn at `rect`, inside `box`; `full` when it was shortened.
+  void note_text(const char* role, const std::string& text, const std::string& full, const ScreenRect& rect,
+                 const ScreenRect& box);
+  void note_region(const char* name, const ScreenRect& rect);
+  void act(KeyAction a);
+  struct NotedText {
+    std::string role, text, full;
+    ScreenRect rect, box;
+  };
+  struct NotedLabel {
+    std::string text;
+    int item = -1;
+    ScreenRect rect;
+    bool clear = true;
+  };
+  std::vector<NotedText> texts_, texts_drawn_;
+  std::vector<std::pair<std::string, ScreenRect>> regions_, regions_drawn_;
+  std::vector<NotedLabel> labels_;
+  float heading_px_ = 0.f;
+  QuestionLook look_;
+  int caption_ = -1;
+  std::string status_message_, status_notice_;
+  std::function<void()> dismiss_notice_;
+  ScreenRect banner_rect_, people_rect_, own_rect_;
 
   const Collection& collection_;
   MapView& view_;
@@ -79,6 +135,7 @@ class AskingPanel {
   std::string panel_message_;
   double last_frame_time_ = -10.0;
   bool question_out_of_view() const;
+  float map_top() const;
 };
 
 }  // namespace kith

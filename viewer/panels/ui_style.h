@@ -11,6 +11,10 @@
 namespace kith {
 
 void apply_ui_style(bool dark);
+
+// The window's Selection panel: in the bottom-left corner, this far in and this wide (the own
+// judgment window keeps clear of it).
+constexpr float kSelectionPanelInset = 10.f, kSelectionPanelWidth = 420.f;
 void load_ui_font(float pixels);
 
 // A table column: its heading, and a fixed width in pixels or a share of what is left (stretch).

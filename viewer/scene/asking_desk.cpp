@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "viewer/scene/keys.h"
+#include "viewer/scene/palette.h"
 
 namespace kith {
 
@@ -168,7 +169,7 @@ void AskingDesk::set_mode(AskingMode mode) {
     QuestionFlowOptions o = flow_.options();
     o.kind = mode == AskingMode::kPair ? QuestionKind::kPair : QuestionKind::kGrid;
     flow_.set_options(o);
-    if (flow_.people().empty()) add_person("person 1", 0x0072B2);
+    if (flow_.people().empty()) add_person("person 1", Palette::person_colour(0));
   }
   if (mode != mode_) picks_.clear();
   if (mode != AskingMode::kOwn) own_.clear();

@@ -1,8 +1,7 @@
 // Palette: kith's colours, the one table for the window, its pictures, the HTML report and the
 // people list, so a tag value has the same colour everywhere. A light, paper-like ground by
-// default (a dark one as an option); categorical colours from the published Okabe-Ito
-// colour-blind-safe set plus three quieter ones of our own, ordered so the first ones read well
-// on paper (yellow comes last; black is the ink, not a category). Pure data; any thread.
+// default (a dark one as an option); twelve categorical colours of kith's own (see kCategorical).
+// Pure data; any thread.
 #pragma once
 #include <array>
 #include <cstddef>
@@ -28,21 +27,22 @@ struct Palette {
   Rgb card_frame;  // frame around picture cards
   bool dark = false;
 
-  // Okabe-Ito blue, orange, bluish green, vermillion, reddish purple, sky blue; then umber, slate
-  // and sage of our own; Okabe-Ito yellow last.
-  static constexpr std::array<uint32_t, 10> kCategorical = {0x0072B2, 0xE69F00, 0x009E73, 0xD55E00, 0xCC79A7,
-                                                            0x56B4E9, 0x8C6D46, 0x6F7F9E, 0x9CB86A, 0xF0E442};
+  // kith's own categorical colours, picked one at a time from an sRGB grid (CIELAB lightness 32..72,
+  // chroma > 28, so each reads on either ground) as the colour farthest, by the smaller CIEDE2000
+  // under normal vision and under a deuteranopia simulation, from those already picked; so every
+  // prefix of the table is as spread as the greedy pick allows. The smallest pairwise difference
+  // is checked in tests/test_palette_categorical.cpp.
+  static constexpr std::array<uint32_t, 12> kCategorical = {0x0078A5, 0xB4B400, 0x005A0F, 0xFF87C3,
+                                                            0x4B9669, 0x78A5FF, 0x96005A, 0xA55A00,
+                                                            0xE10096, 0x0000FF, 0xF09696, 0x004B96};
   static constexpr uint32_t kOther = 0xB4B0A8;  // values past the table, in pictures and the report
   Rgb category(int k) const {
     if (k < 0) return muted;
     return rgb_hex(kCategorical[size_t(k) % kCategorical.size()]);
   }
-  // People's colours, in the order they are added: the categorical table with vermillion second,
-  // so the first two people differ most.
-  static uint32_t person_colour(size_t k) {
-    static constexpr std::array<int, 10> order = {0, 3, 2, 4, 1, 5, 6, 7, 8, 9};
-    return kCategorical[size_t(order[k % order.size()])];
-  }
+  // People's colours, in the order they are added: the categorical table's own order, which already
+  // puts the most different colours first.
+  static uint32_t person_colour(size_t k) { return kCategorical[k % kCategorical.size()]; }
   // A sequential ramp for measures (0..1): from the paper's pale blue-grey to deep blue, then
   // vermillion at the top end, so high values stand out on either ground.
   Rgb ramp(float t) const;

@@ -210,6 +210,8 @@ int run_window(const Collection& collection, MapFeed& feed, const WindowOptions&
       links.selection = [&app] { return app.view->selection().items(); };
       links.now = [] { return std::chrono::duration<double>(std::chrono::system_clock::now().time_since_epoch()).count(); };
       app.asking = std::make_unique<AskingPanel>(collection, *app.view, std::move(links), app.index_of_id);
+      app.asking->on_action = [&app](KeyAction a) { app.ask(a); };
+      app.asking->set_caption(options.caption_column);
       for (const std::string& name : options.people)
         if (const std::string e = app.asking->desk().add_person(name, Palette::person_colour(app.asking->desk().flow().people().size()));
             !e.empty())

@@ -27,6 +27,7 @@ struct WindowOptions {
   bool panels = true;            // (default: on; Tab toggles)
   bool auto_rotate = false;      // (default: off)
   std::vector<std::string> people;  // people listed for asking at the start, in turn order (default: none)
+  int caption_column = -1;       // the tag column the question cards show; -1: the id (default: -1)
   // Test and benchmark hooks (hidden options of kith open):
   int frames = 0;                // quit after this many frames; 0 = until the window closes (default: 0)
   std::string script;            // replayable input events (viewer/window/input_script.h) (default: none)

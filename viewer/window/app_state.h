@@ -115,6 +115,7 @@ struct App {
 
   // input.cpp
   void handle_key(int key, int mods);
+  bool ask(KeyAction action);  // an asking action from a key, a button or the Ask menu
   void apply_script_events();
   void process_queue();
   // panels.cpp

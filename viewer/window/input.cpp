@@ -215,6 +215,24 @@ void App::apply_script_events() {
 
 // ============================================================================ [SECTION] the key table and handle_key
 
+// Keys, the band's buttons, the Ask menu and the Map panel's button all come here.
+bool App::ask(KeyAction action) {
+  const bool was = asking->desk().asking();
+  const AskingMode before = asking->desk().mode();
+  if (!asking->run(action)) return false;
+  if (!was && asking->desk().asking()) {  // a clean shared screen: the map above the question band
+    show_panels = false;
+    asking->frame_map();
+  } else if (asking->desk().asking() && asking->desk().mode() != before) {
+    asking->frame_map();  // pair and grid bands differ in height
+  } else if (was && !asking->desk().asking()) {
+    show_panels = options.panels;
+    view->fit_all(true);
+  }
+  if (!asking->message().empty()) say(asking->message());
+  return true;
+}
+
 namespace {
 
 using K = KeyChord;
@@ -244,17 +262,7 @@ bool asking_on(const App& a, int key) { return a.asking && !(key == keys::kEscap
 
 // The asking screens read their own keys (asking_key_action, viewer/scene/asking_desk.h).
 bool ask(App& a, int key, int mods) {
-  const bool was = a.asking->desk().asking();
-  if (!a.asking->handle_key(key, mods)) return false;
-  if (!was && a.asking->desk().asking()) {  // a clean shared screen: the map above the question band
-    a.show_panels = false;
-    a.asking->frame_map();
-  } else if (was && !a.asking->desk().asking()) {
-    a.show_panels = a.options.panels;
-    a.view->fit_all(true);
-  }
-  if (!a.asking->message().empty()) a.say(a.asking->message());
-  return true;
+  return a.ask(asking_key_action(a.asking->desk().mode(), key, mods, a.asking->desk().flow_options().grid_size));
 }
 
 bool arrow_orbit(App& a, int key, int) {

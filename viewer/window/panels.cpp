@@ -66,6 +66,16 @@ void App::panels() {
       }
       ImGui::EndMenu();
     }
+    if (ImGui::BeginMenu("Ask")) {
+      const AskingMode m = asking->desk().mode();
+      if (ImGui::MenuItem("Pair questions", "A", m == AskingMode::kPair)) ask({AskingAction::kStartPair});
+      if (ImGui::MenuItem("Grid questions", "A twice", m == AskingMode::kGrid)) ask({AskingAction::kStartGrid});
+      if (ImGui::MenuItem("Your own judgment", "O", m == AskingMode::kOwn)) ask({AskingAction::kStartOwn});
+      ImGui::Separator();
+      if (ImGui::MenuItem("Big type", "B", asking->desk().large_type())) ask({AskingAction::kLargeType});
+      if (ImGui::MenuItem("Stop asking", "Esc", false, m != AskingMode::kOff)) ask({AskingAction::kLeave});
+      ImGui::EndMenu();
+    }
     if (ImGui::BeginMenu("Help")) {
       if (ImGui::MenuItem("Keys and mouse", "H")) show_help = true;
       ImGui::EndMenu();
@@ -97,8 +107,10 @@ void App::panels() {
   ImGui::SetNextWindowPos(ImVec2(io.DisplaySize.x - right_w - 10, top + 330), ImGuiCond_FirstUseEver);
   ImGui::SetNextWindowSize(ImVec2(right_w, 0), ImGuiCond_FirstUseEver);
   panel_health();
-  ImGui::SetNextWindowPos(ImVec2(10, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.f, 1.f));
-  ImGui::SetNextWindowSizeConstraints(ImVec2(420, 0), ImVec2(420, io.DisplaySize.y * 0.5f));
+  ImGui::SetNextWindowPos(ImVec2(kSelectionPanelInset, io.DisplaySize.y - kSelectionPanelInset), ImGuiCond_Always,
+                          ImVec2(0.f, 1.f));
+  ImGui::SetNextWindowSizeConstraints(ImVec2(kSelectionPanelWidth, 0),
+                                      ImVec2(kSelectionPanelWidth, io.DisplaySize.y * 0.5f));
   panel_selection();
   if (hooks.take_selection) {
     std::vector<int> items;
@@ -127,6 +139,9 @@ void App::panel_map() {
     if (ImGui::Button(paused() ? "Resume  [Space]" : "Pause  [Space]")) toggle_pause();
     ImGui::SameLine();
     if (ImGui::Button("Restart")) handle_key(keys::letter('r'), keys::kShift);
+    ImGui::SameLine();
+    if (ImGui::Button("Ask  [A]")) ask({AskingAction::kStartPair});
+    if (ImGui::IsItemHovered()) ImGui::SetTooltip("ask the people in the room which items are more alike");
     setting_sliders();
     if (s)
       ImGui::Text("step %llu   %.0f steps a second%s", (unsigned long long)s->iteration, s->iterations_per_second,
@@ -308,7 +323,14 @@ void App::overlays() {
   ImDrawList* fg = ImGui::GetForegroundDrawList();
   const ImGuiIO& io = ImGui::GetIO();
   const float inv = 1.f / fb_scale;
-  if (asking) asking->draw(show_panels ? ImGui::GetFrameHeight() : 0.f, inv);
+  // While a question screen is up it shows the window's messages in its own status line.
+  const bool question_screen = asking && asking->desk().mode() != AskingMode::kOff;
+  if (asking) {
+    const bool live = !toast.empty() && Clock::now() < toast_until;
+    asking->set_status(live ? toast : "", settings.notice_showing(seconds()) ? settings.notice() : "",
+                       [this] { settings.dismiss(); });
+    asking->draw(show_panels ? ImGui::GetFrameHeight() : 0.f, inv);
+  }
   // Box selection.
   if (interaction->state() == MapInteraction::State::kBoxing) {
     const glm::vec2 a = interaction->box_start() * inv, b = interaction->pointer() * inv;
@@ -329,10 +351,11 @@ void App::overlays() {
                                             collection.ids[item].c_str());
   };
   const auto& sel = view->selection().items();
-  for (size_t k = 0; k < sel.size() && k < 24; ++k) label(sel[k]);
+  for (size_t k = 0; k < sel.size() && k < 24 && !question_screen; ++k) label(sel[k]);
   // Hover tooltip: id, tags, pinned.
   const int h = view->hovered();
   if (h >= 0 && !io.WantCaptureMouse && interaction->state() != MapInteraction::State::kDragging) {
+    const int pushed = question_screen ? asking->push_colours() : 0;  // in the question screens' colours
     ImGui::BeginTooltip();
     ImGui::TextUnformatted(collection.ids[h].c_str());
     for (const auto& t : collection.tags)
@@ -340,6 +363,7 @@ void App::overlays() {
     if (view->pinned(h)) ImGui::TextDisabled("pinned (U unpins the selection)");
     if (!collection.pictures.empty()) ImGui::TextDisabled("picture: %s", std::filesystem::path(collection.pictures[h]).filename().c_str());
     ImGui::EndTooltip();
+    ImGui::PopStyleColor(pushed);
   }
   // The release choice after a drag.
   if (interaction->choosing()) {
@@ -359,12 +383,12 @@ void App::overlays() {
     ImGui::End();
   }
   if (show_help) help_overlay();
+  if (question_screen) return;
   notice_line();
   // A short message at the bottom centre.
   if (!toast.empty() && Clock::now() < toast_until) {
     const ImVec2 size = ImGui::CalcTextSize(toast.c_str());
-    const float lift = asking ? asking->band_height() : 0.f;  // above the question band
-    const ImVec2 at(io.DisplaySize.x * 0.5f - size.x * 0.5f, io.DisplaySize.y - size.y - 24 - lift);
+    const ImVec2 at(io.DisplaySize.x * 0.5f - size.x * 0.5f, io.DisplaySize.y - size.y - 24);
     fg->AddRectFilled(ImVec2(at.x - 10, at.y - 6), ImVec2(at.x + size.x + 10, at.y + size.y + 6),
                       ImGui::GetColorU32(ImGuiCol_PopupBg), 6.f);
     fg->AddText(at, ImGui::GetColorU32(ImGuiCol_Text), toast.c_str());
