@@ -6,11 +6,11 @@
 
 IN.npy is an (N, D) float array; SHARDS_DIR is a folder of such arrays (*.npy, same D), taken in
 the order of their names and stacked, as if they were one array. The rows are cut into blocks of
-R rows; one task per pair of blocks finds, for every row of the first, its nearest rows in the
-second (squared distances from one matrix product, |a|^2 + |b|^2 - 2 a.b, a few spare
+R rows; one task per pair of blocks finds, for every row of either, its nearest rows in the
+other (squared distances from one matrix product, |a|^2 + |b|^2 - 2 a.b, a few spare
 candidates kept, then recomputed as sum (a - b)^2 in float64 so rounding in the product form
 cannot change the answer); one task per block merges its row of results. So the work is
-(N / R)^2 independent tasks of R x R x D each, and each worker holds only a few blocks at once:
+(N / R)^2 / 2 independent tasks of R x R x D each, and each worker holds only a few blocks at once:
 it runs on a LocalCluster on this machine by default, or on any running Dask scheduler
 (--scheduler tcp://HOST:8786) whose workers can read the input path.
 
@@ -95,18 +95,34 @@ def load_block(f, start, stop, metric):
     return x
 
 
-def nearest_in_block(q, q0, r, r0, keep):
-    """For each row of q (rows q0..), its `keep` nearest rows of r (rows r0..) with exact squared
-    distances: (indices, d2), each (len(q), keep) or fewer columns when r is small."""
-    d = (q * q).sum(1)[:, None] + (r * r).sum(1)[None, :] - 2.0 * (q @ r.T)
-    keep = min(keep, r.shape[0])
-    cand = np.argpartition(d, keep - 1, axis=1)[:, :keep] if keep < r.shape[0] else np.tile(np.arange(r.shape[0]), (q.shape[0], 1))
-    # Column by column, so the temporaries stay (len(q), keep) rather than (len(q), keep, D).
+def exact_d2(q, r, cand):
+    """sum (q_i - r_j)^2 in float64 for each row i of q and each j in cand[i], column by column so
+    the temporaries stay (len(q), keep) rather than (len(q), keep, D)."""
     d2 = np.zeros(cand.shape)
     for c in range(q.shape[1]):
         diff = q[:, c][:, None] - r[:, c][cand]
         d2 += diff * diff
-    return cand + r0, d2
+    return d2
+
+
+def nearest_of(d, q, r, r0, keep):
+    """For each row of q, its `keep` nearest rows of r (rows r0..) by the approximate squared
+    distances d, with exact squared distances: (indices, d2)."""
+    keep = min(keep, r.shape[0])
+    if keep < r.shape[0]:
+        cand = np.argpartition(d, keep - 1, axis=1)[:, :keep]
+    else:
+        cand = np.tile(np.arange(r.shape[0]), (q.shape[0], 1))
+    return cand + r0, exact_d2(q, r, cand)
+
+
+def nearest_between(a, a0, b, b0, keep):
+    """Both directions of one pair of blocks from one matrix product: (a's nearest in b, b's
+    nearest in a); for a block with itself the second is None."""
+    d = (a * a).sum(1)[:, None] + (b * b).sum(1)[None, :] - 2.0 * (a @ b.T)
+    forward = nearest_of(d, a, b, b0, keep)
+    backward = None if a0 == b0 else nearest_of(d.T, b, a, a0, keep)
+    return forward, backward
 
 
 def merge_rows(parts, q0, k):
@@ -121,15 +137,21 @@ def merge_rows(parts, q0, k):
 
 
 def compute(blocks, k, metric, client):
+    """One task per unordered pair of blocks (the product serves both directions), one per block
+    to merge its candidates."""
     import dask
 
     loaded = [dask.delayed(load_block)(f, s, e, metric) for f, s, e, _ in blocks]
     keep = k + 1 + SPARE
-    merged = []
-    for qi, (_, _, _, q0) in enumerate(blocks):
-        parts = [dask.delayed(nearest_in_block)(loaded[qi], q0, loaded[ri], r0, keep)
-                 for ri, (_, _, _, r0) in enumerate(blocks)]
-        merged.append(dask.delayed(merge_rows)(parts, q0, k))
+    parts = [[] for _ in blocks]
+    for i, (_, _, _, a0) in enumerate(blocks):
+        for j in range(i, len(blocks)):
+            b0 = blocks[j][3]
+            both = dask.delayed(nearest_between, nout=2)(loaded[i], a0, loaded[j], b0, keep)
+            parts[i].append(both[0])
+            if j != i:
+                parts[j].append(both[1])
+    merged = [dask.delayed(merge_rows)(parts[i], blocks[i][3], k) for i in range(len(blocks))]
     results = client.compute(merged, sync=True)
     return np.concatenate([r[0] for r in results]), np.concatenate([r[1] for r in results])
 

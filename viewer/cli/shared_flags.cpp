@@ -81,7 +81,8 @@ std::string load_flags(bool neighbours) {
                    "                        columns id,neighbour,distance, or NAME-indices.npy with\n"
                    "                        NAME-distances.npy beside it, arrays of shape (items, k); the map's\n"
                    "                        affinities then come from it and features are optional (README,\n"
-                   "                        'Reading a collection'; scripts/neighbour_graph.py makes one)\n"
+                   "                        'A neighbour graph made elsewhere'; scripts/neighbour_graph.py\n"
+                   "                        makes one)\n"
                  : "";
   return graph +
          "  --id COLUMN           the column holding item ids (default: 'id', else the first column of\n"
