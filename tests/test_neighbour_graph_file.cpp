@@ -244,3 +244,26 @@ TEST_CASE("neighbour graph file: a session made with --neighbours reopens with t
               .code == 0);
   CHECK(kith::test::file_bytes(dir + "/s.npy") == kith::test::file_bytes(dir + "/g.npy"));
 }
+
+TEST_CASE(
+    "neighbour graph file: a .npz written by numpy.savez reads as the two .npy files, a compressed one is refused") {
+  if (!kith::test::reference_python_available()) return;
+  const std::string dir = kith::test::temp_dir("kith-graph-npz");
+  // NumPy 1.24 (Debian's python3-numpy) writes the archives: the same arrays as kIndex, kDistance.
+  const std::string arrays =
+      "i=np.array([[1,2],[0,2],[1,0],[2,1],[3,2]]); d=np.array([[1.,3],[1,2],[2,3],[3,5],[4,7]]); ";
+  REQUIRE(kith::test::run_shell("/usr/bin/python3 -c 'import numpy as np; " + arrays + "np.savez(\"" + dir +
+                                "/g.npz\", indices=i, distances=d); np.savez_compressed(\"" + dir +
+                                "/c.npz\", indices=i, distances=d)'")
+              .code == 0);
+  const NeighbourGraph g = kith::read_neighbour_graph(dir + "/g.npz", jars());
+  const NeighbourGraph csv = kith::parse_neighbour_graph_csv(good_csv(), "g.csv", jars());
+  CHECK(g.index == csv.index);
+  CHECK(g.distance2 == csv.distance2);
+  try {
+    kith::read_neighbour_graph(dir + "/c.npz", jars());
+    FAIL("a compressed archive was read");
+  } catch (const LoadError& e) {
+    CHECK(e.problem().message.find("compressed (numpy.savez_compressed)") != std::string::npos);
+  }
+}

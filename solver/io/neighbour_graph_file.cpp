@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <cstdint>
 #include <unordered_map>
 
 #include "solver/io/csv_table.h"
@@ -81,6 +82,35 @@ NeighbourGraph finish(Edges& e, const std::string& source, const Collection& c, 
                                     " self-edges (an item listed as its own neighbour); each item keeps its " +
                                     std::to_string(k) + " nearest others"});
   return g;
+}
+
+// The members of a .npz file (a ZIP archive as numpy.savez writes it: each member stored, not
+// compressed, with ZIP64 sizes in the local header's extra field), by name.
+std::unordered_map<std::string, std::string_view> npz_members(std::string_view z, const std::string& source) {
+  auto u16 = [&](size_t at) { return uint32_t(uint8_t(z[at])) | uint32_t(uint8_t(z[at + 1])) << 8; };
+  auto u32 = [&](size_t at) { return u16(at) | u16(at + 2) << 16; };
+  auto u64 = [&](size_t at) { return uint64_t(u32(at)) | uint64_t(u32(at + 4)) << 32; };
+  std::unordered_map<std::string, std::string_view> out;
+  size_t at = 0;
+  while (at + 30 <= z.size() && u32(at) == 0x04034b50) {
+    const uint32_t flags = u16(at + 6), method = u16(at + 8);
+    uint64_t size = u32(at + 18);
+    const size_t name_len = u16(at + 26), extra_len = u16(at + 28);
+    if (at + 30 + name_len + extra_len > z.size()) break;
+    const std::string name(z.substr(at + 30, name_len));
+    if (method != 0)
+      fail(source, 0, long(at), "expected the members stored as numpy.savez writes them, found '" + name +
+                                    "' compressed (numpy.savez_compressed); write it with numpy.savez or as two .npy");
+    if (flags & 8) fail(source, 0, long(at), "expected member sizes in the local headers, found a data descriptor");
+    for (size_t e = at + 30 + name_len; size == 0xFFFFFFFFu && e + 4 <= at + 30 + name_len + extra_len;
+         e += 4 + u16(e + 2))
+      if (u16(e) == 1 && e + 4 + 16 <= z.size()) size = u64(e + 4);  // ZIP64: original size, then compressed
+    const size_t data = at + 30 + name_len + extra_len;
+    if (data + size > z.size()) fail(source, 0, long(at), "expected member '" + name + "' whole, found it cut short");
+    out[name] = z.substr(data, size_t(size));
+    at = data + size_t(size);
+  }
+  return out;
 }
 
 }  // namespace
@@ -213,11 +243,21 @@ NeighbourGraph parse_neighbour_graph_npy(std::string_view indices_bytes, const s
 
 NeighbourGraph read_neighbour_graph(const std::string& path, const Collection& c, std::vector<Problem>* warnings) {
   if (ends_with(path, ".csv") || ends_with(path, ".tsv")) return parse_neighbour_graph_csv(read_file(path), path, c, warnings);
+  if (ends_with(path, ".npz")) {
+    const std::string bytes = read_file(path);
+    const auto members = npz_members(bytes, path);
+    const auto index = members.find("indices.npy"), distance = members.find("distances.npy");
+    if (index == members.end() || distance == members.end())
+      fail(path, 0, 0, "expected two arrays named indices and distances (numpy.savez(PATH, indices=..., "
+                       "distances=...)), found " + std::to_string(members.size()) + " others");
+    return parse_neighbour_graph_npy(index->second, path + ":indices", distance->second, path + ":distances", c,
+                                     warnings);
+  }
   const std::string distances = graph_distances_path(path);
   if (distances.empty())
     fail(path, 0, 0,
-         "expected a neighbour graph: a CSV file id,neighbour,distance (.csv), or NAME-indices.npy with "
-         "NAME-distances.npy beside it");
+         "expected a neighbour graph: a CSV file id,neighbour,distance (.csv), GRAPH.npz with arrays indices and "
+         "distances, or NAME-indices.npy with NAME-distances.npy beside it");
   return parse_neighbour_graph_npy(read_file(path), path, read_file(distances), distances, c, warnings);
 }
 

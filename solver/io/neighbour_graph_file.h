@@ -5,7 +5,10 @@
 //                        distance between them (not squared), in the collection's ids;
 //   NAME-indices.npy     an (N, k) array of whole numbers, row i holding the rows (0-based, in the
 //                        collection's order) of item i's neighbours, with NAME-distances.npy
-//                        beside it: the (N, k) distances, float32 or float64.
+//                        beside it: the (N, k) distances, float32 or float64;
+//   GRAPH.npz            the same two arrays in one file, named indices and distances, as
+//                        numpy.savez(GRAPH, indices=..., distances=...) writes it (members stored;
+//                        a compressed one is refused with a message).
 // Every item needs the same number k of neighbours; an edge from an item to itself is dropped
 // (with a warning), and when any is, every item keeps its k - 1 nearest others. The order of the
 // edges does not matter: each item's neighbours are sorted nearest first (ties by row). Distances

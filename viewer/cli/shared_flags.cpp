@@ -78,8 +78,9 @@ const char* const kReadingFlags[5] = {"--id", "--exclude", "--pictures", "--tags
 std::string load_flags(bool neighbours) {
   const std::string graph =
       neighbours ? "  --neighbours GRAPH    each item's nearest neighbours, computed elsewhere: GRAPH.csv with\n"
-                   "                        columns id,neighbour,distance, or NAME-indices.npy with\n"
-                   "                        NAME-distances.npy beside it, arrays of shape (items, k); the map's\n"
+                   "                        columns id,neighbour,distance, or arrays of shape (items, k) in\n"
+                   "                        GRAPH.npz (indices, distances) or NAME-indices.npy with\n"
+                   "                        NAME-distances.npy beside it; the map's\n"
                    "                        affinities then come from it and features are optional (README,\n"
                    "                        'A neighbour graph made elsewhere'; scripts/neighbour_graph.py\n"
                    "                        makes one)\n"
