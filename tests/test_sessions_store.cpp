@@ -344,10 +344,10 @@ TEST_CASE("sessions: a version 1 file is migrated after a backup, and keeps ever
     auto store = SessionStore::open(path);
     judgments_before = store->judgment_count();
   }
-  // Make it a version 1 file, as kith 0.1 wrote them: no events table.
+  // Make it a version 1 file, as kith 0.1 wrote them: no events table (nor the later neighbours).
   sqlite3* db = nullptr;
   REQUIRE(sqlite3_open(path.c_str(), &db) == SQLITE_OK);
-  REQUIRE(sqlite3_exec(db, "DROP TABLE events; PRAGMA user_version = 1;", nullptr, nullptr, nullptr) == SQLITE_OK);
+  REQUIRE(sqlite3_exec(db, "DROP TABLE events; DROP TABLE neighbours; PRAGMA user_version = 1;", nullptr, nullptr, nullptr) == SQLITE_OK);
   sqlite3_close(db);
 
   auto store = SessionStore::open(path);
@@ -400,7 +400,7 @@ TEST_CASE("sessions: a version 2 file (no metric) is migrated and opens as eucli
   // As kith wrote version 2 files: no metric row.
   sqlite3* db = nullptr;
   REQUIRE(sqlite3_open(path.c_str(), &db) == SQLITE_OK);
-  REQUIRE(sqlite3_exec(db, "DELETE FROM settings WHERE key = 'metric'; PRAGMA user_version = 2;", nullptr, nullptr,
+  REQUIRE(sqlite3_exec(db, "DELETE FROM settings WHERE key = 'metric'; DROP TABLE neighbours; PRAGMA user_version = 2;", nullptr, nullptr,
                        nullptr) == SQLITE_OK);
   sqlite3_close(db);
   CHECK(SessionStore::inspect(path).schema_version == 2);
@@ -424,6 +424,77 @@ TEST_CASE("sessions: a version 2 file (no metric) is migrated and opens as eucli
     CHECK(e.kind() == SessionError::Kind::kCorrupt);
     CHECK(std::string(e.what()).find("'manhattan'") != std::string::npos);
   }
+}
+
+// A graph of the collection's rows: each item's K nearest others by squared Euclidean distance,
+// computed here by brute force.
+static kith::NeighbourGraph brute_graph(const kith::Collection& c, size_t k) {
+  kith::NeighbourGraph g;
+  g.n = c.size();
+  g.k = k;
+  for (size_t i = 0; i < g.n; ++i) {
+    std::vector<std::pair<double, int32_t>> d;
+    for (size_t j = 0; j < g.n; ++j)
+      if (j != i) d.push_back({(c.features.row(Eigen::Index(i)) - c.features.row(Eigen::Index(j))).squaredNorm(), int32_t(j)});
+    std::sort(d.begin(), d.end());
+    for (size_t a = 0; a < k; ++a) {
+      g.index.push_back(d[a].second);
+      g.distance2.push_back(d[a].first);
+    }
+  }
+  return g;
+}
+
+TEST_CASE("sessions: a given neighbour graph is kept, changes the content hash, and a version 3 file opens without one") {
+  const std::string dir = kith::test::temp_dir("kith-graph-session");
+  kith::Collection c = kith::test::swatch_collection(40, 4, 7);
+  const std::string plain_hash = kith::content_hash(c);
+  c.neighbours = brute_graph(c, 9);
+  CHECK(kith::content_hash(c) != plain_hash);
+  const std::string path = dir + "/graph.kith";
+  SessionStore::create(path, c, kith::MapParameters{}).reset();
+  {
+    const kith::Collection back = SessionStore::open(path, {true})->collection();
+    CHECK(back.neighbours.n == 40);
+    CHECK(back.neighbours.k == 9);
+    CHECK(back.neighbours.index == c.neighbours.index);
+    CHECK(back.neighbours.distance2 == c.neighbours.distance2);
+    CHECK(kith::content_hash(back) == kith::content_hash(c));
+  }
+  // Damage: a row naming the item itself is refused with a message, not used.
+  sqlite3* db = nullptr;
+  REQUIRE(sqlite3_open(path.c_str(), &db) == SQLITE_OK);
+  {
+    sqlite3_stmt* q = nullptr;
+    REQUIRE(sqlite3_prepare_v2(db, "UPDATE neighbours SET neighbours = ? WHERE item = 3", -1, &q, nullptr) == SQLITE_OK);
+    std::vector<int32_t> self(9, 3);
+    sqlite3_bind_blob(q, 1, self.data(), int(self.size() * sizeof(int32_t)), SQLITE_TRANSIENT);
+    REQUIRE(sqlite3_step(q) == SQLITE_DONE);
+    sqlite3_finalize(q);
+  }
+  sqlite3_close(db);
+  try {
+    SessionStore::open(path, {true})->collection();
+    FAIL("a damaged graph was read");
+  } catch (const SessionError& e) {
+    CHECK(e.kind() == SessionError::Kind::kCorrupt);
+    CHECK(std::string(e.what()).find("neighbour graph") != std::string::npos);
+  }
+
+  // As kith wrote version 3 files: no neighbours table. It is migrated and has no graph.
+  const std::string old = dir + "/v3.kith";
+  SessionStore::create(old, kith::test::swatch_collection(40, 4, 7), kith::MapParameters{}).reset();
+  REQUIRE(sqlite3_open(old.c_str(), &db) == SQLITE_OK);
+  REQUIRE(sqlite3_exec(db, "DROP TABLE neighbours; PRAGMA user_version = 3;", nullptr, nullptr, nullptr) == SQLITE_OK);
+  sqlite3_close(db);
+  CHECK(SessionStore::inspect(old).schema_version == 3);
+  {
+    auto store = SessionStore::open(old);
+    CHECK(store->migration_backup().find(".schema-v3") != std::string::npos);
+    CHECK(store->collection().neighbours.empty());
+    CHECK(store->content_hash() == plain_hash);  // a session made before graphs is still found by its collection
+  }
+  CHECK(SessionStore::inspect(old).schema_version == kith::kSessionSchemaVersion);
 }
 
 TEST_CASE("sessions: events and renamed people are kept, a copy saved as is complete and never overwrites") {

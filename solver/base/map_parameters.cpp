@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <sstream>
 
 namespace kith {
@@ -76,6 +77,18 @@ bool parse_metric(const std::string& text, Metric* metric) {
 double MapParameters::perplexity_for(size_t item_count) const {
   if (perplexity != kDefaultPerplexity || item_count == 0) return perplexity;
   return std::min(kDefaultPerplexity, std::max(1.0, double(item_count - 1) / 3.0));
+}
+
+double MapParameters::perplexity_for_graph(size_t k) const { return perplexity_for(k + 1); }
+
+std::string MapParameters::check_graph_perplexity(double perplexity, size_t k) {
+  if (perplexity <= double(k)) return "";
+  char buf[200];
+  std::snprintf(buf, sizeof buf,
+                "perplexity %g needs at least that many neighbours per item, and the neighbour graph has %zu; give "
+                "--perplexity %zu or less (or a graph with more neighbours)",
+                perplexity, k, k);
+  return buf;
 }
 
 size_t neighbour_count(size_t item_count, double perplexity) {

@@ -56,6 +56,14 @@ struct MapParameters {
   // The perplexity a map of item_count items is built with (see above).
   double perplexity_for(size_t item_count) const;
 
+  // The perplexity a map from a given neighbour graph of k neighbours per item is built with:
+  // each item is calibrated over those k, so the default means "30 or, when the graph is too
+  // small for it, k / 3" (as perplexity_for with k + 1 items); a perplexity chosen by hand is
+  // taken as it is, and check_graph_perplexity says whether k neighbours can hold it.
+  double perplexity_for_graph(size_t k) const;
+  // "" or why PERPLEXITY cannot be reached over K neighbours (it must be at most K).
+  static std::string check_graph_perplexity(double perplexity, size_t k);
+
   // One setting at a time, for a live command: "" or the message IsValid would give.
   static std::string check_perplexity(double perplexity, size_t item_count = 0);
   static std::string check_theta(double theta);

@@ -98,6 +98,7 @@ DemoCeilings demo_ceilings(const SimulatedPeople& people, const std::vector<Judg
   if (sd > 0) y *= 1e-4 / sd;
   NeighbourTermOptions no;
   no.threads = options.threads;
+  no.force_exact = true;  // as the trial's maps (demo_trial.cpp), so its recorded figures hold
   NeighbourTerm term(p, no);
   LoopOptions loop;
   loop.iterations = options.iterations;

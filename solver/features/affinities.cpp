@@ -165,4 +165,22 @@ SparseAffinities joint_affinities_for(const Points& features, double perplexity,
   return p;
 }
 
+SparseAffinities joint_affinities_from_graph(const NeighbourGraph& graph, double perplexity) {
+  const size_t k = std::max<size_t>(std::min(graph.k, neighbour_count(graph.n, perplexity)), 1);
+  AffinityOptions ao;
+  ao.perplexity = perplexity;
+  if (k == graph.k) return joint_affinities(graph, ao);
+  NeighbourGraph nearest;
+  nearest.n = graph.n;
+  nearest.k = k;
+  nearest.index.resize(graph.n * k);
+  nearest.distance2.resize(graph.n * k);
+  for (size_t i = 0; i < graph.n; ++i)
+    for (size_t c = 0; c < k; ++c) {
+      nearest.index[i * k + c] = graph.index[i * graph.k + c];
+      nearest.distance2[i * k + c] = graph.distance2[i * graph.k + c];
+    }
+  return joint_affinities(nearest, ao);
+}
+
 }  // namespace kith

@@ -47,4 +47,10 @@ struct AffinitySearch {
 SparseAffinities joint_affinities_for(const Points& features, double perplexity, const AffinitySearch& search = {},
                                       NeighbourGraph* graph = nullptr);
 
+// The one path from a given graph (solver/io/neighbour_graph_file.h) to P: each item's
+// k = min(graph.k, neighbour_count(N, perplexity)) nearest neighbours (rows are nearest first),
+// then joint_affinities. The same as joint_affinities_for when the graph holds the neighbours and
+// distances that search finds.
+SparseAffinities joint_affinities_from_graph(const NeighbourGraph& graph, double perplexity);
+
 }  // namespace kith

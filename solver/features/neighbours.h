@@ -8,17 +8,10 @@
 #include <vector>
 
 #include "solver/base/map_parameters.h"
+#include "solver/base/neighbour_graph.h"
 #include "solver/base/points.h"
 
 namespace kith {
-
-// Row i's neighbours are index[i*k .. i*k+k), nearest first, with squared distances alongside.
-struct NeighbourGraph {
-  size_t n = 0;
-  size_t k = 0;
-  std::vector<int32_t> index;
-  std::vector<double> distance2;
-};
 
 struct NeighbourOptions {
   size_t exact_below = 20000;  // exact search for fewer items than this (default: 20000)

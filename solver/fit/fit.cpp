@@ -93,6 +93,9 @@ namespace {
 // No features: the judgments' t-STE term alone (no KL term, so no exaggeration) from a seeded
 // Gaussian start of standard deviation kJudgmentsStartScale.
 constexpr double kJudgmentsStartScale = 1e-2;
+// The map's first column's standard deviation at the start (as scikit-learn's init='pca'), also
+// of the Gaussian start of a map from a given graph without features.
+constexpr double kStartScale = 1e-4;
 
 FitResult fit_judgments_alone(size_t n, const FitOptions& options, const ProgressFn& progress) {
   const auto t0 = Clock::now();
@@ -119,27 +122,42 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
   const size_t n = size_t(features.rows());
   std::string error;
   if (n < 3) throw std::invalid_argument("a map needs at least 3 items (got " + std::to_string(n) + ")");
-  if (features.cols() < 1 && options.judgments.empty())
+  const NeighbourGraph* graph = options.neighbours && !options.neighbours->empty() ? options.neighbours : nullptr;
+  if (graph && graph->n != n)
+    throw std::invalid_argument("the neighbour graph has " + std::to_string(graph->n) + " items, the features " +
+                                std::to_string(n));
+  if (features.cols() < 1 && !graph && options.judgments.empty())
     throw std::invalid_argument("the items have no feature columns and there are no judgments to place them by");
-  if (!options.IsValid(&error, features.cols() > 0 ? n : 0)) throw std::invalid_argument(error);
-  if (features.cols() < 1) return fit_judgments_alone(n, options, progress);
+  if (!options.IsValid(&error, features.cols() > 0 || graph ? n : 0)) throw std::invalid_argument(error);
+  if (features.cols() < 1 && !graph) return fit_judgments_alone(n, options, progress);
+  const double perplexity = graph ? options.perplexity_for_graph(graph->k) : options.perplexity_for(n);
+  if (graph)
+    if (std::string e = MapParameters::check_graph_perplexity(perplexity, graph->k); !e.empty())
+      throw std::invalid_argument(e);
   for (Eigen::Index i = 0; i < features.rows(); ++i)
     for (Eigen::Index c = 0; c < features.cols(); ++c)
       if (!std::isfinite(features(i, c)))
         throw std::invalid_argument("feature value at row " + std::to_string(i + 1) + ", column " +
                                     std::to_string(c + 1) + " is not a finite number");
   FitResult r;
-  FeaturePrepOptions prep;
-  prep.standardize = options.standardize;
-  prep.max_dims = options.pca_dims;
-  prep.metric = options.metric;
-  r.features = prepare_features(features, prep, &r.features_note);
-
-  // The graph (12 bytes per neighbour) is not kept once P exists.
-  r.p = std::make_shared<SparseAffinities>(
-      joint_affinities_for(r.features, options.perplexity_for(n), {options.seed, options.threads, options.exact}));
-
-  r.map = pca_start(r.features, options.dims, 1e-4, options.seed);
+  if (features.cols() > 0) {
+    FeaturePrepOptions prep;
+    prep.standardize = options.standardize;
+    prep.max_dims = options.pca_dims;
+    prep.metric = options.metric;
+    r.features = prepare_features(features, prep, &r.features_note);
+  }
+  if (graph) {
+    r.p = std::make_shared<SparseAffinities>(joint_affinities_from_graph(*graph, perplexity));
+    r.features_note = (r.features_note.empty() ? "" : r.features_note + "; ") + "neighbours from the given graph (" +
+                      std::to_string(graph->k) + " an item)";
+  } else {
+    // The graph (12 bytes per neighbour) is not kept once P exists.
+    r.p = std::make_shared<SparseAffinities>(
+        joint_affinities_for(r.features, perplexity, {options.seed, options.threads, options.exact}));
+  }
+  r.map = features.cols() > 0 ? pca_start(r.features, options.dims, kStartScale, options.seed)
+                              : random_start(n, options.dims, options.seed, kStartScale);
   const double setup = since(t0);
 
   NeighbourTermOptions topt;

@@ -5,7 +5,11 @@
 //   -> run_schedule(NeighbourTerm) for `iterations` steps of the Schedule (schedule.h).
 // run_schedule is the loop itself and takes any ObjectiveTerm plus a hook that sets the
 // exaggeration, so the blended objective (solver/objective/blended_objective.h) runs the same schedule.
-// Items without features (features N x 0) are placed from options.judgments alone: the t-STE
+// With options.neighbours (a given graph, solver/io/neighbour_graph_file.h) P comes from that
+// graph (joint_affinities_from_graph, perplexity_for_graph) instead of a search; the features are
+// then optional: with them the start is PCA as above, without (N x 0) a seeded Gaussian of
+// standard deviation 1e-4, and FitResult::features stays empty.
+// Items without features nor a graph are placed from options.judgments alone: the t-STE
 // term from a seeded Gaussian start, no KL term, no exaggeration; FitResult::features and p stay
 // empty. Divergence (NaN, infinite or exploding coordinates) throws DivergenceError; the map is not
 // returned. Functions here may be called from any thread; they share no state.
@@ -21,6 +25,7 @@
 #include "solver/features/affinities.h"
 #include "solver/base/judgment.h"
 #include "solver/base/map_parameters.h"
+#include "solver/base/neighbour_graph.h"
 #include "solver/objective/objective_term.h"
 #include "solver/base/points.h"
 #include "solver/fit/schedule.h"
@@ -35,6 +40,8 @@ struct FitOptions : MapParameters {
   bool standardize = false;     // scale feature columns to unit variance (default: false)
   int pca_dims = 50;            // PCA features down to this many dims when wider, 0 = never (default: 50)
   std::vector<Judgment> judgments;  // blended in as t-STE (blended_objective.h) when given (default: none)
+  // A given neighbour graph of the N items, not owned: P comes from it (default: none, searched)
+  const NeighbourGraph* neighbours = nullptr;
   // A readable message for the first impossible value; n (if > 0) also checks perplexity < n.
   bool IsValid(std::string* error, size_t n = 0) const;
 };

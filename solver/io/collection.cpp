@@ -20,6 +20,7 @@
 #include <unordered_set>
 
 #include "solver/io/csv_table.h"
+#include "solver/io/neighbour_graph_file.h"
 #include "solver/io/npy_file.h"
 #include "solver/io/text_fields.h"
 
@@ -400,7 +401,7 @@ Collection load_table(std::string data, const std::string& name, const LoadOptio
       if (roles.id == kNone && excluded.empty()) message += "; nor an id column of unique names to judge them by";
       fail(name, t.header_line, 0, message + ")");
     }
-    if (names_alone)
+    if (names_alone && options.neighbours.empty())  // with a graph the map needs no features
       c.warnings.push_back(Problem{name, t.header_line, 0,
                                    "no numeric feature columns: the items are placed from judgments alone "
                                    "(kith fit --judgments FILE, or ask in kith open)"});
@@ -489,8 +490,10 @@ bool is_npy_name(const std::string& name) { return ends_with_ci(name, ".npy"); }
 
 Collection load_collection_from_memory(std::string data, const std::string& name, const LoadOptions& options) {
   check_options(options, name);
-  if (looks_like_npy(data) || is_npy_name(name)) return load_npy(data, name, options);
-  return load_table(std::move(data), name, options);
+  Collection c = looks_like_npy(data) || is_npy_name(name) ? load_npy(data, name, options)
+                                                            : load_table(std::move(data), name, options);
+  if (!options.neighbours.empty()) c.neighbours = read_neighbour_graph(options.neighbours, c, &c.warnings);
+  return c;
 }
 
 Collection load_collection(const std::string& path, const LoadOptions& options) {
@@ -555,6 +558,13 @@ std::string content_hash(const Collection& c) {
   }
   f.text(c.picture_column);
   for (const std::string& p : c.pictures) f.text(std::filesystem::path(p).filename().string());
+  if (!c.neighbours.empty()) {  // a collection without a graph hashes as it did before graphs
+    const uint64_t k = c.neighbours.k;
+    f.text("neighbours");
+    f.bytes(&k, sizeof k);
+    f.bytes(c.neighbours.index.data(), c.neighbours.index.size() * sizeof(int32_t));
+    f.bytes(c.neighbours.distance2.data(), c.neighbours.distance2.size() * sizeof(double));
+  }
   char buf[32];
   std::snprintf(buf, sizeof buf, "fnv1a64:%016llx", static_cast<unsigned long long>(f.h));
   return buf;
@@ -571,6 +581,7 @@ std::string reading_flags(const LoadOptions& o) {
   add("--exclude", excluded);
   add("--pictures", o.picture_column);
   add("--tags", o.tags_csv);
+  add("--neighbours", o.neighbours);
   return s;
 }
 

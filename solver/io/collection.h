@@ -12,6 +12,7 @@
 #include <unordered_map>
 #include <vector>
 
+#include "solver/base/neighbour_graph.h"
 #include "solver/base/points.h"
 
 namespace kith {
@@ -54,6 +55,7 @@ struct Collection {
   std::vector<std::string> pictures;       // resolved paths, one per item, or empty if none
   std::vector<Problem> warnings;
   std::vector<long> lines;                 // CSV/TSV: the line each item's row starts on; else empty
+  NeighbourGraph neighbours;               // given with LoadOptions::neighbours, else empty (n == 0)
 
   size_t size() const { return ids.size(); }
   // Index of an item by id; nullopt if unknown. Uses the lookup table made by the loaders (or by
@@ -73,6 +75,9 @@ struct LoadOptions {
   std::string tags_csv;                   // for .npy: CSV of ids and tags, same row count (default: none)
   size_t min_items = 2;                   // fewer is an error (default: 2)
   bool allow_no_features = false;         // judgments-only collections (default: false)
+  // A k-nearest-neighbour graph of the items (solver/io/neighbour_graph_file.h), read after them
+  // into Collection::neighbours; the map's affinities then come from it (default: none).
+  std::string neighbours;
 
   // False with a readable message when an option is impossible.
   bool is_valid(std::string* error) const;

@@ -159,7 +159,7 @@ bool looks_like_npy(std::string_view bytes) {
   return bytes.size() >= kMagicSize && std::memcmp(bytes.data(), kMagic, kMagicSize) == 0;
 }
 
-Points parse_npy(std::string_view b, const std::string& source) {
+Points parse_npy(std::string_view b, const std::string& source, const NpyReadOptions& options) {
   auto fail = [&](size_t at, std::string message) -> void {
     throw LoadError(Problem{source, 0, long(at), std::move(message)});
   };
@@ -190,10 +190,12 @@ Points parse_npy(std::string_view b, const std::string& source) {
   header.parse();
 
   size_t item_size = 0;
-  if (header.descr == "<f8") item_size = 8;
-  else if (header.descr == "<f4") item_size = 4;
-  else {
-    fail(header_begin, "expected element type '<f4' or '<f8' (little-endian float32 or float64), found '" +
+  const bool integer = options.allow_integers && (header.descr == "<i8" || header.descr == "<i4");
+  if (header.descr == "<f8" || header.descr == "<i8") item_size = 8;
+  if (header.descr == "<f4" || header.descr == "<i4") item_size = 4;
+  if (item_size == 0 || (header.descr[1] == 'i' && !integer)) {
+    fail(header_begin, std::string("expected element type '<f4' or '<f8' (little-endian float32 or float64") +
+                           (options.allow_integers ? ", or '<i4' or '<i8' (int32 or int64)" : "") + "), found '" +
                            header.descr + "'");
   }
   if (header.fortran_order) {
@@ -224,7 +226,23 @@ Points parse_npy(std::string_view b, const std::string& source) {
     std::memcpy(raw, src + k * item_size, item_size);
     if (swap) std::reverse(raw, raw + item_size);
     double v;
-    if (item_size == 8) {
+    if (integer) {
+      int64_t whole = 0;
+      if (item_size == 8) {
+        std::memcpy(&whole, raw, 8);
+      } else {
+        int32_t small;
+        std::memcpy(&small, raw, 4);
+        whole = small;
+      }
+      constexpr int64_t kExact = int64_t(1) << 53;
+      if (whole > kExact || whole < -kExact) {
+        const uint64_t r = k / cols, c = k % cols;
+        fail(data_begin + k * item_size, "expected a whole number of at most 2^53 in size at [" + std::to_string(r) +
+                                             ", " + std::to_string(c) + "], found " + std::to_string(whole));
+      }
+      v = double(whole);
+    } else if (item_size == 8) {
       std::memcpy(&v, raw, 8);
     } else {
       float f;

@@ -20,8 +20,14 @@ namespace kith {
 // True if `bytes` start with the .npy magic "\x93NUMPY".
 bool looks_like_npy(std::string_view bytes);
 
+struct NpyReadOptions {
+  // Also little-endian int32 ('<i4') and int64 ('<i8'), e.g. a neighbour graph's indices; each
+  // value must be at most 2^53 in size, so that it is exact as a double (default: false).
+  bool allow_integers = false;
+};
+
 // Parses a whole .npy file held in memory; `source` names it in messages.
-Points parse_npy(std::string_view bytes, const std::string& source);
+Points parse_npy(std::string_view bytes, const std::string& source, const NpyReadOptions& options = {});
 
 // POINTS as a version 1.0 .npy file: little-endian float64 ('<f8'), C order, shape (N, D), the
 // header padded so the data starts on a 64-byte boundary (as NumPy writes it).

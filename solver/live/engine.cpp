@@ -118,9 +118,19 @@ class EngineModel : public LiveModel {
     if (!collection.features.allFinite()) throw std::invalid_argument("the features contain NaN or infinite values");
     raw_ = std::make_shared<const Points>(collection.features);
     has_features_ = collection.features.cols() > 0;
-    if (std::string error; !options.IsValid(&error, has_features_ ? n : 0)) throw std::invalid_argument(error);
+    if (!collection.neighbours.empty()) {
+      if (collection.neighbours.n != n)
+        throw std::invalid_argument("the neighbour graph has " + std::to_string(collection.neighbours.n) +
+                                    " items, the collection " + std::to_string(n));
+      graph_ = std::make_shared<const NeighbourGraph>(collection.neighbours);
+    }
+    if (std::string error; !options.IsValid(&error, has_features_ || graph_ ? n : 0))
+      throw std::invalid_argument(error);
     schedule_.learning_rate = options.learning_rate;
-    perplexity_ = options.perplexity_for(n);
+    perplexity_ = graph_ ? options.perplexity_for_graph(graph_->k) : options.perplexity_for(n);
+    if (graph_)
+      if (std::string e = MapParameters::check_graph_perplexity(perplexity_, graph_->k); !e.empty())
+        throw std::invalid_argument(e);
     exaggeration_ = options.exaggeration;
     validate_judgments(judgments, n);
     objective_.set_judgments(std::move(judgments));
@@ -146,8 +156,9 @@ class EngineModel : public LiveModel {
   void ensure_ready() {
     if (ready_) return;
     ready_ = true;
-    if (!has_features_) return;
-    auto p = build_affinities(*prepared_, perplexity_, options_);
+    if (!has_features_ && !graph_) return;
+    auto p = graph_ ? std::make_shared<const SparseAffinities>(joint_affinities_from_graph(*graph_, perplexity_))
+                    : build_affinities(*prepared_, perplexity_, options_);
     NeighbourTermOptions nto;
     nto.dof = options_.dof;
     nto.theta = options_.theta;
@@ -297,6 +308,7 @@ class EngineModel : public LiveModel {
     for (int32_t i : rows)
       if (std::string e = item_problem(i, n()); !e.empty()) return "remove: " + e;
     if (n() - rows.size() < 2) return "remove: the map must keep at least 2 items";
+    if (graph_) return "remove: " + kGivenGraph;
     if (has_features_ && !(perplexity_ < double(n() - rows.size())))
       return "remove: perplexity " + std::to_string(perplexity_) + " needs more than " +
              std::to_string(n() - rows.size()) + " items";
@@ -362,11 +374,16 @@ class EngineModel : public LiveModel {
     const EngineOptions o = options_;
     if (const auto* c = std::get_if<cmd::SetPerplexity>(&body)) {
       const double perplexity = c->perplexity;
-      if (!has_features_) return *error = "perplexity: this collection has no features", nullptr;
+      if (!has_features_ && !graph_) return *error = "perplexity: this collection has no features", nullptr;
       if (std::string e = setting_problem(body, n()); !e.empty()) return *error = e, nullptr;
+      if (graph_)
+        if (std::string e = MapParameters::check_graph_perplexity(perplexity, graph_->k); !e.empty())
+          return *error = "perplexity: " + e, nullptr;
       std::shared_ptr<const Points> x = prepared_;
-      return [this, x, perplexity, o]() -> Finish {
-        auto p = build_affinities(*x, perplexity, o);
+      std::shared_ptr<const NeighbourGraph> graph = graph_;
+      return [this, x, graph, perplexity, o]() -> Finish {
+        auto p = graph ? std::make_shared<const SparseAffinities>(joint_affinities_from_graph(*graph, perplexity))
+                       : build_affinities(*x, perplexity, o);
         return [this, p, perplexity] {
           p_ = p;
           perplexity_ = perplexity;
@@ -377,6 +394,7 @@ class EngineModel : public LiveModel {
     }
     if (const auto* c = std::get_if<cmd::SetFeatures>(&body)) {
       if (!has_features_) return *error = "features: this collection has no features to replace", nullptr;
+      if (graph_) return *error = "features: " + kGivenGraph, nullptr;
       if (c->features.rows() != raw_->rows() || c->features.cols() != raw_->cols())
         return *error = "features: the map has " + std::to_string(raw_->rows()) + " x " + std::to_string(raw_->cols()) +
                         " features, got " + std::to_string(c->features.rows()) + " x " +
@@ -409,6 +427,7 @@ class EngineModel : public LiveModel {
     const auto& c = std::get<cmd::InsertItems>(body);
     const size_t m = c.ids.size();
     if (m == 0) return *error = "insert: no items", nullptr;
+    if (graph_) return *error = "insert: " + kGivenGraph, nullptr;
     if (c.features.rows() != Eigen::Index(m) || c.features.cols() != raw_->cols())
       return *error = "insert: " + std::to_string(m) + " ids need " + std::to_string(m) + " x " +
                       std::to_string(raw_->cols()) + " features, got " + std::to_string(c.features.rows()) + " x " +
@@ -597,6 +616,11 @@ class EngineModel : public LiveModel {
   Schedule schedule_;
   std::vector<std::string> ids_;
   std::shared_ptr<const Points> raw_, prepared_;
+  std::shared_ptr<const NeighbourGraph> graph_;  // given with the collection, else null
+  // Why the item set and the features cannot change under a given graph.
+  inline static const std::string kGivenGraph =
+      "the map's neighbours come from a given neighbour graph of exactly these items, which kith cannot extend "
+      "or recompute; make a new graph (scripts/neighbour_graph.py) and a new session";
   static constexpr int kHealthSeconds = 4;
   static constexpr size_t kHealthSample = 1000;
   std::chrono::steady_clock::time_point next_health_ = std::chrono::steady_clock::now() + std::chrono::seconds(1);

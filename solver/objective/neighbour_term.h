@@ -17,7 +17,11 @@ namespace kith {
 struct NeighbourTermOptions {
   double dof = 1.0;           // Student-t degrees of freedom, > 0 (default: 1)
   double theta = 0.5;         // Barnes-Hut opening angle; 0 = exact answer via the tree (default: 0.5)
-  size_t exact_below = 1500;  // exact O(N^2) repulsion below this many items (default: 1500)
+  // Exact O(N^2) repulsion below this many items (default: 100). Chosen by measurement
+  // (tests/bench/bench_crossover.cpp, RESULTS-scale.md): on one thread Barnes-Hut's 1000 steps
+  // are already faster from 40 items up (1.6x at 100, 5x at 700), so exact repulsion is kept only
+  // where it costs under 0.1 s a fit, and fit time has no step where the paths meet.
+  size_t exact_below = 100;
   bool force_exact = false;   // exact repulsion whatever N (default: false)
   int threads = 0;            // 0 = all hardware threads (default: 0)
 };

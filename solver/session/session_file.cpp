@@ -277,6 +277,7 @@ void write_schema_and_collection(Db& d, const Collection& c, const SessionSettin
                                  const std::string& reading) {
   exec(d, kSchemaV1);
   exec(d, kEventsTable);
+  exec(d, kNeighboursTable);
   {
     Stmt m(d, "INSERT INTO meta(key, value) VALUES (?, ?)");
     m.bind(1, std::string("application")).bind(2, std::string(kApplicationMarker)).run();
@@ -310,6 +311,13 @@ void write_schema_and_collection(Db& d, const Collection& c, const SessionSettin
       tg.bind(1, int64_t(i)).bind(2, int64_t(col)).bind(3, c.tags[col].values[i]).run();
     }
   }
+  const NeighbourGraph& g = c.neighbours;
+  Stmt nb(d, "INSERT INTO neighbours(item, neighbours, distances) VALUES (?, ?, ?)");
+  for (size_t i = 0; i < g.n; ++i)
+    nb.bind(1, int64_t(i))
+        .bind_blob(2, g.index.data() + i * g.k, g.k * sizeof(int32_t))
+        .bind_blob(3, g.distance2.data() + i * g.k, g.k * sizeof(double))
+        .run();
 }
 
 void validate_collection(const std::string& path, const Collection& c) {
@@ -320,6 +328,9 @@ void validate_collection(const std::string& path, const Collection& c) {
   if (!c.feature_names.empty() && c.feature_names.size() != size_t(c.features.cols()))
     bad("feature names and feature columns differ in number");
   if (!c.pictures.empty() && c.pictures.size() != c.size()) bad("picture paths and items differ in number");
+  if (!c.neighbours.empty() && c.neighbours.n != c.size())
+    bad("the neighbour graph has " + std::to_string(c.neighbours.n) + " items, the collection " +
+        std::to_string(c.size()));
   for (const auto& t : c.tags)
     if (t.values.size() != c.size()) bad("tag column '" + t.name + "' has the wrong number of values");
   std::set<std::string> seen;

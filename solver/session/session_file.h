@@ -84,17 +84,27 @@ CREATE TRIGGER events_are_never_deleted BEFORE DELETE ON events
   BEGIN SELECT RAISE(ABORT, 'events are never deleted'); END;
 )sql";
 
-inline const char* const kRequiredTables[] = {"meta",   "settings",  "feature_columns", "tag_columns", "items",
-                                       "item_tags", "people", "judgments",       "pins",        "checkpoints",
-                                       "events"};
+// Version 4 adds the neighbour graph a session was made with (--neighbours): one row per item,
+// its k neighbours' rows as int32 and their squared distances as float64, nearest first; no rows
+// when the neighbours are searched in the features.
+inline constexpr const char* kNeighboursTable = R"sql(
+CREATE TABLE neighbours(
+  item INTEGER PRIMARY KEY REFERENCES items(item),
+  neighbours BLOB NOT NULL,
+  distances BLOB NOT NULL);
+)sql";
+
+inline const char* const kRequiredTables[] = {"meta",      "settings", "feature_columns", "tag_columns", "items",
+                                              "item_tags", "people",   "judgments",       "pins",        "checkpoints",
+                                              "events",    "neighbours"};
 
 // Migration steps: kMigrations[v - 1] takes a file from version v to v + 1; a step is SQL run
 // inside the migration's transaction (after the backup copy is written).
 // Version 3 records the feature metric; sessions made before it compared features Euclidean.
 inline constexpr const char* kMetricSetting =
     "INSERT OR IGNORE INTO settings(key, value) VALUES ('metric', 'euclidean');";
-inline const std::vector<const char*> kMigrations = {kEventsTable, kMetricSetting};
-static_assert(kSessionSchemaVersion == 3, "a new schema version needs its migration step here");
+inline const std::vector<const char*> kMigrations = {kEventsTable, kMetricSetting, kNeighboursTable};
+static_assert(kSessionSchemaVersion == 4, "a new schema version needs its migration step here");
 static_assert(kSessionSchemaVersion >= 1, "schema versions start at 1");
 
 

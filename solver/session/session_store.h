@@ -39,7 +39,7 @@
 namespace kith {
 
 // The schema version this build writes (PRAGMA user_version). Older files are migrated.
-constexpr int kSessionSchemaVersion = 3;
+constexpr int kSessionSchemaVersion = 4;
 // PRAGMA application_id of every session: the bytes 'k','i','t','h'.
 constexpr int32_t kSessionApplicationId = 0x6B697468;
 

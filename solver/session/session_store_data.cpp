@@ -57,6 +57,36 @@ std::optional<std::string> meta_value(Db& d, const char* key) {
   return std::nullopt;
 }
 
+// The neighbours table (schema version 4): none, or one row per item with the same k.
+void read_neighbours(Db& d, const std::string& path, size_t n, NeighbourGraph* g) {
+  Stmt q(d, "SELECT item, neighbours, distances FROM neighbours ORDER BY item");
+  size_t row = 0;
+  auto damaged = [&](const std::string& what) {
+    throw SessionError(Kind::kCorrupt, path + ": damaged: the neighbour graph " + what);
+  };
+  while (q.step()) {
+    if (size_t(q.i64(0)) != row || row >= n) damaged("rows are not 0..N-1");
+    const auto idx = q.blob(1), dist = q.blob(2);
+    if (row == 0) {
+      g->k = idx.second / sizeof(int32_t);
+      g->index.resize(n * g->k);
+      g->distance2.resize(n * g->k);
+    }
+    if (g->k == 0 || idx.second != g->k * sizeof(int32_t) || dist.second != g->k * sizeof(double))
+      damaged("has rows of different lengths");
+    std::memcpy(g->index.data() + row * g->k, idx.first, idx.second);
+    std::memcpy(g->distance2.data() + row * g->k, dist.first, dist.second);
+    ++row;
+  }
+  if (row == 0) return;
+  if (row != n) damaged("has " + std::to_string(row) + " rows for " + std::to_string(n) + " items");
+  for (size_t e = 0; e < g->index.size(); ++e)
+    if (g->index[e] < 0 || size_t(g->index[e]) >= n || size_t(g->index[e]) == e / g->k ||
+        !(g->distance2[e] >= 0) || !std::isfinite(g->distance2[e]))
+      damaged("names a row outside 0..N-1, an item as its own neighbour, or a bad distance");
+  g->n = n;
+}
+
 }  // namespace
 
 std::string SessionStore::content_hash() const {
@@ -112,6 +142,7 @@ Collection SessionStore::collection() const {
     if (fcols > 0) std::memcpy(c.features.data() + Eigen::Index(row) * fcols, b.first, b.second);
     ++row;
   }
+  read_neighbours(d, impl_->path, n, &c.neighbours);
   for (auto& t : c.tags) t.values.assign(n, "");
   Stmt tg(d, "SELECT item, col, value FROM item_tags");
   while (tg.step()) {

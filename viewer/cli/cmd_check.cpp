@@ -38,7 +38,7 @@ std::string list(const std::vector<std::string>& names, size_t max_shown) {
 }  // namespace
 
 int cmd_check(const Args& args) {
-  FlagReader flags("check", kUsage, load_flags() + "  --min-items N         fewer items is an error (default: 2)\n",
+  FlagReader flags("check", kUsage, load_flags(true) + "  --min-items N         fewer items is an error (default: 2)\n",
                    kFooter);
   if (!flags.read(args)) return flags.stop();
   LoadOptions options;
@@ -71,6 +71,9 @@ int cmd_check(const Args& args) {
     std::printf(" (%s)", list(described, kMaxNames).c_str());
   }
   std::printf("\n  picture column:  %s\n", c.picture_column.empty() ? "none" : c.picture_column.c_str());
+  if (!c.neighbours.empty())
+    std::printf("  neighbours:      %zu an item, given (%s)\n", c.neighbours.k,
+                in->is_session() ? "kept in the session" : flags.text("--neighbours").c_str());
   std::printf("  warnings:        %zu\n", c.warnings.size());
   for (size_t i = 0; i < c.warnings.size() && i < kMaxWarnings; ++i)
     std::printf("    %s\n", c.warnings[i].str().c_str());

@@ -13,6 +13,7 @@
 #include "solver/io/collection.h"
 #include "solver/io/judgment_io.h"
 #include "solver/io/layout_writer.h"
+#include "solver/io/neighbour_graph_file.h"
 #include "solver/measures/health.h"
 #include "solver/measures/judgment_health.h"
 #include "solver/measures/map_findings.h"
@@ -98,7 +99,7 @@ nlohmann::ordered_json fit_header(const Collection& c, const FitResult& r, const
 int cmd_fit(const Args& args) {
   FitOptions o;
   FlagReader flags("fit", kUsage,
-                   kOptions + load_flags() +
+                   kOptions + load_flags(true) +
                        map_flags({"--dims", "--perplexity", "--iterations", "--theta", "--dof", "--seed",
                                   "--learning-rate", "--blend", "--metric"}),
                    kFooter);
@@ -118,7 +119,9 @@ int cmd_fit(const Args& args) {
   const std::string input = flags.positional()[0];
   if (!is_layout_name(output))
     return flags.usage_error("the output must end in .csv, .json or .npy, got '" + output + "'");
-  const SafeWriteOptions rule = output_rule(flags, {input, judgments_path, flags.text("--tags")});
+  const SafeWriteOptions rule =
+      output_rule(flags, {input, judgments_path, flags.text("--tags"), flags.text("--neighbours"),
+                          graph_distances_path(flags.text("--neighbours"))});
   for (const std::string& file : layout_files(output))
     if (const int refused = refuse_output(flags, file, rule)) return refused;
   int code = kExitOk;
@@ -134,7 +137,9 @@ int cmd_fit(const Args& args) {
       std::fprintf(stderr, "kith fit: %s has %zu pins; kith fit does not hold items in place (kith open does)\n",
                    input.c_str(), in->session->pins().size());
   }
-  const bool names_alone = c.features.cols() == 0;
+  const bool given_graph = !c.neighbours.empty();
+  const bool names_alone = c.features.cols() == 0 && !given_graph;
+  if (given_graph) o.neighbours = &c.neighbours;
   if (names_alone && judgments_path.empty() && o.judgments.empty())
     return flags.usage_error(input +
                              " has no feature columns (numbers), so its map comes from judgments alone: give "
@@ -145,6 +150,7 @@ int cmd_fit(const Args& args) {
     return kExitBadInput;
   }
   if (std::string error; !o.IsValid(&error, c.size())) return flags.usage_error(error);
+  if (const int refused = refuse_graph_perplexity(flags, c, o)) return refused;
   if (const int bad = refuse_rows_without_direction("fit", c, o.metric)) return bad;
 
   if (!judgments_path.empty()) {
@@ -179,8 +185,10 @@ int cmd_fit(const Args& args) {
       return true;
     };
   if (!quiet)
-    std::fprintf(stderr, "kith fit: %zu items, %ld features, %d-D map, perplexity %g\n", c.size(),
-                 long(c.features.cols()), o.dims, o.perplexity);
+    std::fprintf(stderr, "kith fit: %zu items, %ld features, %d-D map, perplexity %g%s\n", c.size(),
+                 long(c.features.cols()), o.dims,
+                 given_graph ? o.perplexity_for_graph(c.neighbours.k) : o.perplexity_for(c.size()),
+                 given_graph ? (", " + std::to_string(c.neighbours.k) + " given neighbours an item").c_str() : "");
   FitResult r;
   try {
     r = fit_map(c.features, o, progress);
@@ -195,7 +203,7 @@ int cmd_fit(const Args& args) {
   HealthOptions ho;
   ho.seed = o.seed;
   ho.threads = o.threads;
-  MapHealth h = names_alone ? MapHealth{} : measure_health(r.features, r.map, ho);
+  MapHealth h = r.features.cols() == 0 ? MapHealth{} : measure_health(r.features, r.map, ho);
   h.kl = r.summary.kl;
   Layout layout;
   layout.collection = &c;

@@ -43,7 +43,7 @@ const char* const kOptions =
 int cmd_new(const Args& args) {
   FlagReader flags(
       "new", kUsage,
-      kOptions + load_flags() + map_flags({"--dims", "--perplexity", "--blend", "--theta", "--dof", "--seed", "--metric"}),
+      kOptions + load_flags(true) + map_flags({"--dims", "--perplexity", "--blend", "--theta", "--dof", "--seed", "--metric"}),
       kFooter);
   if (!flags.read(args)) return flags.stop();
   SessionSettings settings;
@@ -62,9 +62,11 @@ int cmd_new(const Args& args) {
   const std::optional<CollectionInput> in = read_input(flags, flags.positional()[0], &code);
   if (!in) return code;
   const Collection& collection = in->collection;
-  if (collection.features.cols() == 0 && !flags.has("--dof")) settings.dof = MapParameters::kJudgmentsAloneDof;
+  if (collection.features.cols() == 0 && collection.neighbours.empty() && !flags.has("--dof"))
+    settings.dof = MapParameters::kJudgmentsAloneDof;
   // The settings as the engine will take them, before anything is written.
   if (std::string why; !settings.IsValid(&why, collection.size())) return flags.usage_error(why);
+  if (const int refused = refuse_graph_perplexity(flags, collection, settings)) return refused;
   if (const int bad = refuse_rows_without_direction("new", collection, settings.metric)) return bad;
 
   std::vector<Judgment> judgments;

@@ -99,7 +99,7 @@ int open_session(const std::string& path, WindowOptions wo, const std::string& c
 
 int cmd_open(const Args& args) {
   FlagReader flags("open", kUsage,
-                   kOptions + colour_flag() + load_flags() + map_flags({"--perplexity", "--theta", "--blend", "--seed", "--metric"}), kFooter,
+                   kOptions + colour_flag() + load_flags(true) + map_flags({"--perplexity", "--theta", "--blend", "--seed", "--metric"}), kFooter,
                    kHidden);
   if (!flags.read(args)) return flags.stop();
   WindowOptions wo;
@@ -139,6 +139,7 @@ int cmd_open(const Args& args) {
   if (!in) return code;
   Collection* collection = &in->collection;
   if (std::string e; !eo.IsValid(&e, collection->size())) return flags.usage_error(e);
+  if (const int refused = refuse_graph_perplexity(flags, *collection, eo)) return refused;
   if (const int bad = refuse_rows_without_direction("open", *collection, eo.metric)) return bad;
   if (!choose_colour("open", *collection, colour, &wo.view) ||
       !choose_caption("open", *collection, caption, &wo.caption_column))

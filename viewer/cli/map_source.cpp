@@ -38,8 +38,8 @@ bool is_session_path(const std::string& path) {
 }
 
 int refuse_reading_flags(const FlagReader& flags, const std::string& path) {
-  for (const char* option : {"--id", "--exclude", "--pictures", "--tags"})
-    if (flags.has(option))
+  for (const char* option : kReadingFlags)
+    if (flags.declared(option) && flags.has(option))
       return flags.usage_error(std::string(option) + ": " + path +
                                " is a session, which keeps its collection as it was read when it was made; reading "
                                "options go with ITEMS (make a new session from ITEMS to read it otherwise)");
@@ -109,6 +109,13 @@ int refuse_rows_without_direction(const std::string& command, const Collection& 
               "angle between their rows (drop the item, or use --metric euclidean)";
   std::fprintf(stderr, "kith %s: %s\n", command.c_str(), p.str().c_str());
   return kExitBadInput;
+}
+
+int refuse_graph_perplexity(const FlagReader& flags, const Collection& c, const MapParameters& settings) {
+  if (c.neighbours.empty()) return kExitOk;
+  const std::string problem =
+      MapParameters::check_graph_perplexity(settings.perplexity_for_graph(c.neighbours.k), c.neighbours.k);
+  return problem.empty() ? kExitOk : flags.usage_error(problem);
 }
 
 bool choose_colour(const std::string& command, const Collection& c, const std::string& colour, ViewOptions* view) {

@@ -55,6 +55,10 @@ int refuse_reading_flags(const FlagReader& flags, const std::string& session_pat
 // row whose features are all 0.
 int refuse_rows_without_direction(const std::string& command, const Collection& collection, Metric metric);
 
+// With a given neighbour graph, the settings' perplexity must fit in its k neighbours
+// (MapParameters::check_graph_perplexity): 0, or the usage error (2). 0 without a graph.
+int refuse_graph_perplexity(const FlagReader& flags, const Collection& collection, const MapParameters& settings);
+
 // --colour COLUMN: colours VIEW by that tag column ("plain": one colour; "": leaves it). False,
 // with "kith COMMAND: --colour: ..." on stderr, when the collection has no such column.
 bool choose_colour(const std::string& command, const Collection& collection, const std::string& colour,

@@ -73,8 +73,20 @@ bool read_map_flags(FlagReader& f, MapParameters* s) {
          metric(f, &s->metric);
 }
 
-std::string load_flags() {
-  return "  --id COLUMN           the column holding item ids (default: 'id', else the first column of\n"
+const char* const kReadingFlags[5] = {"--id", "--exclude", "--pictures", "--tags", "--neighbours"};
+
+std::string load_flags(bool neighbours) {
+  const std::string graph =
+      neighbours ? "  --neighbours GRAPH    each item's nearest neighbours, computed elsewhere: GRAPH.csv with\n"
+                   "                        columns id,neighbour,distance, or arrays of shape (items, k) in\n"
+                   "                        GRAPH.npz (indices, distances) or NAME-indices.npy with\n"
+                   "                        NAME-distances.npy beside it; the map's\n"
+                   "                        affinities then come from it and features are optional (README,\n"
+                   "                        'A neighbour graph made elsewhere'; scripts/neighbour_graph.py\n"
+                   "                        makes one)\n"
+                 : "";
+  return graph +
+         "  --id COLUMN           the column holding item ids (default: 'id', else the first column of\n"
          "                        unique text, else items are numbered)\n"
          "  --exclude A,B,...     numeric columns that are not features (they become tags)\n"
          "  --pictures COLUMN     the column of picture paths, relative to the table's folder (default:\n"
@@ -124,6 +136,7 @@ bool read_load_flags(FlagReader& f, LoadOptions* o) {
   o->id_column = f.text("--id", o->id_column);
   o->picture_column = f.text("--pictures", o->picture_column);
   o->tags_csv = f.text("--tags", o->tags_csv);
+  if (f.declared("--neighbours")) o->neighbours = f.text("--neighbours", o->neighbours);
   return f.list("--exclude", &o->exclude);
 }
 

@@ -2,7 +2,7 @@
 //   the map settings (--dims --perplexity --theta --dof --blend --learning-rate --seed
 //   --iterations --metric), read into MapParameters (solver/base/map_parameters.h) and checked by its
 //   IsValid once the collection is loaded, before anything is written;
-//   how to read ITEMS (--id --exclude --pictures --tags), read into LoadOptions;
+//   how to read ITEMS (--id --exclude --pictures --tags --neighbours), read into LoadOptions;
 //   the output rule (--force): every file a command writes goes through write_file_safely
 //   (solver/io/safe_file.h); an existing file is replaced only with --force, and never a session
 //   (any SQLite file), a folder or one of the command's own inputs. A refused output is a usage
@@ -30,9 +30,14 @@ std::string session_map_flags(const std::vector<std::string>& names);
 // are MapParameters::IsValid's, which the command calls with the item count once it has them.
 bool read_map_flags(FlagReader& flags, MapParameters* settings);
 
-// --id, --exclude, --pictures, --tags: how every command reads ITEMS (map_source.h read_input).
-std::string load_flags();
+// --id, --exclude, --pictures, --tags: how every command reads ITEMS (map_source.h read_input);
+// with `neighbours`, also --neighbours GRAPH (a given neighbour graph, for the commands that make
+// a map from it: fit, new, open; and check, which checks it). read_load_flags reads every one the
+// reader declares.
+std::string load_flags(bool neighbours = false);
 bool read_load_flags(FlagReader& flags, LoadOptions* options);
+// The reading options a SESSION refuses (it keeps its collection, and graph, as they were read).
+extern const char* const kReadingFlags[5];
 
 // The --colour option line (open, render, export --picture, report); map_source.h choose_colour
 // reads it.
