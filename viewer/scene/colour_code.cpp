@@ -38,6 +38,18 @@ void note_shared_colours(size_t coded_values, ColourCode* code) {
                         marks + "; the legend shows each value's mark");
 }
 
+// Each item i takes the colour and mark of entry entry_of(i), or the muted disc when that is < 0.
+template <typename EntryOf>
+void paint_items(size_t n, const Palette& palette, ColourCode* code, EntryOf entry_of) {
+  code->colour.assign(n, palette.muted);
+  code->mark.assign(n, Mark::kDisc);
+  for (size_t i = 0; i < n; ++i)
+    if (const long e = entry_of(i); e >= 0) {
+      code->colour[i] = code->entries[size_t(e)].colour;
+      code->mark[i] = code->entries[size_t(e)].mark;
+    }
+}
+
 }  // namespace
 
 ColourCode categorical_code(const std::string& title, const std::vector<std::string>& values, const Palette& palette) {
@@ -63,14 +75,10 @@ ColourCode categorical_code(const std::string& title, const std::vector<std::str
                          " items) share the grey of 'other'");
   if (other) code.entries.push_back({"other", palette.muted, Mark::kDisc, other, ""});
   if (none) code.entries.push_back({"no value", palette.muted, Mark::kDisc, none, ""});
-  code.colour.assign(n, palette.muted);
-  code.mark.assign(n, Mark::kDisc);
-  for (size_t i = 0; i < n; ++i) {
+  paint_items(n, palette, &code, [&](size_t i) {
     const auto it = index.find(values[i]);
-    if (it == index.end()) continue;
-    code.colour[i] = code.entries[it->second].colour;
-    code.mark[i] = code.entries[it->second].mark;
-  }
+    return it == index.end() ? -1L : long(it->second);
+  });
   return code;
 }
 
@@ -88,14 +96,10 @@ ColourCode group_code(const std::string& title, const std::vector<int>& groups, 
   size_t rest = none;
   for (size_t g = named; g < names.size(); ++g) rest += count[g];
   if (rest) code.entries.push_back({"no group", palette.muted, Mark::kDisc, rest, ""});
-  code.colour.assign(n, palette.muted);
-  code.mark.assign(n, Mark::kDisc);
-  for (size_t i = 0; i < n; ++i) {
+  paint_items(n, palette, &code, [&](size_t i) {
     const int g = groups[i];
-    if (g < 0 || size_t(g) >= named) continue;
-    code.colour[i] = code.entries[size_t(g)].colour;
-    code.mark[i] = code.entries[size_t(g)].mark;
-  }
+    return g < 0 || size_t(g) >= named ? -1L : long(g);
+  });
   return code;
 }
 

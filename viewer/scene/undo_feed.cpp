@@ -50,24 +50,20 @@ std::string UndoFeed::record(CommandBody& body) {
   if (open_.forward.empty()) undone_.clear();  // a new step: what was undone cannot come back
   open_.forward.push_back(std::move(forward));
   open_.backward.push_back(std::move(backward));
-  // Adding a judgment reads as "judgment", not as its restore.
-  if (std::holds_alternative<cmd::AddJudgment>(body)) open_.what = "judgment";
+  open_.added += std::holds_alternative<cmd::AddJudgment>(body);
   return "";
 }
 
 void UndoFeed::end_step() {
   if (open_.forward.empty()) return;
   const auto s = inner_.latest();
-  const std::string described = describe_step(open_.forward, s ? s->ids : std::vector<std::string>{});
-  open_.what = open_.what == "judgment" && open_.forward.size() > 1 ? std::to_string(open_.forward.size()) + " judgments"
-               : open_.what == "judgment"                            ? "judgment"
-                                                                     : described;
+  open_.what = describe_step(open_.forward, open_.added, s ? s->ids : std::vector<std::string>{});
   done_.push_back(std::move(open_));
   open_ = Step{};
   if (done_.size() > kMostSteps) done_.erase(done_.begin());
 }
 
-std::string UndoFeed::replay(const std::vector<CommandBody>& bodies, bool reversed, std::string* refused) {
+std::string UndoFeed::replay(const std::vector<CommandBody>& bodies, bool reversed) {
   replaying_ = true;
   std::string first_refusal;
   const auto one = [&](CommandBody body) {
@@ -82,7 +78,6 @@ std::string UndoFeed::replay(const std::vector<CommandBody>& bodies, bool revers
   else
     for (const CommandBody& b : bodies) one(b);
   replaying_ = false;
-  if (refused) *refused = first_refusal;
   return first_refusal;
 }
 
@@ -96,7 +91,8 @@ std::string UndoFeed::undo(std::string* refused) {
     for (CommandBody& f : step.forward)
       if (auto* pin = std::get_if<cmd::Pin>(&f); pin && pin->position.empty() && pinned_in(*s, pin->item))
         pin->position = position_of(*s, pin->item);
-  replay(step.backward, true, refused);
+  const std::string e = replay(step.backward, true);
+  if (refused) *refused = e;
   undone_.push_back(std::move(step));
   return undone_.back().what;
 }
@@ -106,12 +102,13 @@ std::string UndoFeed::redo(std::string* refused) {
   if (undone_.empty()) return "";
   Step step = std::move(undone_.back());
   undone_.pop_back();
-  replay(step.forward, false, refused);
+  const std::string e = replay(step.forward, false);
+  if (refused) *refused = e;
   done_.push_back(std::move(step));
   return done_.back().what;
 }
 
-std::string describe_step(const std::vector<CommandBody>& forward, const std::vector<std::string>& ids) {
+std::string describe_step(const std::vector<CommandBody>& forward, size_t added, const std::vector<std::string>& ids) {
   size_t pins = 0, unpins = 0, retractions = 0, restores = 0;
   int32_t last_item = -1;
   for (const CommandBody& b : forward) {
@@ -119,10 +116,12 @@ std::string describe_step(const std::vector<CommandBody>& forward, const std::ve
     else if (const auto* u = std::get_if<cmd::Unpin>(&b)) ++unpins, last_item = u->item;
     else if (const auto* r = std::get_if<cmd::RetractJudgment>(&b)) r->retracted ? ++retractions : ++restores;
   }
+  restores -= std::min(restores, added);
   const auto items = [&](const char* what, size_t n) {
     return std::string(what) + (n == 1 ? " of " + name_of(ids, last_item) : " of " + std::to_string(n) + " items");
   };
   std::vector<std::string> parts;
+  if (added) parts.push_back(added == 1 ? "judgment" : std::to_string(added) + " judgments");
   if (pins) parts.push_back(items("pin", pins));
   if (unpins) parts.push_back(items("unpin", unpins));
   if (retractions) parts.push_back(retractions == 1 ? "retraction" : std::to_string(retractions) + " retractions");

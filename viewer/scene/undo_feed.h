@@ -50,9 +50,11 @@ class UndoFeed : public MapFeed {
   struct Step {
     std::vector<CommandBody> forward;   // as applied, in order
     std::vector<CommandBody> backward;  // their inverses, in the same order (applied in reverse)
+    size_t added = 0;                   // judgments added (their forward is a restore)
     std::string what;
   };
-  std::string replay(const std::vector<CommandBody>& bodies, bool reversed, std::string* refused);
+  // Posts `bodies` (in reverse order when `reversed`) without recording them; the first refusal or "".
+  std::string replay(const std::vector<CommandBody>& bodies, bool reversed);
 
   MapFeed& inner_;
   std::vector<Step> done_, undone_;
@@ -60,7 +62,8 @@ class UndoFeed : public MapFeed {
   bool replaying_ = false;
 };
 
-// What a step does, in words: "pin of c7", "unpin of 3 items", "2 judgments", "retraction".
-std::string describe_step(const std::vector<CommandBody>& forward, const std::vector<std::string>& ids);
+// What a step does, in words: "pin of c7", "unpin of 3 items", "2 judgments", "retraction";
+// `added` of the forward restores are judgments the step added.
+std::string describe_step(const std::vector<CommandBody>& forward, size_t added, const std::vector<std::string>& ids);
 
 }  // namespace kith

@@ -82,8 +82,9 @@ void App::undo(bool redo) {
   std::string refused;
   const std::string what = redo ? undo_feed->redo(&refused) : undo_feed->undo(&refused);
   if (what.empty()) return say(redo ? "nothing to redo" : "nothing to undo");
-  if (!refused.empty()) return say(std::string(redo ? "redo" : "undo") + " of " + what + ": " + refused);
+  // The commands that were taken are recorded already; the event says why they happened.
   if (hooks.record_event) hooks.record_event(event::Undone{redo, what});
+  if (!refused.empty()) return say(std::string(redo ? "redo" : "undo") + " of " + what + ", in part: " + refused);
   say(std::string(redo ? "redid: " : "undid: ") + what);
 }
 
