@@ -402,6 +402,55 @@ double apply_group_plain(const Tree<D>& t, const Node<D>& g, const InteractionLi
 
 }  // namespace
 
+// ============================================================================ local order
+// P with rows and columns renumbered in a recent Morton order of the map (the Barnes-Hut tree's),
+// rebuilt every kLocalRefresh evaluations and whenever P changes. The attraction reads y_j for
+// every neighbour j of i; in the item order of the table those reads land anywhere in the map
+// (at 100,000 items most miss the near caches), in the map's Morton order mostly close by. Each
+// row keeps its entries in P's own order, so the attraction rows are bit-identical either way;
+// only the order in which row chunks' costs are added differs (the reported cost, not the map).
+constexpr int kLocalRefresh = 50;
+constexpr size_t kLocalAbove = 20000;  // below this the map fits in the near caches anyway
+
+struct LocalOrder {
+  bool ready = false;
+  int age = 0;                  // evaluations since the last rebuild
+  std::vector<int32_t> order;   // position -> item
+  SparseAffinities p;           // P[order, order]
+  Points y;                     // the map's rows in `order`
+
+  const Points& gather(const Points& m) {
+    y.resize(m.rows(), m.cols());
+    for (size_t s = 0; s < order.size(); ++s) y.row(Eigen::Index(s)) = m.row(order[s]);
+    return y;
+  }
+  void rebuild(const SparseAffinities& P, const std::vector<int32_t>& new_order) {
+    order = new_order;
+    std::vector<int32_t> position(order.size());
+    for (size_t s = 0; s < order.size(); ++s) position[size_t(order[s])] = int32_t(s);
+    p.n = P.n;
+    p.row_ptr.assign(P.n + 1, 0);
+    p.col.resize(P.col.size());
+    p.val.resize(P.val.size());
+    int64_t at = 0;
+    for (size_t s = 0; s < order.size(); ++s) {
+      const size_t i = size_t(order[s]);
+      for (int64_t e = P.row_ptr[i]; e < P.row_ptr[i + 1]; ++e, ++at) {
+        p.col[size_t(at)] = position[size_t(P.col[size_t(e)])];
+        p.val[size_t(at)] = P.val[size_t(e)];
+      }
+      p.row_ptr[s + 1] = at;
+    }
+    ready = true;
+    age = 0;
+  }
+  void forget() {
+    ready = false;
+    p = SparseAffinities{};
+    order.clear();
+  }
+};
+
 // ============================================================================ Impl
 struct NeighbourTerm::Impl {
   std::shared_ptr<const SparseAffinities> p;
@@ -411,10 +460,21 @@ struct NeighbourTerm::Impl {
   Points attraction, repulsion;
   Tree<2> tree2;
   Tree<3> tree3;
+  LocalOrder local;
+
+  // After an evaluation that built a tree: renumber P in the tree's order now and then.
+  void refresh_local(const Points& y) {
+    if (size_t(y.rows()) < kLocalAbove) return;
+    const bool tree = !(options.force_exact || size_t(y.rows()) < options.exact_below);
+    if (!tree) return;
+    if (local.ready && ++local.age < kLocalRefresh) return;
+    local.rebuild(*p, y.cols() == 3 ? tree3.order : tree2.order);
+  }
 
   void set_p(std::shared_ptr<const SparseAffinities> np) {
     if (!np) throw std::invalid_argument("NeighbourTerm: null affinities");
     p = std::move(np);
+    local.forget();
     double s = 0.0;
     for (double v : p->val)
       if (v > 0) s += v * pm::log(v);
@@ -422,13 +482,18 @@ struct NeighbourTerm::Impl {
   }
 
   // attraction(i) = sum_j p_ij t_ij (y_i - y_j); returns sum_ij p_ij log(1 + d_ij^2 / dof).
+  // Rows are visited in the map's Morton order (`local`, see below) so that an item's neighbours,
+  // which sit near it in the map, are near it in memory; each row's terms are summed in P's own
+  // order, so every attraction row has the same bits in either visiting order.
   double attract(const Points& y) {
     const Eigen::Index n = y.rows(), dims = y.cols();
-    attraction.setZero(n, dims);
+    attraction.resize(n, dims);
+    const bool use_local = local.ready && local.order.size() == size_t(n);
+    const SparseAffinities& P = use_local ? local.p : *p;
+    const Points& yy = use_local ? local.gather(y) : y;
     const size_t chunks = (size_t(n) + kRowChunk - 1) / kRowChunk;
     std::vector<double> partial(chunks, 0.0);
     const double inv_dof = 1.0 / options.dof;
-    const SparseAffinities& P = *p;
     const bool avx2 = have_avx2();
     parallel_for(chunks, options.threads, [&](size_t c) {
       const size_t r0 = c * kRowChunk, r1 = std::min(size_t(n), (c + 1) * kRowChunk);
@@ -436,9 +501,9 @@ struct NeighbourTerm::Impl {
       std::vector<double> us(size_t(P.row_ptr[r1] - e0));
       for (size_t i = r0; i < r1; ++i) {
         double f[3] = {0, 0, 0};
-        const double* yi = &y(Eigen::Index(i), 0);
+        const double* yi = &yy(Eigen::Index(i), 0);
         for (int64_t e = P.row_ptr[i]; e < P.row_ptr[i + 1]; ++e) {
-          const double* yj = &y(P.col[size_t(e)], 0);
+          const double* yj = &yy(P.col[size_t(e)], 0);
           double diff[3], d2 = 0.0;
           for (Eigen::Index d = 0; d < dims; ++d) {
             diff[d] = yi[d] - yj[d];
@@ -450,7 +515,8 @@ struct NeighbourTerm::Impl {
           for (Eigen::Index d = 0; d < dims; ++d) f[d] += pt * diff[d];
           us[size_t(e - e0)] = u;
         }
-        for (Eigen::Index d = 0; d < dims; ++d) attraction(Eigen::Index(i), d) = f[d];
+        const Eigen::Index item = use_local ? Eigen::Index(local.order[i]) : Eigen::Index(i);
+        for (Eigen::Index d = 0; d < dims; ++d) attraction(item, d) = f[d];
       }
       partial[c] = avx2 ? sum_p_log1p_avx2(&P.val[size_t(e0)], us.data(), us.size())
                         : sum_p_log1p_plain(&P.val[size_t(e0)], us.data(), us.size());
@@ -563,6 +629,7 @@ double NeighbourTerm::evaluate(const Points& y, Points* gradient) {
     case Kernel::kTwo: z = m.repel<Kernel::kTwo>(y); break;
     default: z = m.repel<Kernel::kGeneral>(y); break;
   }
+  m.refresh_local(y);
   // -sum p log w = (dof+1)/2 sum p log(1 + d^2/dof)
   const double cost = e * (m.p_log_p + pm::log(e)) + e * 0.5 * (dof + 1.0) * p_log_t + pm::log(z);
   if (gradient) {

@@ -3,6 +3,7 @@
 #pragma once
 #include <algorithm>
 #include <cstdlib>
+#include <random>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -28,6 +29,21 @@ inline bool seeded_scenario(uint64_t seed, const std::string& scenario, DemoTria
   *people = {};
   set_trial_seed(seed, trial, people);
   return people_scenario(scenario, people);
+}
+
+// N invented items in F dimensions: 10 Gaussian clusters (centres N(0, 16), unit spread), row i
+// in cluster i % 10, so an item's neighbours are spread over the whole index range.
+inline Points mixture(int n, int f, uint64_t seed) {
+  std::mt19937_64 rng(seed);
+  std::normal_distribution<double> g;
+  const int centres = 10;
+  Points c(centres, f);
+  for (int i = 0; i < centres; ++i)
+    for (int j = 0; j < f; ++j) c(i, j) = 4.0 * g(rng);
+  Points x(n, f);
+  for (int i = 0; i < n; ++i)
+    for (int j = 0; j < f; ++j) x(i, j) = c(i % centres, j) + g(rng);
+  return x;
 }
 
 // "25,50,100" -> {25, 50, 100}.

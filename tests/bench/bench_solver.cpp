@@ -20,6 +20,7 @@
 #include "solver/features/neighbours.h"
 #include "solver/fit/optimizer.h"
 #include "solver/fit/schedule.h"
+#include "tests/bench/bench_common.h"
 
 namespace {
 
@@ -65,18 +66,6 @@ void write_npy(const std::string& path, const kith::Points& x) {
   out.write(reinterpret_cast<const char*>(x.data()), std::streamsize(sizeof(double) * size_t(x.size())));
 }
 
-kith::Points mixture(int n, int f, uint64_t seed) {
-  std::mt19937_64 rng(seed);
-  std::normal_distribution<double> g;
-  const int centres = 10;
-  kith::Points c(centres, f);
-  for (int i = 0; i < centres; ++i)
-    for (int j = 0; j < f; ++j) c(i, j) = 4.0 * g(rng);
-  kith::Points x(n, f);
-  for (int i = 0; i < n; ++i)
-    for (int j = 0; j < f; ++j) x(i, j) = c(i % centres, j) + g(rng);
-  return x;
-}
 
 double cpu_seconds() {
   timespec ts;
@@ -128,7 +117,7 @@ int main(int argc, char** argv) {
     o.iterations = 300;
     o.dims = dims;
     o.dof = dof;
-    auto r = kith::fit_map(mixture(n, 50, 1), o);
+    auto r = kith::fit_map(kith::bench::mixture(n, 50, 1), o);
     kith::NeighbourTermOptions to;
     to.dof = dof;
     to.threads = threads;
