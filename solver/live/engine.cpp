@@ -21,7 +21,12 @@
 //   SetFeatures (heavy)             same items, new features: re-prepared, neighbours and P rebuilt on
 //                                   the helper, swapped in, then a stretch of exaggeration to regroup
 //   RemoveItems                     rows dropped from the map, P (renormalized), judgments, pins
-//   Restart                         PCA start, schedule from zero, optimizer state forgotten
+//   Restart                         the first map again (PCA start, or from multiscale_above items
+//                                   the multiscale start), optimizer state forgotten
+// The first map: the PCA start, shown while neighbours and P are built on the worker; from
+// multiscale_above items with features (no given graph or start) it is then replaced by the
+// multiscale start (solver/fit/multiscale.h), which the schedule refines from its first step
+// after early exaggeration.
 #include "solver/live/engine.h"
 
 #include <algorithm>
@@ -38,6 +43,7 @@
 #include "solver/features/affinities.h"
 #include "solver/features/feature_prep.h"
 #include "solver/features/neighbours.h"
+#include "solver/fit/multiscale.h"
 #include "solver/fit/optimizer.h"
 #include "solver/fit/schedule.h"
 #include "solver/live/live_loop.h"
@@ -166,6 +172,26 @@ class EngineModel : public LiveModel {
     neighbour_ = std::make_shared<NeighbourTerm>(p, nto);
     p_ = std::move(p);
     objective_.set_neighbour_term(neighbour_);
+    if (schedule_it_ == 0) start_multiscale();
+  }
+
+  bool multiscale() const {
+    return has_features_ && !graph_ && options_.multiscale_above > 0 && n() >= options_.multiscale_above;
+  }
+  // The multiscale start in place of the PCA start, the schedule past early exaggeration.
+  void start_multiscale() {
+    if (!multiscale() || !p_) return;
+    MultiscaleOptions mo;
+    mo.dims = options_.dims;
+    mo.dof = options_.dof;
+    mo.perplexity = perplexity_;
+    mo.theta = options_.theta;
+    mo.seed = options_.seed;
+    mo.threads = options_.threads;
+    y_ = multiscale_start(*prepared_, *p_, mo);
+    for (const auto& [i, p] : pins_) y_.row(i) = p;
+    for (const auto& [i, t] : drags_) y_.row(i) = t;
+    schedule_it_ = schedule_.exaggeration_iterations;
   }
 
   static std::shared_ptr<const SparseAffinities> build_affinities(const Points& x, double perplexity,
@@ -296,6 +322,7 @@ class EngineModel : public LiveModel {
     for (const auto& [i, t] : drags_) y_.row(i) = t;
     optimizer_.reset();
     schedule_it_ = 0;
+    start_multiscale();
     new_items_until_ = -1;
     regroup_until_ = 0;
     lr_scale_ = 1.0;

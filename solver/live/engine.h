@@ -38,6 +38,10 @@ struct EngineOptions : MapParameters {
   int settle_after = 150;          // (default: 150)
   uint64_t settle_cap = 3000;      // (default: 3000)
   double publish_interval_ms = 16.0;  // minimum time between two routine snapshots (default: 16)
+  // From this many items up, a map without a given start begins as a multiscale start
+  // (solver/fit/multiscale.h: a sample fitted, the rest placed by their neighbours) and refines
+  // from there without early exaggeration; 0 = never (default: 20000, kMultiscaleAbove).
+  size_t multiscale_above = 20000;
   // MapParameters::IsValid(error, item_count), then the worker's own settings.
   bool IsValid(std::string* error, size_t item_count = 0) const;
 };
