@@ -2,7 +2,13 @@
 // repulsion paths against the slow obvious one.
 #include <doctest/doctest.h>
 
+#include <cstdlib>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <iterator>
 #include <random>
+#include <string>
 
 #include "solver/features/affinities.h"
 #include "solver/objective/neighbour_term.h"
@@ -141,13 +147,10 @@ TEST_CASE("solver: the same map and gradient whatever the thread count") {
   CHECK((g1.array() == g2.array()).all());
 }
 
-TEST_CASE("solver: attraction in the map's own order gives the same gradient bits") {
-  // Above 20,000 items the attraction visits rows in the Barnes-Hut tree's Morton order of the
-  // previous evaluation (cache locality); each row's terms keep P's order, so the gradient must
-  // equal the first evaluation's (table order) bit for bit. Only the cost's chunk sums are added
-  // in another order: equal to 1e-12 relative.
-  constexpr double kCostRelTol = 1e-12;
-  const int n = 24000;
+namespace {
+// 24,000 items (above the local-order threshold) with random sparse P, rows of 12 .. 18 edges
+// (full lanes and a tail).
+std::shared_ptr<kith::SparseAffinities> random_sparse_p(int n) {
   std::mt19937_64 rng(5);
   std::uniform_int_distribution<int> pick(0, n - 1);
   auto p = std::make_shared<kith::SparseAffinities>();
@@ -155,7 +158,7 @@ TEST_CASE("solver: attraction in the map's own order gives the same gradient bit
   p->row_ptr.assign(size_t(n) + 1, 0);
   double total = 0.0;
   for (int i = 0; i < n; ++i) {
-    for (int e = 0; e < 12; ++e) {
+    for (int e = 0; e < 12 + i % 7; ++e) {
       int j = pick(rng);
       if (j == i) j = (j + 1) % n;
       p->col.push_back(j);
@@ -165,15 +168,66 @@ TEST_CASE("solver: attraction in the map's own order gives the same gradient bit
     p->row_ptr[size_t(i) + 1] = int64_t(p->col.size());
   }
   for (double& v : p->val) v /= total;
+  return p;
+}
+constexpr int kLocalItems = 24000;
+}  // namespace
+
+TEST_CASE("solver: float attraction gradient bytes (child process)" * doctest::skip()) {
+  const char* path = std::getenv("KITH_GRADIENT_BYTES");
+  if (!path) return;
+  kith::NeighbourTerm term(random_sparse_p(kLocalItems), {});
+  const kith::Points y = random_points(kLocalItems, 3, 11, 5.0);
+  kith::Points g;
+  term.evaluate(y, &g);
+  term.evaluate(y, &g);
+  std::ofstream(path, std::ios::binary).write(reinterpret_cast<const char*>(g.data()), std::streamsize(g.size() * 8));
+}
+
+TEST_CASE("solver: attraction in float over the map's own order matches the double sum in table order") {
+  // Above 20,000 items the attraction visits rows in the Barnes-Hut tree's Morton order of the
+  // previous evaluation (cache locality) and sums in float, 8 edges at a time. The first
+  // evaluation runs the obvious double loop in table order: the later ones must agree with it to
+  // float rounding (kRelTol, relative to the largest gradient entry; measured about 1e-7), give
+  // the same bits again and again, for 1 or 2 threads, and the same cost to float rounding.
+  constexpr double kRelTol = 1e-5, kCostRelTol = 1e-6;
+  const int n = kLocalItems;
+  const auto p = random_sparse_p(n);
   const kith::Points y = random_points(n, 3, 11, 5.0);
+  kith::Points first_local;
   for (int threads : {1, 2}) {
     kith::NeighbourTermOptions o;
     o.threads = threads;
     kith::NeighbourTerm term(p, o);
-    kith::Points g1, g2;
-    const double c1 = term.evaluate(y, &g1);  // table order; the tree's order is kept
-    const double c2 = term.evaluate(y, &g2);  // the map's order
-    CHECK(g1.cwiseEqual(g2).all());
+    kith::Points g1, g2, g3;
+    const double c1 = term.evaluate(y, &g1);  // table order, double; the tree's order is kept
+    const double c2 = term.evaluate(y, &g2);  // the map's order, float
+    term.evaluate(y, &g3);
+    const double scale = g1.cwiseAbs().maxCoeff();
+    MESSAGE("largest difference " << (g2 - g1).cwiseAbs().maxCoeff() / scale << " of the largest entry");
+    CHECK((g2 - g1).cwiseAbs().maxCoeff() <= kRelTol * scale);
+    CHECK(g2.cwiseEqual(g3).all());
     CHECK(std::abs(c1 - c2) <= kCostRelTol * std::abs(c1));
+    if (threads == 1) first_local = g2;
+    else CHECK(g2.cwiseEqual(first_local).all());
   }
+}
+
+TEST_CASE("solver: float attraction gives the same bits without AVX2") {
+  // The test binary runs itself with KITH_NO_AVX2=1 (the plain builds of the vector paths).
+  kith::NeighbourTerm term(random_sparse_p(kLocalItems), {});
+  const kith::Points y = random_points(kLocalItems, 3, 11, 5.0);
+  kith::Points g;
+  term.evaluate(y, &g);
+  term.evaluate(y, &g);
+  const std::string out = kith::test::temp_dir("gradient-bytes") + "/g.bin";
+  const std::string self = std::filesystem::read_symlink("/proc/self/exe").string();
+  const std::string command = "env KITH_GRADIENT_BYTES=" + out + " KITH_NO_AVX2=1 '" + self +
+                              "' --no-skip '-tc=solver: float attraction gradient bytes (child process)' >/dev/null 2>&1";
+  INFO(command);
+  REQUIRE(std::system(command.c_str()) == 0);
+  std::ifstream in(out, std::ios::binary);
+  std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  REQUIRE(bytes.size() == size_t(g.size()) * 8);
+  CHECK(std::memcmp(bytes.data(), g.data(), bytes.size()) == 0);
 }

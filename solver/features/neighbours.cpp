@@ -71,10 +71,10 @@ void hnsw_search(const Points& x, size_t k, const NeighbourOptions& options, Nei
   // hnswlib works in float; the found neighbours' distances are recomputed in double afterwards.
   Eigen::Matrix<float, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> xf = x.cast<float>();
   hnswlib::L2Space space(static_cast<size_t>(f));
-  auto index = std::make_unique<hnswlib::HierarchicalNSW<float>>(&space, size_t(n), 16, 200,
-                                                                  size_t(options.seed));
+  auto index = std::make_unique<hnswlib::HierarchicalNSW<float>>(&space, size_t(n), options.hnsw_links,
+                                                                  options.hnsw_build_candidates, size_t(options.seed));
   for (Eigen::Index i = 0; i < n; ++i) index->addPoint(xf.row(i).data(), hnswlib::labeltype(i));
-  index->setEf(std::max<size_t>(2 * k + 2, 100));
+  index->setEf(std::max<size_t>(2 * k + 2, options.hnsw_search_candidates));
   constexpr Eigen::Index kChunk = 512;
   const size_t chunks = size_t((n + kChunk - 1) / kChunk);
   parallel_for(chunks, options.threads, [&](size_t c) {

@@ -18,6 +18,11 @@ struct NeighbourOptions {
   uint64_t seed = 42;          // HNSW level generator seed (default: 42)
   int threads = 0;             // 0 = all hardware threads (default: 0)
   Metric metric = Metric::kEuclidean;  // see above (default: euclidean)
+  // HNSW's graph: links per item (M), candidates kept while building (ef_construction) and while
+  // searching (ef, at least 2k + 2 and at least this). See neighbours.cpp for how they were chosen.
+  size_t hnsw_links = 16;            // (default: 16)
+  size_t hnsw_build_candidates = 200;  // (default: 200)
+  size_t hnsw_search_candidates = 100;  // (default: 100)
 };
 
 // Row r divided by its length; throws std::invalid_argument naming the first row (1-based) whose

@@ -407,8 +407,9 @@ double apply_group_plain(const Tree<D>& t, const Node<D>& g, const InteractionLi
 // rebuilt every kLocalRefresh evaluations and whenever P changes. The attraction reads y_j for
 // every neighbour j of i; in the item order of the table those reads land anywhere in the map
 // (at 100,000 items most miss the near caches), in the map's Morton order mostly close by. Each
-// row keeps its entries in P's own order, so the attraction rows are bit-identical either way;
-// only the order in which row chunks' costs are added differs (the reported cost, not the map).
+// row keeps its entries in P's own order. In this order the attraction runs in float, 8 edges
+// at a time (attract_rows_*): the same bits for any thread count and with or without AVX2, within
+// about 1e-6 relative of the double sum in table order (tests/test_solver_gradients.cpp).
 constexpr int kLocalRefresh = 50;
 constexpr size_t kLocalAbove = 20000;  // below this the map fits in the near caches anyway
 
@@ -417,12 +418,14 @@ struct LocalOrder {
   int age = 0;                  // evaluations since the last rebuild
   std::vector<int32_t> order;   // position -> item
   SparseAffinities p;           // P[order, order]
-  Points y;                     // the map's rows in `order`
+  std::vector<float> pf;        // p.val in float, for the float attraction
+  std::vector<float> yf[3];     // the map's columns in `order`, float
 
-  const Points& gather(const Points& m) {
-    y.resize(m.rows(), m.cols());
-    for (size_t s = 0; s < order.size(); ++s) y.row(Eigen::Index(s)) = m.row(order[s]);
-    return y;
+  void gather(const Points& m) {
+    for (Eigen::Index d = 0; d < m.cols(); ++d) {
+      yf[d].resize(order.size());
+      for (size_t s = 0; s < order.size(); ++s) yf[d][s] = float(m(order[s], d));
+    }
   }
   void rebuild(const SparseAffinities& P, const std::vector<int32_t>& new_order) {
     order = new_order;
@@ -441,15 +444,77 @@ struct LocalOrder {
       }
       p.row_ptr[s + 1] = at;
     }
+    pf.assign(p.val.begin(), p.val.end());
     ready = true;
     age = 0;
   }
   void forget() {
     ready = false;
     p = SparseAffinities{};
+    pf.clear();
     order.clear();
   }
 };
+
+// Attraction of rows [r0, r1) in the local order, in float: each row's edges in lanes of kLanes
+// (a short row's last lanes one by one), the lanes added in double in a fixed order. Writes
+// u = d^2 / dof of every edge (from e0 on) for the cost. Compiled twice like the repulsion;
+// both builds do the same IEEE operations lane by lane.
+template <int D>
+__attribute__((always_inline)) inline void attract_rows_body(const LocalOrder& L, size_t r0, size_t r1,
+                                                             float inv_dof, int64_t e0, double* us, Points& out) {
+  const int32_t* col = L.p.col.data();
+  const float* pv = L.pf.data();
+  const float* ys[D];
+  for (int d = 0; d < D; ++d) ys[d] = L.yf[d].data();
+  for (size_t i = r0; i < r1; ++i) {
+    float yi[D];
+    for (int d = 0; d < D; ++d) yi[d] = ys[d][i];
+    float f[D][kLanes] = {};
+    const int64_t end = L.p.row_ptr[i + 1];
+    int64_t k = L.p.row_ptr[i];
+    for (; k + kLanes <= end; k += kLanes)
+      for (int l = 0; l < kLanes; ++l) {
+        const int32_t j = col[k + l];
+        float diff[D], d2 = 0.f;
+        for (int d = 0; d < D; ++d) {
+          diff[d] = yi[d] - ys[d][j];
+          d2 += diff[d] * diff[d];
+        }
+        const float u = d2 * inv_dof;
+        const float pt = pv[k + l] / (1.f + u);
+        for (int d = 0; d < D; ++d) f[d][l] += pt * diff[d];
+        us[k + l - e0] = double(u);
+      }
+    for (int l = 0; k < end; ++k, ++l) {
+      const int32_t j = col[k];
+      float diff[D], d2 = 0.f;
+      for (int d = 0; d < D; ++d) {
+        diff[d] = yi[d] - ys[d][j];
+        d2 += diff[d] * diff[d];
+      }
+      const float u = d2 * inv_dof;
+      const float pt = pv[k] / (1.f + u);
+      for (int d = 0; d < D; ++d) f[d][l] += pt * diff[d];
+      us[k - e0] = double(u);
+    }
+    for (int d = 0; d < D; ++d) {
+      double sum = 0.0;
+      for (int l = 0; l < kLanes; ++l) sum += double(f[d][l]);
+      out(L.order[i], d) = sum;
+    }
+  }
+}
+template <int D>
+__attribute__((target("avx2"))) void attract_rows_avx2(const LocalOrder& L, size_t r0, size_t r1, float inv_dof,
+                                                       int64_t e0, double* us, Points& out) {
+  attract_rows_body<D>(L, r0, r1, inv_dof, e0, us, out);
+}
+template <int D>
+void attract_rows_plain(const LocalOrder& L, size_t r0, size_t r1, float inv_dof, int64_t e0, double* us,
+                        Points& out) {
+  attract_rows_body<D>(L, r0, r1, inv_dof, e0, us, out);
+}
 
 // ============================================================================ Impl
 struct NeighbourTerm::Impl {
@@ -482,15 +547,14 @@ struct NeighbourTerm::Impl {
   }
 
   // attraction(i) = sum_j p_ij t_ij (y_i - y_j); returns sum_ij p_ij log(1 + d_ij^2 / dof).
-  // Rows are visited in the map's Morton order (`local`, see below) so that an item's neighbours,
-  // which sit near it in the map, are near it in memory; each row's terms are summed in P's own
-  // order, so every attraction row has the same bits in either visiting order.
+  // Above kLocalAbove items (once the tree gave an order) in float over the local order
+  // (attract_rows_*), else in double over P as given.
   double attract(const Points& y) {
     const Eigen::Index n = y.rows(), dims = y.cols();
     attraction.resize(n, dims);
     const bool use_local = local.ready && local.order.size() == size_t(n);
+    if (use_local) local.gather(y);
     const SparseAffinities& P = use_local ? local.p : *p;
-    const Points& yy = use_local ? local.gather(y) : y;
     const size_t chunks = (size_t(n) + kRowChunk - 1) / kRowChunk;
     std::vector<double> partial(chunks, 0.0);
     const double inv_dof = 1.0 / options.dof;
@@ -499,24 +563,33 @@ struct NeighbourTerm::Impl {
       const size_t r0 = c * kRowChunk, r1 = std::min(size_t(n), (c + 1) * kRowChunk);
       const int64_t e0 = P.row_ptr[r0];
       std::vector<double> us(size_t(P.row_ptr[r1] - e0));
-      for (size_t i = r0; i < r1; ++i) {
-        double f[3] = {0, 0, 0};
-        const double* yi = &yy(Eigen::Index(i), 0);
-        for (int64_t e = P.row_ptr[i]; e < P.row_ptr[i + 1]; ++e) {
-          const double* yj = &yy(P.col[size_t(e)], 0);
-          double diff[3], d2 = 0.0;
-          for (Eigen::Index d = 0; d < dims; ++d) {
-            diff[d] = yi[d] - yj[d];
-            d2 += diff[d] * diff[d];
+      if (use_local) {
+        const float fi = float(inv_dof);
+        if (dims == 3)
+          avx2 ? attract_rows_avx2<3>(local, r0, r1, fi, e0, us.data(), attraction)
+               : attract_rows_plain<3>(local, r0, r1, fi, e0, us.data(), attraction);
+        else
+          avx2 ? attract_rows_avx2<2>(local, r0, r1, fi, e0, us.data(), attraction)
+               : attract_rows_plain<2>(local, r0, r1, fi, e0, us.data(), attraction);
+      } else {
+        for (size_t i = r0; i < r1; ++i) {
+          double f[3] = {0, 0, 0};
+          const double* yi = &y(Eigen::Index(i), 0);
+          for (int64_t e = P.row_ptr[i]; e < P.row_ptr[i + 1]; ++e) {
+            const double* yj = &y(P.col[size_t(e)], 0);
+            double diff[3], d2 = 0.0;
+            for (Eigen::Index d = 0; d < dims; ++d) {
+              diff[d] = yi[d] - yj[d];
+              d2 += diff[d] * diff[d];
+            }
+            const double u = d2 * inv_dof;
+            const double pv = P.val[size_t(e)];
+            const double pt = pv / (1.0 + u);
+            for (Eigen::Index d = 0; d < dims; ++d) f[d] += pt * diff[d];
+            us[size_t(e - e0)] = u;
           }
-          const double u = d2 * inv_dof;
-          const double pv = P.val[size_t(e)];
-          const double pt = pv / (1.0 + u);
-          for (Eigen::Index d = 0; d < dims; ++d) f[d] += pt * diff[d];
-          us[size_t(e - e0)] = u;
+          for (Eigen::Index d = 0; d < dims; ++d) attraction(Eigen::Index(i), d) = f[d];
         }
-        const Eigen::Index item = use_local ? Eigen::Index(local.order[i]) : Eigen::Index(i);
-        for (Eigen::Index d = 0; d < dims; ++d) attraction(item, d) = f[d];
       }
       partial[c] = avx2 ? sum_p_log1p_avx2(&P.val[size_t(e0)], us.data(), us.size())
                         : sum_p_log1p_plain(&P.val[size_t(e0)], us.data(), us.size());

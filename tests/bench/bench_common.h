@@ -46,6 +46,38 @@ inline Points mixture(int n, int f, uint64_t seed) {
   return x;
 }
 
+// N invented items in 50 dimensions with structure at every scale: 10 clusters, each a curved
+// 3-dimensional sheet (latent z ~ N(0, I_3); centre + A z + 0.3 B (z*z) + 0.05 noise, A and B
+// random 50 x 3), row i in cluster i % 10. Unlike `mixture`, whose clusters are pure noise
+// inside, an item's nearest neighbours mean something here, so a map can keep them or not.
+inline Points sheets(int n, uint64_t seed) {
+  constexpr int f = 50, clusters = 10;
+  std::mt19937_64 rng(seed);
+  std::normal_distribution<double> g;
+  std::vector<Points> a(clusters, Points(f, 3)), b(clusters, Points(f, 3));
+  Points c(clusters, f);
+  for (int k = 0; k < clusters; ++k)
+    for (int j = 0; j < f; ++j) {
+      c(k, j) = 6.0 * g(rng);
+      for (int d = 0; d < 3; ++d) {
+        a[size_t(k)](j, d) = g(rng);
+        b[size_t(k)](j, d) = g(rng);
+      }
+    }
+  Points x(n, f);
+  for (int i = 0; i < n; ++i) {
+    const int k = i % clusters;
+    double z[3];
+    for (double& v : z) v = g(rng);
+    for (int j = 0; j < f; ++j) {
+      double v = c(k, j) + 0.05 * g(rng);
+      for (int d = 0; d < 3; ++d) v += a[size_t(k)](j, d) * z[d] + 0.3 * b[size_t(k)](j, d) * z[d] * z[d];
+      x(i, j) = v;
+    }
+  }
+  return x;
+}
+
 // "25,50,100" -> {25, 50, 100}.
 inline std::vector<int> int_list(const std::string& text) {
   std::vector<int> out;
