@@ -4,7 +4,7 @@
 // product, |a|^2 + |b|^2 - 2 a.b, then the k + 1 smallest (the item itself dropped). The chosen
 // neighbours' distances are recomputed as sum (a - b)^2 in double, so cancellation in the product
 // form never reaches P. Ties are broken by index, so the result is deterministic.
-// HNSW (hnswlib, M = 16, ef_construction = 200, ef = max(2k, 100)): the index is built on one
+// HNSW (hnswlib, M = 16, ef_construction = 200, ef = max(2k + 2, 100); NeighbourOptions): the index is built on one
 // thread, in row order, with a seeded level generator, so a seed gives one graph; queries run in
 // parallel (read-only). Distances are again recomputed exactly in double.
 #include "solver/features/neighbours.h"

@@ -20,11 +20,8 @@ size_t multiscale_sample_size(size_t n) {
   return std::min(n, std::clamp<size_t>(n / 10, 5000, 20000));
 }
 
-Points multiscale_start(const Points& prepared, const SparseAffinities& p, const MultiscaleOptions& o) {
+MultiscaleSample fit_multiscale_sample(const Points& prepared, const MultiscaleOptions& o) {
   const size_t n = size_t(prepared.rows());
-  if (p.n != n)
-    throw std::invalid_argument("multiscale start: P has " + std::to_string(p.n) + " items, the features " +
-                                std::to_string(n));
   const size_t m = o.sample > 0 ? std::min(o.sample, n) : multiscale_sample_size(n);
   if (!(o.perplexity < double(m)))
     throw std::invalid_argument("multiscale start: a sample of " + std::to_string(m) + " items is too small for perplexity " +
@@ -56,6 +53,17 @@ Points multiscale_start(const Points& prepared, const SparseAffinities& p, const
   loop.iterations = o.sample_iterations;
   loop.progress_every = int(std::max<int64_t>(1, o.sample_iterations));
   run_schedule(term, [&term](double e) { term.set_exaggeration(e); }, ys, loop);
+  return {std::move(sample), std::move(ys)};
+}
+
+Points place_from_sample(const MultiscaleSample& ms, const SparseAffinities& p, const MultiscaleOptions& o) {
+  const size_t n = p.n, m = ms.items.size();
+  const std::vector<int32_t>& sample = ms.items;
+  const Points& ys = ms.map;
+  if (m == 0 || size_t(ys.rows()) != m || ys.cols() != o.dims)
+    throw std::invalid_argument("multiscale start: the sample's map does not match its items");
+  // The jitter's generator: its own stream, after the sample's draws.
+  std::mt19937_64 rng(o.seed ^ 0x9e3779b97f4a7c15ULL);
 
   // 4. Everyone else from their sampled neighbours, then from placed ones.
   Points y = Points::Zero(Eigen::Index(n), o.dims);
@@ -99,6 +107,13 @@ Points multiscale_start(const Points& prepared, const SparseAffinities& p, const
     if (!in_sample[i])
       for (int d = 0; d < o.dims; ++d) y(Eigen::Index(i), d) += normal(rng, 0.0, jitter);
   return y;
+}
+
+Points multiscale_start(const Points& prepared, const SparseAffinities& p, const MultiscaleOptions& o) {
+  if (p.n != size_t(prepared.rows()))
+    throw std::invalid_argument("multiscale start: P has " + std::to_string(p.n) + " items, the features " +
+                                std::to_string(prepared.rows()));
+  return place_from_sample(fit_multiscale_sample(prepared, o), p, o);
 }
 
 }  // namespace kith

@@ -13,6 +13,7 @@
 #pragma once
 #include <cstddef>
 #include <cstdint>
+#include <vector>
 
 #include "solver/base/map_parameters.h"
 #include "solver/base/points.h"
@@ -38,8 +39,17 @@ struct MultiscaleOptions {
   int threads = 0;                  // 0 = all (default: 0)
 };
 
-// `prepared`: the prepared features (feature_prep.h) the full P was built from; `p`: that P.
-// Throws std::invalid_argument when the sample is too small for the perplexity.
+// Steps 1-3 need only the features, so a caller may run them while the full P is being built.
+struct MultiscaleSample {
+  std::vector<int32_t> items;  // the sampled items, in table order
+  Points map;                  // their map, one row each
+};
+// `prepared`: the prepared features (feature_prep.h). Throws std::invalid_argument when the sample
+// is too small for the perplexity.
+MultiscaleSample fit_multiscale_sample(const Points& prepared, const MultiscaleOptions& options);
+// Step 4 with the full joint P of all items.
+Points place_from_sample(const MultiscaleSample& sample, const SparseAffinities& p, const MultiscaleOptions& options);
+// Both in turn.
 Points multiscale_start(const Points& prepared, const SparseAffinities& p, const MultiscaleOptions& options);
 
 }  // namespace kith

@@ -31,6 +31,7 @@
 
 #include <algorithm>
 #include <chrono>
+#include <future>
 #include <cmath>
 #include <map>
 #include <random>
@@ -163,6 +164,13 @@ class EngineModel : public LiveModel {
     if (ready_) return;
     ready_ = true;
     if (!has_features_ && !graph_) return;
+    // The multiscale sample needs only the features: it is fitted on a thread of its own while
+    // this one searches the neighbours of all items (HNSW builds its graph on one thread).
+    std::future<MultiscaleSample> sample;
+    if (schedule_it_ == 0 && multiscale()) {
+      std::shared_ptr<const Points> x = prepared_;
+      sample = std::async(std::launch::async, [x, mo = multiscale_options()] { return fit_multiscale_sample(*x, mo); });
+    }
     auto p = graph_ ? std::make_shared<const SparseAffinities>(joint_affinities_from_graph(*graph_, perplexity_))
                     : build_affinities(*prepared_, perplexity_, options_);
     NeighbourTermOptions nto;
@@ -172,15 +180,13 @@ class EngineModel : public LiveModel {
     neighbour_ = std::make_shared<NeighbourTerm>(p, nto);
     p_ = std::move(p);
     objective_.set_neighbour_term(neighbour_);
-    if (schedule_it_ == 0) start_multiscale();
+    if (sample.valid()) use_multiscale(place_from_sample(sample.get(), *p_, multiscale_options()));
   }
 
   bool multiscale() const {
     return has_features_ && !graph_ && options_.multiscale_above > 0 && n() >= options_.multiscale_above;
   }
-  // The multiscale start in place of the PCA start, the schedule past early exaggeration.
-  void start_multiscale() {
-    if (!multiscale() || !p_) return;
+  MultiscaleOptions multiscale_options() const {
     MultiscaleOptions mo;
     mo.dims = options_.dims;
     mo.dof = options_.dof;
@@ -188,10 +194,17 @@ class EngineModel : public LiveModel {
     mo.theta = options_.theta;
     mo.seed = options_.seed;
     mo.threads = options_.threads;
-    y_ = multiscale_start(*prepared_, *p_, mo);
+    return mo;
+  }
+  // The multiscale start in place of the PCA start, the schedule past early exaggeration.
+  void use_multiscale(Points start) {
+    y_ = std::move(start);
     for (const auto& [i, p] : pins_) y_.row(i) = p;
     for (const auto& [i, t] : drags_) y_.row(i) = t;
     schedule_it_ = schedule_.exaggeration_iterations;
+  }
+  void start_multiscale() {
+    if (multiscale() && p_) use_multiscale(multiscale_start(*prepared_, *p_, multiscale_options()));
   }
 
   static std::shared_ptr<const SparseAffinities> build_affinities(const Points& x, double perplexity,
