@@ -2,6 +2,7 @@
 // them, and robustness against cut or damaged files.
 #include <doctest/doctest.h>
 
+#include <filesystem>
 #include <fstream>
 #include <random>
 #include <sstream>
@@ -102,4 +103,29 @@ TEST_CASE("damaged npy headers either load or throw LoadError, nothing else") {
     }
   }
   CHECK(refused > 0);
+}
+
+TEST_CASE("npy files are read from a mapping: the same values as from memory, and clear refusals") {
+  const std::string dir = kith::test::temp_dir("npy-mapped");
+  kith::Points p(4, 3);
+  for (int i = 0; i < 4; ++i)
+    for (int j = 0; j < 3; ++j) p(i, j) = 0.25 * i - j;
+  {
+    std::ofstream out(dir + "/x.npy", std::ios::binary);
+    out << kith::npy_bytes(p);
+  }
+  const kith::Collection c = kith::load_collection(dir + "/x.npy");
+  CHECK(c.features == p);
+  CHECK(c.ids.size() == 4);
+  // A folder named like an array, and an empty file, are refused with the path and what is wrong.
+  std::filesystem::create_directory(dir + "/folder.npy");
+  try {
+    kith::load_collection(dir + "/folder.npy");
+    FAIL("a folder loaded");
+  } catch (const kith::LoadError& e) {
+    CHECK(std::string(e.what()).find("folder.npy") != std::string::npos);
+    CHECK(std::string(e.what()).find("a folder") != std::string::npos);
+  }
+  { std::ofstream out(dir + "/empty.npy"); }
+  CHECK_THROWS_AS(kith::load_collection(dir + "/empty.npy"), kith::LoadError);
 }

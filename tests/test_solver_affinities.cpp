@@ -90,3 +90,37 @@ TEST_CASE("solver: joint P is symmetric, sums to 1, equals (P_cond + P_cond^T) /
   kith::test::assert_near(dense, ref, 1e-15, 1e-12, "P");
   CHECK(dense.sum() == doctest::Approx(1.0).epsilon(1e-12));
 }
+
+TEST_CASE("solver: HNSW's measured recall is the share of exact neighbours found on its sample") {
+  const kith::Points x = gaussian(3000, 20, 3);
+  const size_t k = 15;
+  kith::NeighbourOptions o;
+  o.exact_below = 0;
+  o.recall_sample = 100;
+  const auto a = kith::find_neighbours(x, k, o);
+  const auto exact = kith::find_neighbours(x, k);
+  REQUIRE(a.recall_sample == 100);
+  // The sample is the evenly spaced rows i * N / 100 (neighbours.cpp); recount on them.
+  size_t hits = 0;
+  for (size_t s = 0; s < 100; ++s) {
+    const size_t i = s * a.n / 100;
+    for (size_t c = 0; c < k; ++c)
+      for (size_t e = 0; e < k; ++e) hits += a.index[i * k + c] == exact.index[i * k + e];
+  }
+  CHECK(a.recall == doctest::Approx(double(hits) / double(100 * k)).epsilon(1e-12));
+  CHECK(exact.recall == -1.0);  // exact search: nothing to measure
+
+  // A deliberately poor graph (2 links, 4 build candidates) recalls less; the search is then run
+  // again with more candidates, and the recall kept is never lower than the first.
+  kith::NeighbourOptions poor = o;
+  poor.hnsw_links = 2;
+  poor.hnsw_build_candidates = 4;
+  poor.hnsw_retries = 0;
+  const auto once = kith::find_neighbours(x, k, poor);
+  poor.hnsw_retries = 2;
+  poor.min_recall = 1.01;  // never reached: both retries run
+  const auto retried = kith::find_neighbours(x, k, poor);
+  CHECK(once.recall < 0.98);
+  CHECK(retried.search_candidates == 4 * once.search_candidates);
+  CHECK(retried.recall > once.recall);
+}

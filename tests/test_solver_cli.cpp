@@ -72,6 +72,13 @@ TEST_CASE("solver cli: kith fit writes a CSV and a JSON layout with ids and tags
   sa << a.rdbuf();
   sb << b.rdbuf();
   CHECK(sa.str() == sb.str());
+
+  // --stages: one line for each stage of the pipeline, with its time and peak memory.
+  REQUIRE(run(items + " -o " + dir + "/staged.csv --iterations 50 --perplexity 10 --quiet --stages", &err, dir) == 0);
+  for (const char* stage : {"read items", "prepare features", "neighbours (exact)", "affinities", "start (PCA)",
+                            "optimize", "measures", "write"})
+    CHECK_MESSAGE(err.find(stage) != std::string::npos, stage, " missing from:\n", err);
+  CHECK(err.find("peak") != std::string::npos);
 }
 
 TEST_CASE("solver cli: kith fit rejects bad options with 2 and bad data with 3") {

@@ -16,6 +16,11 @@ struct NeighbourGraph {
   size_t k = 0;
   std::vector<int32_t> index;
   std::vector<double> distance2;
+  // Of an HNSW search: the share of the exact k neighbours it found, measured by brute force on a
+  // seeded sample of items (solver/features/neighbours.h); -1 when exact or given.
+  double recall = -1.0;
+  size_t recall_sample = 0;      // items that share was measured on
+  size_t search_candidates = 0;  // HNSW's ef in the search that was kept
 
   bool empty() const { return n == 0; }
 };

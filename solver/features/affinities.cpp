@@ -157,10 +157,15 @@ SparseAffinities joint_affinities_for(const Points& features, double perplexity,
   no.metric = search.metric;
   if (search.exact) no.exact_below = size_t(-1);
   const size_t k = std::max<size_t>(neighbour_count(size_t(features.rows()), perplexity), 1);
+  if (search.stages)
+    search.stages->begin(size_t(features.rows()) < no.exact_below ? "neighbours (exact)" : "neighbours (HNSW)");
   NeighbourGraph found = find_neighbours(features, k, no);
+  if (search.stages) search.stages->begin("affinities");
   AffinityOptions ao;
   ao.perplexity = perplexity;
   SparseAffinities p = joint_affinities(found, ao);
+  p.neighbour_recall = found.recall;
+  p.recall_sample = found.recall_sample;
   if (graph) *graph = std::move(found);
   return p;
 }

@@ -7,6 +7,7 @@
 #include <cstdint>
 #include <vector>
 
+#include "solver/base/stage_log.h"
 #include "solver/features/neighbours.h"
 
 namespace kith {
@@ -17,6 +18,10 @@ struct SparseAffinities {
   std::vector<int64_t> row_ptr;  // n + 1 entries
   std::vector<int32_t> col;
   std::vector<double> val;
+  // The neighbour search's measured share of exact neighbours (NeighbourGraph::recall), carried
+  // so the fit can report it; -1 when exact or given.
+  double neighbour_recall = -1.0;
+  size_t recall_sample = 0;
 };
 
 struct AffinityOptions {
@@ -39,6 +44,8 @@ struct AffinitySearch {
   // The neighbours' metric (neighbours.h). Features from prepare_features already carry the map's
   // metric in their rows (feature_prep.h), so the map's paths leave this at euclidean.
   Metric metric = Metric::kEuclidean;  // (default: euclidean)
+  // Receives a "neighbours" and an "affinities" stage when given (not owned; default: none).
+  StageLog* stages = nullptr;
 };
 
 // The one path from (prepared) features to P: the k = neighbour_count(N, perplexity) nearest

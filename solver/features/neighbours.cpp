@@ -6,7 +6,9 @@
 // form never reaches P. Ties are broken by index, so the result is deterministic.
 // HNSW (hnswlib, M = 16, ef_construction = 200, ef = max(2k + 2, 100); NeighbourOptions): the index is built on one
 // thread, in row order, with a seeded level generator, so a seed gives one graph; queries run in
-// parallel (read-only). Distances are again recomputed exactly in double.
+// parallel (read-only). Distances are again recomputed exactly in double. The share of the
+// exact neighbours found is then measured on evenly spaced sample rows by brute force, and the
+// search repeated with twice the candidates while it is below NeighbourOptions::min_recall.
 #include "solver/features/neighbours.h"
 
 #include <hnswlib/hnswlib.h>
@@ -66,21 +68,45 @@ void exact_search(const Points& x, size_t k, int threads, NeighbourGraph& g) {
   });
 }
 
-void hnsw_search(const Points& x, size_t k, const NeighbourOptions& options, NeighbourGraph& g) {
-  const Eigen::Index n = x.rows(), f = x.cols();
-  // hnswlib works in float; the found neighbours' distances are recomputed in double afterwards.
-  Eigen::Matrix<float, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> xf = x.cast<float>();
-  hnswlib::L2Space space(static_cast<size_t>(f));
-  auto index = std::make_unique<hnswlib::HierarchicalNSW<float>>(&space, size_t(n), options.hnsw_links,
-                                                                  options.hnsw_build_candidates, size_t(options.seed));
-  for (Eigen::Index i = 0; i < n; ++i) index->addPoint(xf.row(i).data(), hnswlib::labeltype(i));
-  index->setEf(std::max<size_t>(2 * k + 2, options.hnsw_search_candidates));
+// The exact k nearest of row i (ties by index), by brute force over every row.
+std::vector<int32_t> exact_row(const Points& x, Eigen::Index i, size_t k) {
+  const Eigen::Index n = x.rows();
+  std::vector<std::pair<double, int32_t>> dj;
+  dj.reserve(size_t(n));
+  for (Eigen::Index j = 0; j < n; ++j)
+    if (j != i) dj.emplace_back(exact_d2(x, i, j), int32_t(j));
+  std::nth_element(dj.begin(), dj.begin() + (k - 1), dj.end());
+  std::vector<int32_t> out;
+  for (size_t c = 0; c < k; ++c) out.push_back(dj[c].second);
+  return out;
+}
+
+// The share of the exact neighbours of `sample` rows that G holds.
+double sampled_recall(const Points& x, const NeighbourGraph& g, const std::vector<Eigen::Index>& sample,
+                      const std::vector<std::vector<int32_t>>& exact) {
+  size_t found = 0, wanted = 0;
+  for (size_t s = 0; s < sample.size(); ++s) {
+    const int32_t* row = &g.index[size_t(sample[s]) * g.k];
+    std::vector<int32_t> have(row, row + g.k);
+    std::sort(have.begin(), have.end());
+    for (int32_t j : exact[s]) found += std::binary_search(have.begin(), have.end(), j);
+    wanted += exact[s].size();
+  }
+  return wanted ? double(found) / double(wanted) : 1.0;
+}
+
+using FloatRows = Eigen::Matrix<float, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>;
+
+void hnsw_query(const Points& x, const FloatRows& xf, hnswlib::HierarchicalNSW<float>& index, size_t k, size_t ef,
+                int threads, NeighbourGraph& g) {
+  const Eigen::Index n = x.rows();
+  index.setEf(ef);
   constexpr Eigen::Index kChunk = 512;
   const size_t chunks = size_t((n + kChunk - 1) / kChunk);
-  parallel_for(chunks, options.threads, [&](size_t c) {
+  parallel_for(chunks, threads, [&](size_t c) {
     std::vector<int32_t> cand;
     for (Eigen::Index i = Eigen::Index(c) * kChunk; i < std::min(n, Eigen::Index(c + 1) * kChunk); ++i) {
-      auto found = index->searchKnn(xf.row(i).data(), k + 1);
+      auto found = index.searchKnn(xf.row(i).data(), k + 1);
       cand.clear();
       while (!found.empty()) {
         cand.push_back(int32_t(found.top().second));
@@ -94,6 +120,33 @@ void hnsw_search(const Points& x, size_t k, const NeighbourOptions& options, Nei
       finish_row(x, i, cand, k, g);
     }
   });
+  g.search_candidates = ef;
+}
+
+void hnsw_search(const Points& x, size_t k, const NeighbourOptions& options, NeighbourGraph& g) {
+  const Eigen::Index n = x.rows(), f = x.cols();
+  // hnswlib works in float; the found neighbours' distances are recomputed in double afterwards.
+  FloatRows xf = x.cast<float>();
+  hnswlib::L2Space space(static_cast<size_t>(f));
+  auto index = std::make_unique<hnswlib::HierarchicalNSW<float>>(&space, size_t(n), options.hnsw_links,
+                                                                  options.hnsw_build_candidates, size_t(options.seed));
+  for (Eigen::Index i = 0; i < n; ++i) index->addPoint(xf.row(i).data(), hnswlib::labeltype(i));
+  size_t ef = std::max<size_t>(2 * k + 2, options.hnsw_search_candidates);
+  hnsw_query(x, xf, *index, k, ef, options.threads, g);
+  if (options.recall_sample == 0) return;
+  // Evenly spaced rows: no generator, the same sample on every machine.
+  const size_t s = std::min<size_t>(options.recall_sample, size_t(n));
+  std::vector<Eigen::Index> sample(s);
+  for (size_t i = 0; i < s; ++i) sample[i] = Eigen::Index((i * size_t(n)) / s);
+  std::vector<std::vector<int32_t>> exact(s);
+  parallel_for(s, options.threads, [&](size_t i) { exact[i] = exact_row(x, sample[i], k); });
+  g.recall = sampled_recall(x, g, sample, exact);
+  g.recall_sample = s;
+  for (int retry = 0; retry < options.hnsw_retries && g.recall < options.min_recall; ++retry) {
+    ef *= 2;
+    hnsw_query(x, xf, *index, k, ef, options.threads, g);
+    g.recall = sampled_recall(x, g, sample, exact);
+  }
 }
 
 }  // namespace

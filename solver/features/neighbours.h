@@ -26,6 +26,13 @@ struct NeighbourOptions {
   size_t hnsw_links = 16;            // (default: 16)
   size_t hnsw_build_candidates = 200;  // (default: 200)
   size_t hnsw_search_candidates = 100;  // (default: 100)
+  // After an HNSW search, the exact neighbours of this many seeded items are found by brute force
+  // (sample x N distances) and compared with HNSW's; while the share found is below min_recall
+  // the search runs again with twice the search candidates (at most hnsw_retries times).
+  // NeighbourGraph::recall records the share of the search kept. 0.98 is our choice.
+  size_t recall_sample = 200;  // (default: 200)
+  double min_recall = 0.98;    // (default: 0.98)
+  int hnsw_retries = 2;        // (default: 2)
 };
 
 // Row r divided by its length; throws std::invalid_argument naming the first row (1-based) whose

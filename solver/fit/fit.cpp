@@ -140,7 +140,9 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
         throw std::invalid_argument("feature value at row " + std::to_string(i + 1) + ", column " +
                                     std::to_string(c + 1) + " is not a finite number");
   FitResult r;
+  StageLog* stages = options.stages;
   if (features.cols() > 0) {
+    if (stages) stages->begin("prepare features");
     FeaturePrepOptions prep;
     prep.standardize = options.standardize;
     prep.max_dims = options.pca_dims;
@@ -148,17 +150,30 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
     r.features = prepare_features(features, prep, &r.features_note);
   }
   if (graph) {
+    if (stages) stages->begin("affinities (given graph)");
     r.p = std::make_shared<SparseAffinities>(joint_affinities_from_graph(*graph, perplexity));
     r.features_note = (r.features_note.empty() ? "" : r.features_note + "; ") + "neighbours from the given graph (" +
                       std::to_string(graph->k) + " an item)";
   } else {
     // The graph (12 bytes per neighbour) is not kept once P exists.
-    r.p = std::make_shared<SparseAffinities>(
-        joint_affinities_for(r.features, perplexity, {options.seed, options.threads, options.exact}));
+    AffinitySearch search;
+    search.seed = options.seed;
+    search.threads = options.threads;
+    search.exact = options.exact;
+    search.stages = stages;
+    r.p = std::make_shared<SparseAffinities>(joint_affinities_for(r.features, perplexity, search));
+    if (r.p->neighbour_recall >= 0) {
+      char buf[128];
+      std::snprintf(buf, sizeof buf, "; HNSW found %.1f%% of the exact neighbours of %zu sampled items",
+                    100.0 * r.p->neighbour_recall, r.p->recall_sample);
+      r.features_note += buf;
+    }
   }
+  if (stages) stages->begin(features.cols() > 0 ? "start (PCA)" : "start (random)");
   r.map = features.cols() > 0 ? pca_start(r.features, options.dims, kStartScale, options.seed)
                               : random_start(n, options.dims, options.seed, kStartScale);
   const double setup = since(t0);
+  if (stages) stages->begin("optimize");
 
   NeighbourTermOptions topt;
   topt.dof = options.dof;
@@ -184,6 +199,7 @@ FitResult fit_map(const Points& features, const FitOptions& options, const Progr
         blended, [&term](double e) { term->set_exaggeration(e); }, r.map, loop, progress);
     r.summary.kl = blended.last_costs().neighbour;
   }
+  if (stages) stages->end();
   r.summary.setup_seconds = setup;
   r.summary.seconds = since(t0);
   return r;

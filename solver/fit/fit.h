@@ -28,6 +28,7 @@
 #include "solver/base/neighbour_graph.h"
 #include "solver/objective/objective_term.h"
 #include "solver/base/points.h"
+#include "solver/base/stage_log.h"
 #include "solver/fit/schedule.h"
 
 namespace kith {
@@ -42,6 +43,9 @@ struct FitOptions : MapParameters {
   std::vector<Judgment> judgments;  // blended in as t-STE (blended_objective.h) when given (default: none)
   // A given neighbour graph of the N items, not owned: P comes from it (default: none, searched)
   const NeighbourGraph* neighbours = nullptr;
+  // Receives one stage for each step of the pipeline (features, neighbours, affinities, start,
+  // optimization) with its time and peak memory; not owned (default: none)
+  StageLog* stages = nullptr;
   // A readable message for the first impossible value; n (if > 0) also checks perplexity < n.
   bool IsValid(std::string* error, size_t n = 0) const;
 };

@@ -20,6 +20,7 @@
 #include <unordered_set>
 
 #include "solver/io/csv_table.h"
+#include "solver/io/mapped_file.h"
 #include "solver/io/neighbour_graph_file.h"
 #include "solver/io/npy_file.h"
 #include "solver/io/text_fields.h"
@@ -498,7 +499,15 @@ Collection load_collection_from_memory(std::string data, const std::string& name
 
 Collection load_collection(const std::string& path, const LoadOptions& options) {
   check_options(options, path);
-  return load_collection_from_memory(read_file(path), path, options);
+  if (!is_npy_name(path)) return load_collection_from_memory(read_file(path), path, options);
+  // An array is parsed straight from the mapped file (solver/io/mapped_file.h), never copied whole.
+  Collection c;
+  {
+    const MappedFile mapped(path);
+    c = load_npy(mapped.bytes(), path, options);
+  }
+  if (!options.neighbours.empty()) c.neighbours = read_neighbour_graph(options.neighbours, c, &c.warnings);
+  return c;
 }
 
 int default_tag_column(const Collection& collection) {

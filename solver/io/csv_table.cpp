@@ -180,16 +180,21 @@ const char* file_kind(mode_t mode) {
 
 }  // namespace
 
-std::string read_file(const std::string& path) {
+int open_regular_file(const std::string& path, struct stat* st) {
   // O_NONBLOCK: opening a FIFO must not wait for a writer; it is refused below anyway.
   const int fd = ::open(path.c_str(), O_RDONLY | O_NONBLOCK | O_CLOEXEC);
   if (fd < 0) throw LoadError(Problem{path, 0, 0, std::string("cannot open: ") + std::strerror(errno)});
-  struct stat st {};
-  if (::fstat(fd, &st) != 0 || !S_ISREG(st.st_mode)) {
-    const std::string what = ::fstat(fd, &st) != 0 ? std::string(std::strerror(errno)) : std::string(file_kind(st.st_mode));
+  if (::fstat(fd, st) != 0 || !S_ISREG(st->st_mode)) {
+    const std::string what = ::fstat(fd, st) != 0 ? std::string(std::strerror(errno)) : std::string(file_kind(st->st_mode));
     ::close(fd);
     throw LoadError(Problem{path, 0, 0, "expected a regular file, found " + what});
   }
+  return fd;
+}
+
+std::string read_file(const std::string& path) {
+  struct stat st {};
+  const int fd = open_regular_file(path, &st);
   // Bounded: the whole file is held in memory, so it must fit with room to spare.
   if (const std::string problem = memory_problem("reading the file (" + gigabytes(double(st.st_size)) + ")",
                                                  double(st.st_size));

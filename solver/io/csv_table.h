@@ -10,6 +10,7 @@
 // 100,000 x 50 table costs one copy of the text plus 8 bytes per field.
 // Pure functions; a CsvTable is a value and may be read from many threads.
 #pragma once
+#include <sys/stat.h>
 #include <cstddef>
 #include <string>
 #include <string_view>
@@ -50,5 +51,10 @@ CsvTable parse_csv(std::string text, const std::string& source, char separator =
 
 // Reads a whole file into memory; throws LoadError when it cannot be read.
 std::string read_file(const std::string& path);
+
+// Opens PATH for reading and checks it is a regular file (not a folder, device or FIFO), filling
+// *ST; the descriptor, or throws LoadError saying what PATH is instead. read_file and MappedFile
+// (solver/io/mapped_file.h) share it.
+int open_regular_file(const std::string& path, struct stat* st);
 
 }  // namespace kith

@@ -9,6 +9,7 @@
 #include <unordered_map>
 
 #include "solver/io/csv_table.h"
+#include "solver/io/mapped_file.h"
 #include "solver/io/npy_file.h"
 
 namespace kith {
@@ -258,7 +259,8 @@ NeighbourGraph read_neighbour_graph(const std::string& path, const Collection& c
     fail(path, 0, 0,
          "expected a neighbour graph: a CSV file id,neighbour,distance (.csv), GRAPH.npz with arrays indices and "
          "distances, or NAME-indices.npy with NAME-distances.npy beside it");
-  return parse_neighbour_graph_npy(read_file(path), path, read_file(distances), distances, c, warnings);
+  const MappedFile index_file(path), distance_file(distances);
+  return parse_neighbour_graph_npy(index_file.bytes(), path, distance_file.bytes(), distances, c, warnings);
 }
 
 }  // namespace kith

@@ -51,6 +51,7 @@ const char* const kOptions =
     "  --standardize         scale every feature column to unit variance first\n"
     "  --threads N           threads, 0 = all (default: 0)\n"
     "  --quiet               no progress line\n"
+    "  --stages              print each stage's time and peak memory to stderr at the end\n"
     "  --judgments FILE      blend people's judgments in (CSV anchor,nearer,farther[,person][,time]\n"
     "                        [,kind][,weight] by id; with a SESSION, added to its own); reports how\n"
     "                        many the map agrees with\n"
@@ -108,6 +109,9 @@ int cmd_fit(const Args& args) {
   o.exact = flags.has("--exact");
   o.standardize = flags.has("--standardize");
   const bool quiet = flags.has("--quiet");
+  const bool want_stages = flags.has("--stages");
+  StageLog stages;
+  o.stages = &stages;
   const bool skip_bad_judgments = flags.has("--skip-bad-judgments");
   const bool want_suspects = flags.has("--suspects"), want_groups = flags.has("--groups");
   const std::string output = flags.text("--output"), judgments_path = flags.text("--judgments");
@@ -125,6 +129,7 @@ int cmd_fit(const Args& args) {
   for (const std::string& file : layout_files(output))
     if (const int refused = refuse_output(flags, file, rule)) return refused;
   int code = kExitOk;
+  stages.begin("read items");
   const std::optional<CollectionInput> in = read_input(flags, input, &code);
   if (!in) return code;
   const Collection& c = in->collection;
@@ -200,6 +205,7 @@ int cmd_fit(const Args& args) {
     return kExitBadInput;
   }
   if (tty && !quiet) std::fprintf(stderr, "\n");
+  stages.begin("measures");
   HealthOptions ho;
   ho.seed = o.seed;
   ho.threads = o.threads;
@@ -236,8 +242,11 @@ int cmd_fit(const Args& args) {
       findings_note += "groups: " + f.groups.summary() + "\n";
     }
   }
+  stages.begin("write");
   if (const std::string problem = write_layout(output, layout, format, rule); !problem.empty())
     return write_failed(flags, problem);
+  stages.end();
+  if (want_stages) std::fprintf(stderr, "stages (time, peak memory):\n%s", stages.Report().c_str());
   std::printf("wrote %s (%zu items)\n", output.c_str(), c.size());
   std::printf("fit: %s; %s\n", r.summary.BriefReport().c_str(), r.features_note.c_str());
   std::printf("health: %s\n", h.BriefReport().c_str());

@@ -1,0 +1,68 @@
+// StageLog (see stage_log.h).
+#include "solver/base/stage_log.h"
+
+#include <algorithm>
+#include <cstdio>
+#include <fstream>
+
+namespace kith {
+namespace {
+
+// A "Name:   1234 kB" line of /proc/self/status, in bytes; -1 if absent.
+double status_bytes(const char* key) {
+  std::ifstream in("/proc/self/status");
+  std::string line;
+  const std::string prefix = std::string(key) + ":";
+  while (std::getline(in, line))
+    if (line.compare(0, prefix.size(), prefix) == 0) return 1024.0 * std::atof(line.c_str() + prefix.size());
+  return -1.0;
+}
+
+bool reset_peak() {
+  std::FILE* f = std::fopen("/proc/self/clear_refs", "w");
+  if (!f) return false;
+  const bool ok = std::fputs("5", f) >= 0;
+  return std::fclose(f) == 0 && ok;
+}
+
+}  // namespace
+
+double peak_resident_bytes() { return status_bytes("VmHWM"); }
+double resident_bytes() { return status_bytes("VmRSS"); }
+
+void StageLog::begin(const std::string& name) {
+  end();
+  if (!reset_peak()) cumulative_ = true;
+  Stage s;
+  s.name = name;
+  stages_.push_back(s);
+  t0_ = std::chrono::steady_clock::now();
+  running_ = true;
+}
+
+void StageLog::end() {
+  if (!running_) return;
+  Stage& s = stages_.back();
+  s.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0_).count();
+  s.peak_bytes = peak_resident_bytes();
+  running_ = false;
+}
+
+std::string StageLog::Report() const {
+  size_t width = 0;
+  for (const Stage& s : stages_) width = std::max(width, s.name.size());
+  std::string out;
+  for (const Stage& s : stages_) {
+    char buf[160];
+    if (s.peak_bytes >= 0)
+      std::snprintf(buf, sizeof buf, "  %-*s %9.1f s   peak %.2f GB\n", int(width), s.name.c_str(), s.seconds,
+                    s.peak_bytes / 1e9);
+    else
+      std::snprintf(buf, sizeof buf, "  %-*s %9.1f s\n", int(width), s.name.c_str(), s.seconds);
+    out += buf;
+  }
+  if (cumulative_ && !stages_.empty()) out += "  (peaks are the process's peak so far: this system would not reset it)\n";
+  return out;
+}
+
+}  // namespace kith
