@@ -1,6 +1,8 @@
 // StageLog (see stage_log.h).
 #include "solver/base/stage_log.h"
 
+#include <sys/resource.h>
+
 #include <algorithm>
 #include <cstdio>
 #include <fstream>
@@ -30,6 +32,13 @@ bool reset_peak() {
 double peak_resident_bytes() { return status_bytes("VmHWM"); }
 double resident_bytes() { return status_bytes("VmRSS"); }
 
+double process_cpu_seconds() {
+  rusage u {};
+  if (::getrusage(RUSAGE_SELF, &u) != 0) return 0.0;
+  auto secs = [](const timeval& t) { return double(t.tv_sec) + 1e-6 * double(t.tv_usec); };
+  return secs(u.ru_utime) + secs(u.ru_stime);
+}
+
 void StageLog::begin(const std::string& name) {
   end();
   if (!reset_peak()) cumulative_ = true;
@@ -37,6 +46,7 @@ void StageLog::begin(const std::string& name) {
   s.name = name;
   stages_.push_back(s);
   t0_ = std::chrono::steady_clock::now();
+  cpu0_ = process_cpu_seconds();
   running_ = true;
 }
 
@@ -44,6 +54,7 @@ void StageLog::end() {
   if (!running_) return;
   Stage& s = stages_.back();
   s.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0_).count();
+  s.cpu_seconds = process_cpu_seconds() - cpu0_;
   s.peak_bytes = peak_resident_bytes();
   running_ = false;
 }
@@ -55,10 +66,11 @@ std::string StageLog::Report() const {
   for (const Stage& s : stages_) {
     char buf[160];
     if (s.peak_bytes >= 0)
-      std::snprintf(buf, sizeof buf, "  %-*s %9.1f s   peak %.2f GB\n", int(width), s.name.c_str(), s.seconds,
-                    s.peak_bytes / 1e9);
+      std::snprintf(buf, sizeof buf, "  %-*s %9.1f s   cpu %9.1f s   peak %.2f GB\n", int(width), s.name.c_str(),
+                    s.seconds, s.cpu_seconds, s.peak_bytes / 1e9);
     else
-      std::snprintf(buf, sizeof buf, "  %-*s %9.1f s\n", int(width), s.name.c_str(), s.seconds);
+      std::snprintf(buf, sizeof buf, "  %-*s %9.1f s   cpu %9.1f s\n", int(width), s.name.c_str(), s.seconds,
+                    s.cpu_seconds);
     out += buf;
   }
   if (cumulative_ && !stages_.empty()) out += "  (peaks are the process's peak so far: this system would not reset it)\n";

@@ -16,7 +16,8 @@ namespace kith {
 
 struct Stage {
   std::string name;
-  double seconds = 0.0;
+  double seconds = 0.0;      // wall clock
+  double cpu_seconds = 0.0;  // user + system time of the whole process (every thread) during the stage
   double peak_bytes = -1.0;  // resident high-water mark during the stage; -1 if unknown
 };
 
@@ -28,12 +29,13 @@ class StageLog {
   void end();
   const std::vector<Stage>& stages() const { return stages_; }
   bool peaks_are_cumulative() const { return cumulative_; }
-  // One line a stage: "  neighbours (HNSW)   412.3 s   peak 1.9 GB".
+  // One line a stage: "  neighbours (HNSW)   412.3 s   cpu 410.1 s   peak 1.90 GB".
   std::string Report() const;
 
  private:
   std::vector<Stage> stages_;
   std::chrono::steady_clock::time_point t0_;
+  double cpu0_ = 0.0;
   bool running_ = false;
   bool cumulative_ = false;
 };
@@ -42,5 +44,7 @@ class StageLog {
 // resident size.
 double peak_resident_bytes();
 double resident_bytes();
+// User + system processor seconds of this process so far, every thread.
+double process_cpu_seconds();
 
 }  // namespace kith
