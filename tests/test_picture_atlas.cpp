@@ -152,8 +152,16 @@ TEST_CASE("picture atlas: the map view gives each item with a picture its slot a
   CHECK(r.last_frame.pictures);
   CHECK(r.last_frame.picture_size == view.picture_size());
   CHECK(r.last_frame.picture_min_pixels == DetailThreshold::kMinPixels);
-  // Picking reaches the picture's half side.
-  CHECK(view.pick_radius() >= view.picture_size() * 0.5f);
+  // Pointing at a picture's corner finds it; where two overlap, the one nearer the eye.
+  const auto& cam = view.camera();
+  for (int item : {0, 12, 29}) {
+    const Projected p = cam.project(view.positions()[size_t(item)]);
+    const float side = view.picture_size() * std::clamp(cam.pose().distance / p.depth, 0.35f, 3.f);
+    const int got = view.item_at(p.screen + glm::vec2(0.45f * side * picture_extent_x(view.atlas()->aspect(item)), 0.f));
+    REQUIRE(got >= 0);
+    CHECK(cam.project(view.positions()[size_t(got)]).depth <= p.depth + 1e-4f);
+    if (got != item) MESSAGE("item " << item << ": a nearer picture covers that point");
+  }
   // Off (I, --no-pictures): discs; the slots stay loaded for when they come back.
   ViewOptions o = view.options();
   o.pictures = false;

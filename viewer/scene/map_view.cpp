@@ -177,11 +177,21 @@ void MapView::focus_selection() {
 // ============================================================================ [pointing]
 
 float MapView::pick_radius() const {
-  const float disc = std::max(6.f, (options_.point_size > 0 ? options_.point_size : auto_point_size()) * 0.75f);
-  return atlas() && atlas()->ready_count() > 0 ? std::max(disc, picture_size() * 0.5f) : disc;
+  return std::max(6.f, (options_.point_size > 0 ? options_.point_size : auto_point_size()) * 0.75f);
 }
 
-int MapView::item_at(const glm::vec2& pixel) const { return pick_item(camera_, positions_, pixel, pick_radius()); }
+int MapView::item_at(const glm::vec2& pixel) const {
+  // The front picture under the pointer, as drawn; else the nearest disc.
+  if (const PictureAtlas* a = atlas(); a && a->ready_count() > 0) {
+    std::vector<glm::vec2> extent(positions_.size(), glm::vec2(0.f));
+    for (size_t i = 0; i < positions_.size(); ++i)
+      if (a->ready(int(i))) extent[i] = {picture_extent_x(a->aspect(int(i))), picture_extent_y(a->aspect(int(i)))};
+    const int front = pick_picture(camera_, positions_, pixel, extent, picture_size(), camera_.pose().distance,
+                                   detail_.pixels());
+    if (front >= 0) return front;
+  }
+  return pick_item(camera_, positions_, pixel, pick_radius());
+}
 
 void MapView::hover_at(const glm::vec2& pixel) {
   const int h = item_at(pixel);
