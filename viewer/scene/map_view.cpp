@@ -145,7 +145,10 @@ void MapView::fit_all(bool smooth, bool by_person) {
   fitted_lo_ = lo_;
   fitted_hi_ = hi_;
   if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
-  camera_.fit_points(positions_, smooth);
+  // Pictures reach half their side beyond their item: that much more margin, so none is cut.
+  const bool pictures = options_.pictures && !collection_.pictures.empty();
+  const float extra = pictures ? picture_size() / float(std::max(camera_.height(), 1)) : 0.f;
+  camera_.fit_points(positions_, smooth, 0.06f + std::min(extra, 0.2f));
 }
 
 void MapView::set_centre_offset(float ndc_x) {
