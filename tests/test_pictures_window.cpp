@@ -53,6 +53,25 @@ TEST_CASE("pictures: kith render draws nearly every one of 300 pictures, none wi
   r = run_kith("render " + chips.session + " -o " + chips.dir + "/discs.png --no-legend --no-pictures --camera " + kCamera);
   REQUIRE(r.code == 0);
   CHECK(visible_chips_in_png(chips.dir + "/discs.png", chips.colours) <= kMostByChance);
+  // Selected pictures are framed in ink: two selected add at least two frames' worth of ink pixels
+  // (a frame is 3 px wide around a picture of at least 10 px).
+  r = run_kith("render " + chips.session + " -o " + chips.dir + "/selected.png --no-legend --select chip-3,chip-40 --camera " +
+               kCamera);
+  REQUIRE(r.code == 0);
+  const Colour ink = kith::test::chip_from_rgb(kith::Palette::paper().ink);
+  auto ink_pixels = [&](const std::string& png) {
+    const kith::test::Image im = kith::test::load_png(png);
+    size_t n = 0;
+    for (int y = 0; y < im.h; ++y)
+      for (int x = 0; x < im.w; ++x) {
+        const unsigned char* p = im.at(x, y);
+        n += kith::test::chip_distance({p[0], p[1], p[2]}, ink) <= kith::test::kChipTolerance;
+      }
+    return n;
+  };
+  const size_t plain_ink = ink_pixels(chips.dir + "/map.png"), framed_ink = ink_pixels(chips.dir + "/selected.png");
+  MESSAGE("ink pixels: " << plain_ink << " without a selection, " << framed_ink << " with two selected");
+  CHECK(framed_ink >= plain_ink + 2 * 4 * 3 * 10);
   // The old flag is gone, with a clear refusal.
   r = run_kith("render " + chips.session + " -o " + chips.dir + "/old.png --no-cards");
   CHECK(r.code != 0);
