@@ -42,7 +42,7 @@ TEST_CASE("picture atlas: a slot holds the picture fitted inside its guard, the 
   CHECK(texel(s, 0, 10, 32)[0] == 250);
   CHECK(texel(s, 0, 40, 32)[0] == 250);
   CHECK(texel(s, 0, 41, 32)[2] == 240);
-  CHECK(texel(s, 0, 0, 0)[0] == 250);    // the guard and margins repeat the nearest edge
+  CHECK(texel(s, 0, 0, 0)[0] == 250);  // the guard and margins repeat the nearest edge
   CHECK(texel(s, 0, 63, 63)[2] == 240);
   for (int level = 0; level < kSlotLevels; ++level) {
     const int side = kSlotTexels >> level;
@@ -84,7 +84,8 @@ TEST_CASE("picture atlas: the loader decodes off the render thread, a budget of 
   const std::string dir = test::temp_dir("atlas-loader");
   const auto colours = test::make_colour_chips(dir, 40);
   std::vector<std::string> paths;
-  for (size_t i = 0; i < colours.size(); ++i) paths.push_back(i % 10 == 3 ? "" : dir + "/chip-" + std::to_string(i) + ".png");
+  for (size_t i = 0; i < colours.size(); ++i)
+    paths.push_back(i % 10 == 3 ? "" : dir + "/chip-" + std::to_string(i) + ".png");
   paths[5] = dir + "/not-there.png";  // unreadable: stays a disc
   PictureAtlas atlas(paths);
   REQUIRE(atlas.slots() == 36);
@@ -111,7 +112,10 @@ TEST_CASE("picture atlas: the loader decodes off the render thread, a budget of 
   CHECK(r.slots_set.size() == 35);
   CHECK(pumps >= 9);
   // Destroyed mid-load: the loader stops and joins.
-  { PictureAtlas again(paths); again.pump(r, 1); }
+  {
+    PictureAtlas again(paths);
+    again.pump(r, 1);
+  }
 }
 
 TEST_CASE("picture atlas: level of detail is a disc below 8 px, rising toward 64 px while moving and slow") {
@@ -157,7 +161,8 @@ TEST_CASE("picture atlas: the map view gives each item with a picture its slot a
   for (int item : {0, 12, 29}) {
     const Projected p = cam.project(view.positions()[size_t(item)]);
     const float side = view.picture_size() * std::clamp(cam.pose().distance / p.depth, 0.35f, 3.f);
-    const int got = view.item_at(p.screen + glm::vec2(0.45f * side * picture_extent_x(view.atlas()->aspect(item)), 0.f));
+    const int got =
+        view.item_at(p.screen + glm::vec2(0.45f * side * picture_extent_x(view.atlas()->aspect(item)), 0.f));
     REQUIRE(got >= 0);
     CHECK(cam.project(view.positions()[size_t(got)]).depth <= p.depth + 1e-4f);
     if (got != item) MESSAGE("item " << item << ": a nearer picture covers that point");

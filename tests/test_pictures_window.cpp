@@ -50,13 +50,14 @@ TEST_CASE("pictures: kith render draws nearly every one of 300 pictures, none wi
   const size_t seen = visible_chips_in_png(chips.dir + "/map.png", chips.colours);
   MESSAGE("kith render: " << seen << " of 300 pictures visible");
   CHECK(seen >= kMinVisible);
-  r = run_kith("render " + chips.session + " -o " + chips.dir + "/discs.png --no-legend --no-pictures --camera " + kCamera);
+  r = run_kith("render " + chips.session + " -o " + chips.dir + "/discs.png --no-legend --no-pictures --camera " +
+               kCamera);
   REQUIRE(r.code == 0);
   CHECK(visible_chips_in_png(chips.dir + "/discs.png", chips.colours) <= kMostByChance);
   // Selected pictures are framed in ink: two selected add at least two frames' worth of ink pixels
   // (a frame is 3 px wide around a picture of at least 10 px).
-  r = run_kith("render " + chips.session + " -o " + chips.dir + "/selected.png --no-legend --select chip-3,chip-40 --camera " +
-               kCamera);
+  r = run_kith("render " + chips.session + " -o " + chips.dir +
+               "/selected.png --no-legend --select chip-3,chip-40 --camera " + kCamera);
   REQUIRE(r.code == 0);
   const Colour ink = kith::test::chip_from_rgb(kith::Palette::paper().ink);
   auto ink_pixels = [&](const std::string& png) {
@@ -95,8 +96,8 @@ TEST_CASE("pictures: the window under Xvfb draws nearly every one of 300 picture
   const std::string& d = chips.dir;
   const std::string script = "30 dump " + d + "/state.json\n30 shot " + d + "/window.png\n31 key I\n34 shot " + d +
                              "/discs.png\n34 dump " + d + "/discs.json\n36 quit\n";
-  REQUIRE_MESSAGE(kith::test::open_with_script(chips.session + " --read-only --paused --no-panels --frames 40", d, "run",
-                                               script) == 0,
+  REQUIRE_MESSAGE(kith::test::open_with_script(chips.session + " --read-only --paused --no-panels --frames 40", d,
+                                               "run", script) == 0,
                   "kith open failed: see " << d << "/run.log");
   std::ifstream in(d + "/state.json");
   const auto state = nlohmann::json::parse(in);

@@ -46,8 +46,8 @@ int main(int argc, char** argv) {
       return 1;
     }
     char line[160];
-    std::snprintf(line, sizeof line, "p%d,k%d,%.4f,%.4f,%.4f,%s\n", i, k, k * 3.0 + g(rng), std::fmod(k * 5.0, 7.0) + g(rng),
-                  g(rng), name.c_str());
+    std::snprintf(line, sizeof line, "p%d,k%d,%.4f,%.4f,%.4f,%s\n", i, k, k * 3.0 + g(rng),
+                  std::fmod(k * 5.0, 7.0) + g(rng), g(rng), name.c_str());
     csv += line;
   }
   if (const std::string e = kith::write_file_safely(dir + "/items.csv", csv, file); !e.empty()) {

@@ -60,8 +60,10 @@ void DetailThreshold::note(float frame_seconds, bool moving, float target_second
   }
   // Fewer pictures (more discs, which cost fewer fragments) while frames are slow; more again
   // once they are comfortably fast.
-  if (smoothed_ > target_seconds) pixels_ = std::min(kMovingPixels, pixels_ * 1.25f);
-  else if (smoothed_ < 0.7f * target_seconds) pixels_ = std::max(kMinPixels, pixels_ / 1.25f);
+  if (smoothed_ > target_seconds)
+    pixels_ = std::min(kMovingPixels, pixels_ * 1.25f);
+  else if (smoothed_ < 0.7f * target_seconds)
+    pixels_ = std::max(kMinPixels, pixels_ / 1.25f);
 }
 
 // ============================================================================ [atlas]

@@ -73,11 +73,11 @@ class PictureAtlas {
 
  private:
   enum State : uint8_t { kWaiting, kReady, kFailed };
-  std::vector<PictureJob> jobs_;    // until the loader starts
-  std::vector<int> slot_;           // per item, -1 = none
-  std::vector<int> slot_item_;      // per slot
-  std::vector<State> state_;        // per slot
-  std::vector<float> aspect_;       // per slot
+  std::vector<PictureJob> jobs_;  // until the loader starts
+  std::vector<int> slot_;         // per item, -1 = none
+  std::vector<int> slot_item_;    // per slot
+  std::vector<State> state_;      // per slot
+  std::vector<float> aspect_;     // per slot
   int ready_ = 0, failed_ = 0;
   std::unique_ptr<PictureLoader> loader_;
 };

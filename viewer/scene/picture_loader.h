@@ -33,8 +33,8 @@ struct PictureJob {
 struct LoadedPicture {
   int item = -1;
   int slot = -1;
-  bool ok = false;       // false: unreadable (the item stays a disc)
-  float aspect = 1.f;    // width / height of the picture as decoded
+  bool ok = false;     // false: unreadable (the item stays a disc)
+  float aspect = 1.f;  // width / height of the picture as decoded
   SlotPixels pixels;
 };
 
