@@ -88,6 +88,8 @@ TEST_CASE("pictures: kith export --picture draws nearly every one of 300 picture
   const size_t seen = visible_chips_in_png(chips.dir + "/export.png", chips.colours);
   MESSAGE("kith export --picture: " << seen << " of 300 pictures visible");
   CHECK(seen >= kMinVisibleFramed);
+  REQUIRE(run_kith("export " + chips.session + " --picture " + chips.dir + "/discs.png --no-pictures").code == 0);
+  CHECK(visible_chips_in_png(chips.dir + "/discs.png", chips.colours) <= kMostByChance);
 }
 
 TEST_CASE("pictures: the window under Xvfb draws nearly every one of 300 pictures, and discs after I") {
