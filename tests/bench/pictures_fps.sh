@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # Frames per second of the map window drawing every item as its picture, under Xvfb (Mesa
 # llvmpipe, no GPU) at 1280x800, for 2,000 and 10,000 invented pictures (bench_picture_collection),
-# side by side with the same map as discs only (--no-pictures). The map is still (--paused) and
+# side by side with the same map without level of detail (--full-detail: every item, every
+# picture at least 8 px, in every frame) and as discs only (--no-pictures). The map is still (--paused) and
 # the camera turns the whole time (--turn), so every frame is really drawn and the level of detail
 # works as it does while someone turns the map; vsync off. "with pictures" counts only the frames
 # after the last picture reached the atlas.
@@ -17,8 +18,9 @@ printf -- '--------|-----------|------------|-----------------|-----------|-----
 for n in 2000 10000; do
   mkdir -p "$out/$n"
   "$build/tests/bench_picture_collection" "$out/$n" "$n" >/dev/null
-  for mode in pictures discs; do
+  for mode in pictures full discs; do
     flag=""
+    [ "$mode" = full ] && flag="--full-detail"
     [ "$mode" = discs ] && flag="--no-pictures"
     xvfb-run -a -s '-screen 0 1280x800x24' "$kith" open "$out/$n/items.csv" --fresh --paused --no-panels \
       --frames "$frames" --no-vsync --turn $flag --fps-report "$out/$n-$mode.json" >"$out/$n-$mode.log" 2>&1 ||

@@ -43,7 +43,7 @@ const char* const kOptions =
     "  --fresh               with ITEMS: do not continue the session made from it before\n";
 const char* const kHidden =
     // Test hooks, not in the help.
-    "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync, --print-saved";
+    "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync, --full-detail, --print-saved";
 
 }  // namespace
 
@@ -120,6 +120,7 @@ int cmd_open(const Args& args) {
   wo.screenshot = flags.text("--screenshot");
   wo.fps_report = flags.text("--fps-report");
   if (flags.has("--no-vsync")) wo.vsync = false;
+  if (flags.has("--full-detail")) wo.view.moving_budget = 0;  // benchmarks: no level of detail
   wo.print_saved = flags.has("--print-saved");
   eo.start_paused = flags.has("--paused");
   const bool read_only = flags.has("--read-only");
