@@ -398,10 +398,13 @@ TEST_CASE("viewer scene: legend counts tags, measures ramp, cards respect the li
   r.view.selection_changed();
   r.view.frame(0.f, 1000, 700);
   CHECK(r.renderer.lines.size() == 8);
-  // No pictures in this collection: no cards, whatever the selection.
-  CHECK(r.renderer.cards.empty());
+  // No pictures in this collection: no atlas, every item a disc, whatever the selection.
+  CHECK(r.view.atlas() == nullptr);
+  CHECK(r.renderer.picture_slots == 0);
+  for (const PointVertex& v : r.renderer.points) CHECK(v.slot == -1);
+  CHECK_FALSE(r.renderer.last_frame.pictures);
   CHECK(o.IsValid().empty());
-  o.card_limit = 1000;
+  o.picture_size = 1000;
   CHECK_FALSE(o.IsValid().empty());
 }
 

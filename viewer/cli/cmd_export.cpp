@@ -44,7 +44,9 @@ const char* const kOptions =
     "                        neighbours share its tag, 1: none do). CSV, JSON (.json) or .npy\n"
     "                        positions with STEM.ids.csv beside them\n"
     "  --judgments FILE      every judgment as CSV: anchor,nearer,farther,person,time,kind,weight by id\n"
-    "  --picture FILE        a PNG of the map from the last checkpoint, pins marked\n"
+    "  --picture FILE        a PNG of the map from the last checkpoint, every item with a picture\n"
+    "                        drawn as it, pins marked\n"
+    "  --no-pictures         on --picture: every item as a disc\n"
     "  --poster FILE         a poster of the flat layout (.png, .pdf or .svg): every item's picture\n"
     "                        at its place, moved apart just enough that none overlap, the groups\n"
     "                        outlined and named; items without a picture are plain cards with their\n"
@@ -156,6 +158,7 @@ int cmd_export(const Args& args) {
 
     if (flags.has("--picture")) {
       if (!choose_colour("export", c, flags.text("--colour"), &picture.view)) return kExitUsage;
+      picture.view.pictures = !flags.has("--no-pictures");
       for (const Judgment& j : store->judgments())
         if (!j.retracted) picture.judgments.push_back(j);  // for colour by judgments per item
       picture.pinned = pinned_items(*store, c.size());

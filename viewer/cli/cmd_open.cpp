@@ -36,13 +36,14 @@ const char* const kOptions =
     "  --dark                the night ground instead of paper\n"
     "  --turn                start with the slow turn on (for a shared screen)\n"
     "  --no-panels           start with the panels hidden (Tab shows them)\n"
+    "  --no-pictures         start with every item as a disc, also those with a picture (I toggles)\n"
     "  --people A,B,C        list these people for asking, in turn order (A in the window asks;\n"
     "                        default for a session: the people who answered in it before)\n"
     "  --read-only           with a session: look without writing (e.g. while another kith has it open)\n"
     "  --fresh               with ITEMS: do not continue the session made from it before\n";
 const char* const kHidden =
     // Test hooks, not in the help.
-    "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync, --print-saved";
+    "--generate N, --frames N, --script FILE, --screenshot FILE, --fps-report FILE, --no-vsync, --full-detail, --print-saved";
 
 }  // namespace
 
@@ -114,10 +115,12 @@ int cmd_open(const Args& args) {
   wo.view.dark = flags.has("--dark");
   wo.auto_rotate = flags.has("--turn");
   wo.panels = !flags.has("--no-panels");
+  wo.view.pictures = !flags.has("--no-pictures");
   wo.script = flags.text("--script");
   wo.screenshot = flags.text("--screenshot");
   wo.fps_report = flags.text("--fps-report");
   if (flags.has("--no-vsync")) wo.vsync = false;
+  if (flags.has("--full-detail")) wo.view.moving_budget = 0;  // benchmarks: no level of detail
   wo.print_saved = flags.has("--print-saved");
   eo.start_paused = flags.has("--paused");
   const bool read_only = flags.has("--read-only");

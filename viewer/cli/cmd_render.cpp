@@ -31,11 +31,11 @@ const char* const kOptions =
     "                        (default: the whole map from a three-quarter view; without X,Y,Z\n"
     "                        the camera looks at the map's centre)\n"
     "  --iterations N        optimization steps before drawing, 0 = the start (default: 1000)\n"
-    "  --select ID,ID,...    draw these items selected, with their picture cards\n"
+    "  --select ID,ID,...    draw these items selected (framed)\n"
     "  --dark                the night ground instead of paper\n"
     "  --no-grid             no floor grid\n"
     "  --no-legend           no title and colour legend\n"
-    "  --no-cards            no picture cards for the selected items\n";
+    "  --no-pictures         every item as a disc, also those with a picture\n";
 }  // namespace
 
 int cmd_render(const Args& args) {
@@ -66,7 +66,7 @@ int cmd_render(const Args& args) {
   ro.view.dark = flags.has("--dark");
   ro.view.grid = !flags.has("--no-grid");
   ro.legend = !flags.has("--no-legend");
-  ro.view.cards = !flags.has("--no-cards");
+  ro.view.pictures = !flags.has("--no-pictures");
   const std::vector<std::string>& positional = flags.positional();
   if (output.empty()) return flags.usage_error("where to? give -o map.png");
   if (positional.size() > 1)

@@ -85,31 +85,35 @@ struct Buffer {
 }  // namespace
 
 struct GlRenderer::Impl {
-  GLuint points_program = 0, lines_program = 0, cards_program = 0;
-  Buffer points, highlights, lines, grid, cards;
-  GLuint atlas = 0;
+  GLuint points_program = 0, lines_program = 0;
+  Buffer points, highlights, lines, grid;
+  GLuint pictures = 0;  // GL_TEXTURE_2D_ARRAY, kSlotsPerLayer slots a layer
+  int picture_layers = 0;
 };
 
 GlRenderer::GlRenderer() : impl_(std::make_unique<Impl>()) {
   Impl& m = *impl_;
   m.points_program = program("points");
   m.lines_program = program("lines");
-  m.cards_program = program("cards");
-  for (Buffer* b : {&m.points, &m.highlights, &m.lines, &m.grid, &m.cards}) {
+  for (Buffer* b : {&m.points, &m.highlights, &m.lines, &m.grid}) {
     glGenVertexArrays(1, &b->vao);
     glGenBuffers(1, &b->vbo);
   }
   for (Buffer* b : {&m.points, &m.highlights}) {
-  glBindVertexArray(b->vao);
-  glBindBuffer(GL_ARRAY_BUFFER, b->vbo);
-  glEnableVertexAttribArray(0);
-  glVertexAttribPointer(0, 3, GL_FLOAT, GL_FALSE, sizeof(PointVertex), (void*)offsetof(PointVertex, position));
-  glEnableVertexAttribArray(1);
-  glVertexAttribPointer(1, 4, GL_UNSIGNED_BYTE, GL_TRUE, sizeof(PointVertex), (void*)offsetof(PointVertex, rgba));
-  glEnableVertexAttribArray(2);
-  glVertexAttribPointer(2, 1, GL_FLOAT, GL_FALSE, sizeof(PointVertex), (void*)offsetof(PointVertex, size));
-  glEnableVertexAttribArray(3);
-  glVertexAttribIPointer(3, 1, GL_UNSIGNED_INT, sizeof(PointVertex), (void*)offsetof(PointVertex, flags));
+    glBindVertexArray(b->vao);
+    glBindBuffer(GL_ARRAY_BUFFER, b->vbo);
+    glEnableVertexAttribArray(0);
+    glVertexAttribPointer(0, 3, GL_FLOAT, GL_FALSE, sizeof(PointVertex), (void*)offsetof(PointVertex, position));
+    glEnableVertexAttribArray(1);
+    glVertexAttribPointer(1, 4, GL_UNSIGNED_BYTE, GL_TRUE, sizeof(PointVertex), (void*)offsetof(PointVertex, rgba));
+    glEnableVertexAttribArray(2);
+    glVertexAttribPointer(2, 1, GL_FLOAT, GL_FALSE, sizeof(PointVertex), (void*)offsetof(PointVertex, size));
+    glEnableVertexAttribArray(3);
+    glVertexAttribIPointer(3, 1, GL_UNSIGNED_INT, sizeof(PointVertex), (void*)offsetof(PointVertex, flags));
+    glEnableVertexAttribArray(4);
+    glVertexAttribIPointer(4, 1, GL_INT, sizeof(PointVertex), (void*)offsetof(PointVertex, slot));
+    glEnableVertexAttribArray(5);
+    glVertexAttribPointer(5, 1, GL_FLOAT, GL_FALSE, sizeof(PointVertex), (void*)offsetof(PointVertex, aspect));
   }
   for (Buffer* b : {&m.lines, &m.grid}) {
     glBindVertexArray(b->vao);
@@ -119,44 +123,19 @@ GlRenderer::GlRenderer() : impl_(std::make_unique<Impl>()) {
     glEnableVertexAttribArray(1);
     glVertexAttribPointer(1, 4, GL_UNSIGNED_BYTE, GL_TRUE, sizeof(LineVertex), (void*)offsetof(LineVertex, rgba));
   }
-  struct CardVertex {
-    glm::vec3 position;
-    float size, slot;
-    uint32_t frame;
-  };
-  glBindVertexArray(m.cards.vao);
-  glBindBuffer(GL_ARRAY_BUFFER, m.cards.vbo);
-  glEnableVertexAttribArray(0);
-  glVertexAttribPointer(0, 3, GL_FLOAT, GL_FALSE, sizeof(CardVertex), (void*)offsetof(CardVertex, position));
-  glEnableVertexAttribArray(1);
-  glVertexAttribPointer(1, 1, GL_FLOAT, GL_FALSE, sizeof(CardVertex), (void*)offsetof(CardVertex, size));
-  glEnableVertexAttribArray(2);
-  glVertexAttribPointer(2, 1, GL_FLOAT, GL_FALSE, sizeof(CardVertex), (void*)offsetof(CardVertex, slot));
-  glEnableVertexAttribArray(3);
-  glVertexAttribPointer(3, 4, GL_UNSIGNED_BYTE, GL_TRUE, sizeof(CardVertex), (void*)offsetof(CardVertex, frame));
   glBindVertexArray(0);
-
-  glGenTextures(1, &m.atlas);
-  glBindTexture(GL_TEXTURE_2D, m.atlas);
-  const int side = kSlotPixels * kAtlasSide;
-  std::vector<uint8_t> empty(size_t(side) * side * 4, 0);
-  glTexImage2D(GL_TEXTURE_2D, 0, GL_RGBA8, side, side, 0, GL_RGBA, GL_UNSIGNED_BYTE, empty.data());
-  glTexParameteri(GL_TEXTURE_2D, GL_TEXTURE_MIN_FILTER, GL_LINEAR);
-  glTexParameteri(GL_TEXTURE_2D, GL_TEXTURE_MAG_FILTER, GL_LINEAR);
-  glTexParameteri(GL_TEXTURE_2D, GL_TEXTURE_WRAP_S, GL_CLAMP_TO_EDGE);
-  glTexParameteri(GL_TEXTURE_2D, GL_TEXTURE_WRAP_T, GL_CLAMP_TO_EDGE);
+  glGenTextures(1, &m.pictures);
 }
 
 GlRenderer::~GlRenderer() {
   Impl& m = *impl_;
-  for (Buffer* b : {&m.points, &m.highlights, &m.lines, &m.grid, &m.cards}) {
+  for (Buffer* b : {&m.points, &m.highlights, &m.lines, &m.grid}) {
     glDeleteBuffers(1, &b->vbo);
     glDeleteVertexArrays(1, &b->vao);
   }
-  glDeleteTextures(1, &m.atlas);
+  glDeleteTextures(1, &m.pictures);
   glDeleteProgram(m.points_program);
   glDeleteProgram(m.lines_program);
-  glDeleteProgram(m.cards_program);
 }
 
 namespace {
@@ -173,39 +152,36 @@ void GlRenderer::set_highlights(const std::vector<PointVertex>& p) { upload(impl
 void GlRenderer::set_lines(const std::vector<LineVertex>& l) { upload(impl_->lines, l); }
 void GlRenderer::set_grid(const std::vector<LineVertex>& g) { upload(impl_->grid, g); }
 
-void GlRenderer::set_cards(const std::vector<CardSprite>& cards) {
-  struct CardVertex {
-    glm::vec3 position;
-    float size, slot;
-    uint32_t frame;
-  };
-  std::vector<CardVertex> v;
-  v.reserve(cards.size());
-  for (const auto& c : cards) v.push_back({c.position, c.size, float(c.slot), c.frame_rgba});
-  upload(impl_->cards, v);
+void GlRenderer::set_picture_slots(int slots) {
+  Impl& m = *impl_;
+  slots = std::clamp(slots, 0, kMaxPictureSlots);
+  m.picture_layers = (slots + kSlotsPerLayer - 1) / kSlotsPerLayer;
+  if (m.picture_layers == 0) return;
+  glBindTexture(GL_TEXTURE_2D_ARRAY, m.pictures);
+  const int side = kSlotTexels * kLayerSide;
+  for (int l = 0; l < kSlotLevels; ++l)
+    glTexImage3D(GL_TEXTURE_2D_ARRAY, l, GL_RGBA8, side >> l, side >> l, m.picture_layers, 0, GL_RGBA,
+                 GL_UNSIGNED_BYTE, nullptr);
+  glTexParameteri(GL_TEXTURE_2D_ARRAY, GL_TEXTURE_BASE_LEVEL, 0);
+  glTexParameteri(GL_TEXTURE_2D_ARRAY, GL_TEXTURE_MAX_LEVEL, kSlotLevels - 1);
+  // Mip levels chosen per pixel, nearest level (half the texture reads of trilinear on llvmpipe).
+  glTexParameteri(GL_TEXTURE_2D_ARRAY, GL_TEXTURE_MIN_FILTER, GL_LINEAR_MIPMAP_NEAREST);
+  glTexParameteri(GL_TEXTURE_2D_ARRAY, GL_TEXTURE_MAG_FILTER, GL_LINEAR);
+  glTexParameteri(GL_TEXTURE_2D_ARRAY, GL_TEXTURE_WRAP_S, GL_CLAMP_TO_EDGE);
+  glTexParameteri(GL_TEXTURE_2D_ARRAY, GL_TEXTURE_WRAP_T, GL_CLAMP_TO_EDGE);
 }
 
-void GlRenderer::set_slot(int slot, const Picture& pic) {
-  if (slot < 0 || slot >= kAtlasSlots) return;
-  // Fit the picture inside the slot (nearest-neighbour scaling; slots are small), letterboxed
-  // with transparent pixels so the card frame shows around it.
-  std::vector<uint8_t> cell(size_t(kSlotPixels) * kSlotPixels * 4, 0);
-  if (pic.width > 0 && pic.height > 0) {
-    const float scale = std::min(float(kSlotPixels) / pic.width, float(kSlotPixels) / pic.height);
-    const int w = std::max(1, int(pic.width * scale)), h = std::max(1, int(pic.height * scale));
-    const int ox = (kSlotPixels - w) / 2, oy = (kSlotPixels - h) / 2;
-    for (int y = 0; y < h; ++y)
-      for (int x = 0; x < w; ++x) {
-        const int sx = std::min(pic.width - 1, int(x / scale)), sy = std::min(pic.height - 1, int(y / scale));
-        const uint8_t* s = &pic.rgba[(size_t(sy) * pic.width + sx) * 4];
-        uint8_t* d = &cell[(size_t(y + oy) * kSlotPixels + (x + ox)) * 4];
-        std::copy(s, s + 4, d);
-      }
-  }
-  glBindTexture(GL_TEXTURE_2D, impl_->atlas);
+void GlRenderer::set_slot(int slot, const SlotPixels& pixels) {
+  Impl& m = *impl_;
+  if (slot < 0 || slot >= m.picture_layers * kSlotsPerLayer || pixels.rgba.size() != SlotPixels::bytes()) return;
+  const int layer = slot / kSlotsPerLayer, cell = slot % kSlotsPerLayer;
+  glBindTexture(GL_TEXTURE_2D_ARRAY, m.pictures);
   glPixelStorei(GL_UNPACK_ALIGNMENT, 1);
-  glTexSubImage2D(GL_TEXTURE_2D, 0, (slot % kAtlasSide) * kSlotPixels, (slot / kAtlasSide) * kSlotPixels, kSlotPixels,
-                  kSlotPixels, GL_RGBA, GL_UNSIGNED_BYTE, cell.data());
+  for (int l = 0; l < kSlotLevels; ++l) {
+    const int side = kSlotTexels >> l;
+    glTexSubImage3D(GL_TEXTURE_2D_ARRAY, l, (cell % kLayerSide) * side, (cell / kLayerSide) * side, layer, side, side,
+                    1, GL_RGBA, GL_UNSIGNED_BYTE, pixels.rgba.data() + SlotPixels::level_offset(l));
+  }
 }
 
 void GlRenderer::draw(const FrameParams& f) {
@@ -246,6 +222,14 @@ void GlRenderer::draw(const FrameParams& f) {
     glUniform1f(glGetUniformLocation(p, "u_fade_near"), f.fade_near);
     glUniform1f(glGetUniformLocation(p, "u_fade_far"), f.fade_far);
     glUniform1f(glGetUniformLocation(p, "u_fade_amount"), f.fade_amount);
+    const bool pictures = f.pictures && m.picture_layers > 0;
+    glUniform1i(glGetUniformLocation(p, "u_pictures"), pictures ? 1 : 0);
+    glUniform1f(glGetUniformLocation(p, "u_picture_size"), f.picture_size);
+    glUniform1f(glGetUniformLocation(p, "u_picture_min"), f.picture_min_pixels);
+    glUniform1f(glGetUniformLocation(p, "u_max_picture_size"), f.max_picture_size);
+    glUniform1i(glGetUniformLocation(p, "u_atlas"), 0);
+    glActiveTexture(GL_TEXTURE0);
+    glBindTexture(GL_TEXTURE_2D_ARRAY, m.pictures);
     glDisable(GL_BLEND);  // discs are opaque; blending would make llvmpipe read every covered pixel back
     glBindVertexArray(m.points.vao);
     const GLsizei count = f.point_budget > 0 ? std::min<GLsizei>(m.points.count, GLsizei(f.point_budget)) : m.points.count;
@@ -263,19 +247,6 @@ void GlRenderer::draw(const FrameParams& f) {
     glDisable(GL_DEPTH_TEST);  // judgments of the selection stay visible through other items
     glBindVertexArray(m.lines.vao);
     glDrawArrays(GL_LINES, 0, m.lines.count);
-    glEnable(GL_DEPTH_TEST);
-  }
-  if (f.cards && m.cards.count) {
-    const GLuint p = m.cards_program;
-    set_camera(p);
-    glUniform2f(glGetUniformLocation(p, "u_viewport"), float(f.width), float(f.height));
-    glUniform1f(glGetUniformLocation(p, "u_atlas_side"), float(kAtlasSide));
-    glUniform1i(glGetUniformLocation(p, "u_atlas"), 0);
-    glActiveTexture(GL_TEXTURE0);
-    glBindTexture(GL_TEXTURE_2D, m.atlas);
-    glDisable(GL_DEPTH_TEST);
-    glBindVertexArray(m.cards.vao);
-    glDrawArrays(GL_POINTS, 0, m.cards.count);
     glEnable(GL_DEPTH_TEST);
   }
   glBindVertexArray(0);

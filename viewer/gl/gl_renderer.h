@@ -1,6 +1,8 @@
 // GlRenderer: the OpenGL 3.3 core backend of Renderer (viewer/scene/renderer.h). Points are GL_POINTS
-// with a round sprite (much faster than instanced quads on Mesa's llvmpipe), judgment lines and the
-// floor grid are GL_LINES, picture cards are point sprites sampling a 1024 x 1024 texture atlas.
+// with a round sprite (much faster than instanced quads on Mesa's llvmpipe); an item with a picture
+// slot is, in the same draw, a square sprite sampling a GL_TEXTURE_2D_ARRAY (kSlotsPerLayer slots of
+// kSlotTexels a layer, kSlotLevels mip levels) when large enough on screen. Judgment lines and the
+// floor grid are GL_LINES.
 // Shaders are read at run time from shader_directory(). Works in a GLFW window or in the EGL
 // surfaceless context of the windowless path. Use from the thread owning the current GL context;
 // construct after the context is current and destroy before it goes.
@@ -27,8 +29,8 @@ class GlRenderer : public Renderer {
   void set_highlights(const std::vector<PointVertex>& points) override;
   void set_lines(const std::vector<LineVertex>& lines) override;
   void set_grid(const std::vector<LineVertex>& grid) override;
-  void set_cards(const std::vector<CardSprite>& cards) override;
-  void set_slot(int slot, const Picture& picture) override;
+  void set_picture_slots(int slots) override;
+  void set_slot(int slot, const SlotPixels& pixels) override;
   void draw(const FrameParams& frame) override;
   Picture read_pixels(int width, int height) override;
 

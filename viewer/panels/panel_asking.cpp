@@ -82,7 +82,7 @@ const AskingPanel::Texture* AskingPanel::texture(int item) {
     }
     Texture t;
     Picture pic;
-    // Question cards are drawn larger than map cards: up to 512 pixels a side.
+    // Question cards are drawn larger than the map's pictures: up to 512 pixels a side.
     if (load_picture(collection_.pictures[size_t(item)], &pic, 512) && pic.width > 0 && pic.height > 0) {
       glGenTextures(1, &t.id);
       glBindTexture(GL_TEXTURE_2D, t.id);
@@ -127,14 +127,14 @@ void AskingPanel::apply_large_type() {
     io.FontDefault = g_medium;
     ImGui::GetStyle().ScaleAllSizes(1.5f);
     normal_point_size_ = o.point_size;
-    normal_card_size_ = o.card_size;
+    normal_picture_size_ = o.picture_size;
     o.point_size = (o.point_size > 0 ? o.point_size : (collection_.size() <= 2000 ? 10.f : 6.f)) * 1.8f;
-    o.card_size = o.card_size * 1.6f;
+    o.picture_size = std::min(view_.picture_size() * 1.6f, 160.f);
   } else {
     io.FontDefault = nullptr;
     ImGui::GetStyle().ScaleAllSizes(1.f / 1.5f);
     o.point_size = normal_point_size_;
-    o.card_size = normal_card_size_;
+    o.picture_size = normal_picture_size_;
   }
   view_.set_options(o);
   large_applied_ = want;

@@ -127,7 +127,7 @@ class AskingPanel {
   std::unique_ptr<AskingDesk> desk_;
   std::unordered_map<int, Texture> textures_;
   bool large_applied_ = false;
-  float normal_point_size_ = 0.f, normal_card_size_ = 96.f;
+  float normal_point_size_ = 0.f, normal_picture_size_ = 0.f;
   char new_name_[64] = "";
   char own_line_[256] = "";
   int editing_ = -1;

@@ -79,7 +79,7 @@ void StructurePanel::choose_suspect(int item) {
   chosen_suspect_ = item;
   view_.selection().set({item});
   view_.focus_selection();
-  // Its map neighbours join the selection so their picture cards show beside it.
+  // Its map neighbours join the selection so they show framed in the map.
   if (found_ && found_->map_graph.n == collection_.size()) {
     const NeighbourGraph& g = found_->map_graph;
     for (size_t r = 0; r < std::min<size_t>(g.k, 10); ++r) view_.selection().add(g.index[size_t(item) * g.k + r]);
@@ -212,7 +212,7 @@ void StructurePanel::tab_suspects() {
     }
     ImGui::EndTable();
   }
-  ImGui::TextDisabled("the selection holds it and its map neighbours: their cards show in the map");
+  ImGui::TextDisabled("the selection holds it and its map neighbours, framed in the map");
 }
 
 void StructurePanel::tab_groups() {

@@ -7,7 +7,6 @@
 #include <numeric>
 #include <random>
 
-#include "solver/features/picture_file.h"
 #include "viewer/scene/picking.h"
 
 namespace kith {
@@ -25,30 +24,14 @@ Rgb toward(const Rgb& c, const Rgb& to, float t) {
 std::string ViewOptions::IsValid() const {
   if (!(point_size >= 0.f && point_size <= 64.f)) return "point size must be within 0..64 pixels";
   if (!(fade >= 0.f && fade <= 1.f)) return "fade must be within 0..1";
-  if (card_limit < 0 || card_limit > Renderer::kAtlasSlots / 2) return "card limit must be within 0..32";
-  if (!(card_size >= 16.f && card_size <= 240.f)) return "card size must be within 16..240 pixels";
+  if (!(picture_size == 0.f || (picture_size >= 8.f && picture_size <= 160.f)))
+    return "picture size must be 0 (by item count) or within 8..160 pixels";
   return "";
-}
-
-bool load_picture(const std::string& path, Picture* out, int max_side, std::string* why) {
-  Rgba8Picture pic;
-  const std::string problem = decode_picture_rgba8(path, max_side, &pic);
-  if (why) *why = problem;
-  if (!problem.empty()) {
-    *out = Picture{};
-    return false;
-  }
-  out->width = pic.width;
-  out->height = pic.height;
-  out->rgba = std::move(pic.rgba);
-  return true;
 }
 
 MapView::MapView(const Collection& collection, Renderer& renderer) : collection_(collection), renderer_(renderer) {
   selection_.resize(collection.size());
   judgment_count_.assign(collection.size(), 0);
-  slot_item_.assign(Renderer::kAtlasSlots, -1);
-  slot_used_.assign(Renderer::kAtlasSlots, -1);
   options_.colour_by.tag_column = default_tag_column(collection);
   if (options_.colour_by.tag_column < 0) options_.colour_by.kind = ColourKind::kPlain;
 }
@@ -116,7 +99,9 @@ void MapView::set_snapshot(std::shared_ptr<const Snapshot> s) {
 void MapView::note_frame_time(float seconds) {
   if (options_.moving_budget == 0 || !(seconds > 0.f)) return;
   smoothed_frame_ = smoothed_frame_ == 0.f ? seconds : 0.8f * smoothed_frame_ + 0.2f * seconds;
-  if (still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f) return;  // at rest: every item is drawn anyway
+  const bool at_rest = still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f;
+  detail_.note(seconds, !at_rest, options_.target_frame_seconds);
+  if (at_rest) return;  // every item is drawn anyway
   // Scale the sample toward the frame-time target: the drawing cost is roughly linear in it.
   const float ratio = std::clamp(options_.target_frame_seconds / smoothed_frame_, 0.7f, 1.15f);
   const size_t cap = std::min(options_.moving_budget, std::max<size_t>(positions_.size(), 1));
@@ -160,7 +145,10 @@ void MapView::fit_all(bool smooth, bool by_person) {
   fitted_lo_ = lo_;
   fitted_hi_ = hi_;
   if (positions_.empty()) return camera_.fit(lo_, hi_, smooth);
-  camera_.fit_points(positions_, smooth);
+  // Pictures reach half their side beyond their item: that much more margin, so none is cut.
+  const bool pictures = options_.pictures && !collection_.pictures.empty();
+  const float extra = pictures ? picture_size() / float(std::max(camera_.height(), 1)) : 0.f;
+  camera_.fit_points(positions_, smooth, 0.06f + std::min(extra, 0.2f));
 }
 
 void MapView::set_centre_offset(float ndc_x) {
@@ -195,7 +183,18 @@ float MapView::pick_radius() const {
   return std::max(6.f, (options_.point_size > 0 ? options_.point_size : auto_point_size()) * 0.75f);
 }
 
-int MapView::item_at(const glm::vec2& pixel) const { return pick_item(camera_, positions_, pixel, pick_radius()); }
+int MapView::item_at(const glm::vec2& pixel) const {
+  // The front picture under the pointer, as drawn; else the nearest disc.
+  if (const PictureAtlas* a = atlas(); a && a->ready_count() > 0) {
+    std::vector<glm::vec2> extent(positions_.size(), glm::vec2(0.f));
+    for (size_t i = 0; i < positions_.size(); ++i)
+      if (a->ready(int(i))) extent[i] = {picture_extent_x(a->aspect(int(i))), picture_extent_y(a->aspect(int(i)))};
+    const int front = pick_picture(camera_, positions_, pixel, extent, picture_size(), camera_.pose().distance,
+                                   detail_.pixels());
+    if (front >= 0) return front;
+  }
+  return pick_item(camera_, positions_, pixel, pick_radius());
+}
 
 void MapView::hover_at(const glm::vec2& pixel) {
   const int h = item_at(pixel);
@@ -328,6 +327,10 @@ void MapView::rebuild_points() {
     if (int(i) == drag_item_) flags |= kPointDragged | kPointHovered;
     const float s = (flags & kPointPinned) ? std::max(size, 7.f) : size;
     v[k] = {positions_[i], pack_rgba(c.r, c.g, c.b, 1.f), s, flags};
+    if (atlas_ && atlas_->ready(int(i))) {
+      v[k].slot = atlas_->slot_of(int(i));
+      v[k].aspect = atlas_->aspect(int(i));
+    }
     if (flags & (kPointSelected | kPointHovered | kPointDragged)) highlights.push_back(v[k]);
   }
   renderer_.set_points(v);
@@ -420,75 +423,31 @@ std::vector<int> MapView::nearest_in_map(int item, int k) const {
   });
 }
 
-// ============================================================================ [cards]
+// ============================================================================ [pictures]
 
-const Picture* MapView::picture(int item) {
-  if (collection_.pictures.empty() || size_t(item) >= collection_.pictures.size()) return nullptr;
-  auto it = pictures_.find(item);
-  if (it != pictures_.end()) return it->second->width > 0 ? it->second.get() : nullptr;
-  auto pic = std::make_shared<Picture>();
-  load_picture(collection_.pictures[item], pic.get());
-  pictures_[item] = pic;
-  if (pictures_.size() > 512) pictures_.clear();  // a bound on memory; pictures reload on demand
-  return pic->width > 0 ? pictures_[item].get() : nullptr;
+float MapView::picture_size() const {
+  if (options_.picture_size > 0) return options_.picture_size;
+  // Large enough to tell pictures apart, small enough that a fitted map is not one pile.
+  const size_t n = collection_.size();
+  if (n <= 500) return 30.f;
+  if (n <= 2000) return 26.f;
+  if (n <= 10000) return 20.f;
+  return 16.f;
 }
 
-void MapView::update_cards() {
-  std::vector<int> want;
-  auto add = [&](int i) {
-    if (i >= 0 && size_t(i) < positions_.size() && std::find(want.begin(), want.end(), i) == want.end() &&
-        int(want.size()) < options_.card_limit)
-      want.push_back(i);
-  };
-  if (options_.cards && !collection_.pictures.empty()) {
-    add(hovered_);
-    for (int i : selection_.items()) add(i);
-    if (options_.cards_near_centre && int(want.size()) < options_.card_limit) {
-      // The items nearest the point the camera looks at, when the view is close enough for
-      // cards not to pile up (fewer than ~60 items within the card radius of the target).
-      const glm::vec3 t = camera_.pose().target;
-      const float r = camera_.pose().distance * 0.35f;
-      std::vector<std::pair<float, int>> near;
-      for (size_t i = 0; i < positions_.size(); ++i) {
-        const glm::vec3 d = positions_[i] - t;
-        const float d2 = glm::dot(d, d);
-        if (d2 < r * r) near.push_back({d2, int(i)});
-      }
-      if (near.size() < 60) {
-        std::sort(near.begin(), near.end());
-        for (const auto& [d2, i] : near) add(i);
-      }
-    }
-  }
-  // At most two new pictures decoded per frame so a sweep of the mouse never stalls a frame.
-  int decodes = 2;
-  std::vector<CardSprite> sprites;
-  card_items_.clear();
-  const uint32_t frame = pack_rgba(palette_.card_frame.r, palette_.card_frame.g, palette_.card_frame.b, 1.f);
-  const uint32_t ink = pack_rgba(palette_.ink.r, palette_.ink.g, palette_.ink.b, 1.f);
-  for (int item : want) {
-    int slot = -1;
-    if (auto it = slot_of_.find(item); it != slot_of_.end()) {
-      slot = it->second;
-    } else {
-      if (decodes <= 0 && !pictures_.count(item)) continue;
-      if (!pictures_.count(item)) --decodes;
-      const Picture* pic = picture(item);
-      if (!pic) continue;
-      // The least recently used slot.
-      slot = int(std::min_element(slot_used_.begin(), slot_used_.end()) - slot_used_.begin());
-      if (slot_item_[slot] >= 0) slot_of_.erase(slot_item_[slot]);
-      slot_item_[slot] = item;
-      slot_of_[item] = slot;
-      renderer_.set_slot(slot, *pic);
-    }
-    slot_used_[slot] = frames_;
-    const bool strong = item == hovered_ || selection_.contains(item);
-    sprites.push_back({positions_[item], strong ? options_.card_size : options_.card_size * 0.72f, slot,
-                       strong ? ink : frame});
-    card_items_.push_back(item);
-  }
-  renderer_.set_cards(sprites);
+void MapView::update_pictures() {
+  if (!options_.pictures || collection_.pictures.empty()) return;
+  if (!atlas_) atlas_ = std::make_unique<PictureAtlas>(collection_.pictures);
+  // A bounded number of slots a frame, so loading never stalls one (about 2.8 MB of texels).
+  constexpr size_t kSlotsPerFrame = 128;
+  if (atlas_->pump(renderer_, kSlotsPerFrame) > 0) dirty_points_ = true;
+}
+
+void MapView::finish_pictures() {
+  if (!options_.pictures || collection_.pictures.empty()) return;
+  update_pictures();
+  atlas_->finish(renderer_);
+  dirty_points_ = true;
 }
 
 // ============================================================================ [frame]
@@ -510,7 +469,9 @@ FrameParams MapView::frame_params() const {
   f.fade_amount = options_.fade;
   f.grid = options_.grid;
   f.lines = options_.lines;
-  f.cards = options_.cards;
+  f.pictures = options_.pictures && atlas_ != nullptr;
+  f.picture_size = picture_size();
+  f.picture_min_pixels = detail_.pixels();
   f.point_budget = reduced_ ? budget_ : 0;
   return f;
 }
@@ -529,11 +490,11 @@ void MapView::frame(float dt, int width, int height) {
   budget_ = std::min(budget_, std::max<size_t>(positions_.size(), 1));
   const bool at_rest = still_seconds_ >= 0.25f && map_still_seconds_ >= 0.25f;
   reduced_ = options_.moving_budget > 0 && positions_.size() > budget_ && !at_rest;
+  update_pictures();
   if (dirty_colours_) rebuild_colours();
   if (dirty_grid_) rebuild_grid();
   if (dirty_points_ || last_hovered_drawn_ != hovered_) rebuild_points();
   if (dirty_lines_) rebuild_lines();
-  update_cards();
   last_hovered_drawn_ = hovered_;
   renderer_.draw(frame_params());
   ++frames_;

@@ -1,6 +1,6 @@
 // MapView: everything the map window shows, as logic without GL or GLFW: the current map
 // (from engine snapshots), the camera, the selection, hover and drag state, colouring and legend,
-// picture cards, judgment lines, the floor grid. It turns that state into renderer data
+// every item's picture (viewer/scene/picture_atlas.h), judgment lines, the floor grid. It turns that state into renderer data
 // (viewer/scene/renderer.h) and asks the renderer to draw; the window (viewer/window/app.h) and the windowless
 // path (viewer/window/offscreen_render.h) both drive one, and the tests drive one over MockRenderer.
 // Window (or render) thread only.
@@ -18,6 +18,7 @@
 #include "viewer/scene/camera.h"
 #include "viewer/scene/colour_code.h"
 #include "viewer/scene/palette.h"
+#include "viewer/scene/picture_atlas.h"
 #include "viewer/scene/renderer.h"
 #include "viewer/scene/selection.h"
 
@@ -28,10 +29,8 @@ struct ViewOptions {
   float fade = 0.55f;          // how far the farthest items fade toward the ground, 0..1 (default: 0.55)
   bool grid = true;            // faint floor grid (default: on)
   bool lines = true;           // judgments of the selection (default: on)
-  bool cards = true;           // picture cards (default: on)
-  bool cards_near_centre = true;  // also cards for the items nearest the view's centre (default: on)
-  int card_limit = 12;         // most cards drawn at once, so the frame rate holds (default: 12)
-  float card_size = 96.f;      // card side in pixels (default: 96)
+  bool pictures = true;        // items with a picture drawn as it, when large enough on screen (default: on)
+  float picture_size = 0.f;    // picture side in pixels at the target distance; 0 = by item count (default: 0)
   bool dark = false;           // night ground instead of paper (default: off)
   // Level of detail: while the view or the map moves, draw at most this many items (a fixed
   // random sample, so the picture keeps its shape), fewer when frames take longer than
@@ -111,8 +110,14 @@ class MapView {
   std::vector<int> nearest_in_features(int item, int k) const;
   std::vector<int> nearest_in_map(int item, int k) const;
 
-  // ---- cards -----------------------------------------------------------------
-  const std::vector<int>& card_items() const { return card_items_; }
+  // ---- pictures --------------------------------------------------------------
+  // The picture side in pixels at the target distance (ViewOptions::picture_size or by item count).
+  float picture_size() const;
+  // Pictures are on and the collection has some: the atlas, else null.
+  const PictureAtlas* atlas() const { return options_.pictures ? atlas_.get() : nullptr; }
+  const DetailThreshold& detail() const { return detail_; }
+  // Waits until every picture is decoded and on the renderer (the windowless path draws once).
+  void finish_pictures();
 
   // Advance the camera by dt, rebuild what changed, draw into a framebuffer of this size.
   void frame(float dt, int width, int height);
@@ -128,10 +133,9 @@ class MapView {
   void rebuild_points();
   void rebuild_grid();
   void rebuild_lines();
-  void update_cards();
+  void update_pictures();
   void update_bounds();
   float auto_point_size() const;
-  const Picture* picture(int item);
 
   const Collection& collection_;
   Renderer& renderer_;
@@ -159,12 +163,8 @@ class MapView {
   int hovered_ = -1;
   int drag_item_ = -1;
   glm::vec3 drag_where_{0.f};
-  std::vector<int> card_items_;
-  // Atlas slots: item -> slot, and per slot the item and the frame it was last used.
-  std::unordered_map<int, int> slot_of_;
-  std::vector<int> slot_item_;
-  std::vector<int> slot_used_;
-  std::unordered_map<int, std::shared_ptr<Picture>> pictures_;  // decoded (empty Picture if unreadable)
+  std::unique_ptr<PictureAtlas> atlas_;  // made at the first frame that shows pictures
+  DetailThreshold detail_;
   bool dirty_points_ = true, dirty_colours_ = true, dirty_grid_ = true, dirty_lines_ = true;
   int frames_ = 0;
   std::vector<int> draw_order_;   // a fixed shuffle of the items: any prefix is a fair sample
@@ -177,10 +177,5 @@ class MapView {
   int last_hovered_drawn_ = -2;
   float grid_floor_y_ = 0.f;
 };
-
-// Decodes a PNG/JPEG shrunk to at most MAX_SIDE pixels a side (solver/features/picture_file.h);
-// false (and an empty picture, with the reason in *WHY) if it cannot.
-constexpr int kCardPictureSide = 256;  // map cards are drawn at most 240 pixels wide
-bool load_picture(const std::string& path, Picture* out, int max_side = kCardPictureSide, std::string* why = nullptr);
 
 }  // namespace kith

@@ -33,6 +33,29 @@ int pick_item(const Camera& camera, const std::vector<glm::vec3>& positions, con
   return best;
 }
 
+int pick_picture(const Camera& camera, const std::vector<glm::vec3>& positions, const glm::vec2& pixel,
+                 const std::vector<glm::vec2>& extent, float side_at_reference, float reference_distance,
+                 float min_side) {
+  int best = -1;
+  float best_depth = 0.f;
+  const glm::mat4 vp = camera.projection() * camera.view();
+  const float w = float(camera.width()), h = float(camera.height());
+  for (size_t i = 0; i < positions.size() && i < extent.size(); ++i) {
+    if (extent[i].x <= 0.f) continue;
+    const glm::vec4 c = vp * glm::vec4(positions[i], 1.f);
+    if (c.w <= camera.near_plane() || (best >= 0 && c.w >= best_depth)) continue;
+    const float side = side_at_reference * std::clamp(reference_distance / c.w, 0.35f, 3.f);
+    if (side < min_side) continue;
+    const glm::vec2 s((c.x / c.w * 0.5f + 0.5f) * w, (1.f - (c.y / c.w * 0.5f + 0.5f)) * h);
+    const glm::vec2 d = glm::abs(s - pixel);
+    if (d.x <= 0.5f * side * extent[i].x && d.y <= 0.5f * side * extent[i].y) {
+      best = int(i);
+      best_depth = c.w;
+    }
+  }
+  return best;
+}
+
 namespace {
 // The visible items (in front of the camera, not hidden) whose screen position passes `inside`.
 template <typename Inside>

@@ -16,6 +16,14 @@ namespace kith {
 int pick_item(const Camera& camera, const std::vector<glm::vec3>& positions, const glm::vec2& pixel, float radius_px,
               const std::vector<uint8_t>* hidden = nullptr);
 
+// The item nearest the eye whose picture covers `pixel`, -1 if none. Item i's picture is
+// extent[i] (its share of the sprite's side, x and y; zero = no picture) of a square sprite
+// side_at_reference * clamp(reference_distance / depth, 0.35, 3) pixels across (as points.vert
+// draws it), drawn only when at least min_side.
+int pick_picture(const Camera& camera, const std::vector<glm::vec3>& positions, const glm::vec2& pixel,
+                 const std::vector<glm::vec2>& extent, float side_at_reference, float reference_distance,
+                 float min_side);
+
 // Items whose projection lies inside the screen rectangle with corners a and b (any order).
 std::vector<int> pick_box(const Camera& camera, const std::vector<glm::vec3>& positions, const glm::vec2& a,
                           const glm::vec2& b, const std::vector<uint8_t>* hidden = nullptr);

@@ -3,9 +3,10 @@
 // it was asked to draw so the viewer's logic (camera, picking, selection, scene building) is
 // tested without GL.
 //
-// The view describes a frame as plain data: point sprites (one per item), line segments
-// (judgments, floor grid), picture cards (point sprites sampling a texture atlas) and the
-// camera matrices. Upload calls happen only when the data changed; draw() every frame.
+// The view describes a frame as plain data: point sprites (one per item, each a disc or, when it
+// has a picture slot and is large enough on screen, its picture from the picture atlas), line
+// segments (judgments, floor grid) and the camera matrices. Upload calls happen only when the
+// data changed; draw() every frame.
 // Call from the thread that owns the GL context.
 #pragma once
 #include <cstdint>
@@ -23,8 +24,10 @@ constexpr uint32_t kPointMarkShift = 8;
 struct PointVertex {
   glm::vec3 position;
   uint32_t rgba;      // packed little-endian: r in the low byte
-  float size;         // pixels at the camera's target distance
+  float size;         // disc diameter in pixels at the camera's target distance
   uint32_t flags;     // PointFlag bits
+  int32_t slot = -1;  // picture atlas slot whose pixels are on the renderer, -1 = a disc always
+  float aspect = 1.f; // the picture's width / height
 };
 
 struct LineVertex {
@@ -32,16 +35,27 @@ struct LineVertex {
   uint32_t rgba;
 };
 
-struct CardSprite {
-  glm::vec3 position;
-  float size;         // pixels, fixed on screen
-  int slot;           // atlas slot holding the picture
-  uint32_t frame_rgba;
-};
-
 struct Picture {
   int width = 0, height = 0;
   std::vector<uint8_t> rgba;  // width * height * 4, rows top first
+};
+
+// The picture atlas's geometry (viewer/scene/picture_atlas.h): slots of kSlotTexels square with
+// kSlotLevels mip levels, kLayerSide x kLayerSide slots to a layer of a 2-D array texture (Mesa
+// allows 2,048 layers, so one slot a layer would stop at 2,048 pictures).
+constexpr int kSlotTexels = 64;
+constexpr int kSlotLevels = 4;  // 64, 32, 16, 8 texels
+constexpr int kSlotGuard = 4;   // texels of the picture's edge repeated around it (level 0)
+constexpr int kLayerSide = 4;
+constexpr int kSlotsPerLayer = kLayerSide * kLayerSide;
+constexpr int kMaxPictureSlots = 12288;
+
+// One slot's pixels, every mip level: level l is (kSlotTexels >> l) square RGBA, rows top first,
+// the levels one after another from level 0.
+struct SlotPixels {
+  std::vector<uint8_t> rgba;
+  static size_t level_offset(int level);  // bytes before level `level`
+  static size_t bytes() { return level_offset(kSlotLevels); }
 };
 
 struct FrameParams {
@@ -57,7 +71,10 @@ struct FrameParams {
   size_t point_budget = 0;              // draw only the first this many points (level of detail); 0 = all
   bool grid = true;
   bool lines = true;
-  bool cards = true;
+  bool pictures = true;                 // items with a slot drawn as their picture when large enough
+  float picture_size = 32.f;            // picture side in pixels at the reference distance
+  float picture_min_pixels = 8.f;       // smaller on screen than this: a disc (level of detail)
+  float max_picture_size = 160.f;
 };
 
 uint32_t pack_rgba(float r, float g, float b, float a = 1.f);
@@ -70,12 +87,9 @@ class Renderer {
   virtual void set_highlights(const std::vector<PointVertex>& points) = 0;
   virtual void set_lines(const std::vector<LineVertex>& lines) = 0;   // pairs of vertices
   virtual void set_grid(const std::vector<LineVertex>& grid) = 0;     // pairs of vertices
-  virtual void set_cards(const std::vector<CardSprite>& cards) = 0;
-  // Atlas slots: kAtlasSlots pictures of kSlotPixels square; the picture is fitted inside.
-  static constexpr int kSlotPixels = 128;
-  static constexpr int kAtlasSide = 8;  // 8 x 8 slots
-  static constexpr int kAtlasSlots = kAtlasSide * kAtlasSide;
-  virtual void set_slot(int slot, const Picture& picture) = 0;
+  // Room for `slots` pictures (at most kMaxPictureSlots); forgets the slots set before.
+  virtual void set_picture_slots(int slots) = 0;
+  virtual void set_slot(int slot, const SlotPixels& pixels) = 0;
   virtual void draw(const FrameParams& frame) = 0;
   // The framebuffer as RGBA rows, top first.
   virtual Picture read_pixels(int width, int height) = 0;
@@ -88,8 +102,8 @@ class MockRenderer : public Renderer {
   void set_highlights(const std::vector<PointVertex>& p) override { highlights = p; }
   void set_lines(const std::vector<LineVertex>& l) override { lines = l; }
   void set_grid(const std::vector<LineVertex>& g) override { grid = g; }
-  void set_cards(const std::vector<CardSprite>& c) override { cards = c; }
-  void set_slot(int slot, const Picture&) override { slots_set.push_back(slot); }
+  void set_picture_slots(int slots) override { picture_slots = slots, slots_set.clear(); }
+  void set_slot(int slot, const SlotPixels&) override { slots_set.push_back(slot); }
   void draw(const FrameParams& f) override { last_frame = f; ++frames; }
   Picture read_pixels(int w, int h) override {
     Picture p;
@@ -100,7 +114,7 @@ class MockRenderer : public Renderer {
   }
   std::vector<PointVertex> points, highlights;
   std::vector<LineVertex> lines, grid;
-  std::vector<CardSprite> cards;
+  int picture_slots = 0;
   std::vector<int> slots_set;
   FrameParams last_frame;
   int frames = 0, point_uploads = 0;

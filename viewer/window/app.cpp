@@ -298,6 +298,8 @@ int run_window(const Collection& collection, MapFeed& given, const WindowOptions
       if (io.DisplaySize.x > 0.f)
         app.view->set_centre_offset(app.show_panels ? -320.f / io.DisplaySize.x : 0.f);
       app.view->frame(dt, fbw, fbh);
+      if (app.pictures_in_at == 0 && app.view->atlas() && !app.view->atlas()->loading())
+        app.pictures_in_at = app.frame_seconds.size();
       ImGui_ImplOpenGL3_RenderDrawData(ImGui::GetDrawData());
 
       // Scripted pictures and dumps of this frame, then the final screenshot.
@@ -345,6 +347,19 @@ int run_window(const Collection& collection, MapFeed& given, const WindowOptions
                           {"live", feed.live()},
                           {"iterations", s ? s->iteration : 0},
                           {"iterations_per_second", s ? s->iterations_per_second : 0.0}};
+      // The frames once every picture was in (the same figure without loading).
+      if (app.pictures_in_at > 0) {
+        std::vector<double> after(app.frame_seconds.begin() + std::min(app.frame_seconds.size(), app.pictures_in_at + 1),
+                                  app.frame_seconds.end());
+        std::sort(after.begin(), after.end());
+        double total = 0;
+        for (double x : after) total += x;
+        r["frames_with_pictures"] = after.size();
+        r["mean_fps_with_pictures"] = total > 0 ? after.size() / total : 0.0;
+        r["median_frame_ms_with_pictures"] = after.empty() ? 0.0 : after[after.size() / 2] * 1000.0;
+      }
+      r["pictures"] = app.view->atlas() ? app.view->atlas()->ready_count() : 0;
+      r["picture_min_pixels"] = app.view->detail().pixels();
       SafeWriteOptions file;
       file.replace = false;
       const std::string name = fresh_name(options.fps_report);

@@ -95,6 +95,7 @@ struct App {
   History kl, agreement, trust, recall;
   Clock::time_point last_health = Clock::now() - std::chrono::seconds(1);
   std::vector<double> frame_seconds;
+  size_t pictures_in_at = 0;  // frame_seconds.size() when the last picture reached the atlas (0: not yet)
   float fps = 0.f;
   int frame = 0;
   Clock::time_point started = Clock::now();

@@ -292,7 +292,7 @@ bool toggle_view(App& a, int key, int) {
   a.set_view([&](ViewOptions& o) {
     if (key == keys::letter('g')) o.grid = !o.grid;
     if (key == keys::letter('j')) o.lines = !o.lines;
-    if (key == keys::letter('i')) o.cards = !o.cards;
+    if (key == keys::letter('i')) o.pictures = !o.pictures;
   });
   return true;
 }
@@ -388,7 +388,7 @@ const std::vector<KeyRow> kTable = {
     // ---- the view ----
     {"C", "next colouring (tags, numeric columns, judgments, moved, plain)", {any(keys::letter('c'))}, nullptr,
      [](App& a, int, int) { return a.cycle_colour(), true; }},
-    {"G / J / I", "floor grid / judgment lines / picture cards",
+    {"G / J / I", "floor grid / judgment lines / pictures or discs",
      any_of({keys::letter('g'), keys::letter('j'), keys::letter('i')}), nullptr, toggle_view},
     {"[ / ]", "smaller / larger discs", any_of({keys::kLeftBracket, keys::kRightBracket}), nullptr, disc_size},
     {"N", "night or paper ground", {any(keys::letter('n'))}, nullptr,

@@ -152,8 +152,8 @@ std::string render_map_pixels(const Collection& collection, const Points& positi
       if (o.camera_at_centre) pose.target = view.camera().pose().target;
       view.camera().set_pose(pose);
     }
-    // Cards are decoded a few per frame; draw until they are all in.
-    for (int k = 0; k < 1 + int(o.selected.size()) / 2 + 8; ++k) view.frame(0.f, o.width, o.height);
+    view.finish_pictures();  // every picture decoded and uploaded before the one frame
+    view.frame(0.f, o.width, o.height);
     if (o.legend) draw_overlay(view, o);
     glFinish();
     *out = renderer.read_pixels(o.width, o.height);

@@ -56,7 +56,7 @@ void App::panels() {
       bool changed = false;
       changed |= ImGui::MenuItem("Floor grid", "G", &o.grid);
       changed |= ImGui::MenuItem("Judgment lines", "J", &o.lines);
-      changed |= ImGui::MenuItem("Picture cards", "I", &o.cards);
+      changed |= ImGui::MenuItem("Pictures (else discs)", "I", &o.pictures);
       changed |= ImGui::MenuItem("Night ground", "N", &o.dark);
       if (changed) {
         view->set_options(o);
@@ -181,7 +181,7 @@ void App::panel_map() {
   ImGui::SameLine();
   changed |= ImGui::Checkbox("lines", &o.lines);
   ImGui::SameLine();
-  changed |= ImGui::Checkbox("cards", &o.cards);
+  changed |= ImGui::Checkbox("pictures", &o.pictures);
   changed |= ImGui::Checkbox("night", &o.dark);
   ImGui::SameLine();
   ImGui::Checkbox("slow turn", &view->auto_rotate);

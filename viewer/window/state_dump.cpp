@@ -59,6 +59,13 @@ void App::dump_state(const std::string& path) {
                      {"visible", p.visible}, {"world", {pos[i].x, pos[i].y, pos[i].z}}});
   }
   j["items"] = items;
+  const PictureAtlas* atlas = view->atlas();
+  j["pictures"] = {{"shown", atlas != nullptr},
+                   {"ready", atlas ? atlas->ready_count() : 0},
+                   {"failed", atlas ? atlas->failed_count() : 0},
+                   {"loading", atlas && atlas->loading()},
+                   {"size", view->picture_size()},
+                   {"min_pixels", view->detail().pixels()}};
   json sel = json::array();
   for (int i : view->selection().items()) sel.push_back(collection.ids[i]);
   j["selection"] = sel;
