@@ -19,9 +19,9 @@ namespace {
 
 // The window's own set: three panels on the left, four on the right, two of them lists.
 std::vector<DockPanel> window_panels() {
-  return {{"Colours", DockSide::kLeft, true, 200.f},      {"Selected items", DockSide::kLeft, true, 320.f},
-          {"Structure", DockSide::kLeft, true, 0.f},      {"Map", DockSide::kRight, true, 260.f},
-          {"People", DockSide::kRight, true, 180.f},      {"Judgments", DockSide::kRight, true, 0.f},
+  return {{"Colours", DockSide::kLeft, true, 200.f}, {"Selected items", DockSide::kLeft, true, 320.f},
+          {"Structure", DockSide::kLeft, true, 0.f}, {"Map", DockSide::kRight, true, 260.f},
+          {"People", DockSide::kRight, true, 180.f}, {"Judgments", DockSide::kRight, true, 0.f},
           {"Agreement", DockSide::kRight, true, 0.f}};
 }
 
@@ -125,7 +125,9 @@ TEST_CASE("dock layout: a hidden panel takes no room, and a column with none sho
   check_apart(d, panels);
 }
 
-TEST_CASE("dock layout: a column shares its height by water filling, lists take the rest, a panel that cannot fit is left out") {
+TEST_CASE(
+    "dock layout: a column shares its height by water filling, lists take the rest, a panel that cannot fit is left "
+    "out") {
   // 600 px, gaps of 6: small wishes are met, a large one gets the even share of what is left.
   std::vector<float> h = share_column(600.f, {100.f, 150.f, 900.f}, 64.f, 6.f, 180.f);
   CHECK(h[0] == doctest::Approx(100.f));
@@ -145,11 +147,12 @@ TEST_CASE("dock layout: a column shares its height by water filling, lists take 
   CHECK(h[2] == 0.f);
   const float used = std::accumulate(h.begin(), h.end(), 0.f);
   CHECK(used + 6.f <= 140.f + 1.f);
-  CHECK_THROWS_AS(layout_docks(800.f, 600.f, window_panels(), [] {
-                    DockOptions o;
-                    o.gap = -1.f;
-                    return o;
-                  }()),
+  CHECK_THROWS_AS(layout_docks(800.f, 600.f, window_panels(),
+                               [] {
+                                 DockOptions o;
+                                 o.gap = -1.f;
+                                 return o;
+                               }()),
                   std::invalid_argument);
 }
 
@@ -159,7 +162,8 @@ TEST_CASE("dock layout: the camera frames the free area: the whole map and a cho
   std::vector<glm::vec3> pts(400);
   for (auto& p : pts) p = glm::vec3(g(rng) * 2.f, g(rng), g(rng));
   // Only a left column: the free area is off centre sideways and vertically (menu, strip).
-  std::vector<DockPanel> panels = {{"Colours", DockSide::kLeft, true, 200.f}, {"Structure", DockSide::kLeft, true, 0.f}};
+  std::vector<DockPanel> panels = {{"Colours", DockSide::kLeft, true, 200.f},
+                                   {"Structure", DockSide::kLeft, true, 0.f}};
   DockOptions o = window_options();
   o.left_width = 420.f;
   for (const auto [w, h] : {std::pair{1280, 800}, std::pair{1024, 640}}) {

@@ -404,6 +404,18 @@ void sparkline(const char* name, const std::vector<float>& values, float width, 
   if (hint && ImGui::IsItemHovered()) ImGui::SetTooltip("%s", hint);
 }
 
+bool fold(const char* label, bool* open) {
+  const std::string text = std::string(*open ? "- " : "+ ") + label;  // the UI font holds Latin-1 only
+  const ImVec2 size = ImGui::CalcTextSize(text.c_str());
+  const ImVec2 at = ImGui::GetCursorScreenPos();
+  ImGui::PushID(label);
+  if (ImGui::InvisibleButton("##fold", size)) *open = !*open;
+  const bool hovered = ImGui::IsItemHovered();
+  ImGui::PopID();
+  ImGui::GetWindowDrawList()->AddText(at, hovered ? u32(g_warm) : u32(g_accent), text.c_str());
+  return *open;
+}
+
 void section_label(const char* text) {
   ImGui::Spacing();
   ImGui::TextDisabled("%s", text);

@@ -67,6 +67,9 @@ bool chip_choice(const char* label, int* chosen, std::initializer_list<const cha
 // value printed after `name`.
 void sparkline(const char* name, const std::vector<float>& values, float width, float height, const char* format,
                const char* hint);
+// A fold of kith's: "+ label" when closed, "- label" when open, in the accent; a click flips
+// *open. Returns *open (draw the folded part when true).
+bool fold(const char* label, bool* open);
 // A quiet heading inside a panel.
 void section_label(const char* text);
 

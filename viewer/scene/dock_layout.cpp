@@ -8,7 +8,8 @@
 namespace kith {
 
 std::string DockOptions::IsValid() const {
-  const float all[] = {top, bottom_strip, left_width, right_width, min_column_width, min_map_width, min_panel_height, gap};
+  const float all[] = {top,           bottom_strip,     left_width, right_width, min_column_width,
+                       min_map_width, min_panel_height, gap};
   for (float v : all)
     if (!std::isfinite(v) || v < 0.f) return "dock sizes must be finite and not negative";
   if (min_column_width > left_width || min_column_width > right_width)

@@ -38,25 +38,25 @@ struct DockPanel {
 };
 
 struct DockOptions {
-  float top = 0.f;                  // under the menu bar (default: 0)
-  float bottom_strip = 0.f;         // the engine strip's height along the bottom (default: 0)
-  float left_width = 300.f;         // the left column's width when there is room (default: 300)
-  float right_width = 300.f;        // (default: 300)
-  float min_column_width = 210.f;   // a column never narrower than this (default: 210)
-  float min_map_width = 380.f;      // columns shrink before the map gets narrower (default: 380)
-  float min_panel_height = 64.f;    // heading plus a line or two (default: 64)
-  float min_stretch_height = 180.f; // room kept for a stretching panel (a list) when there is any (default: 180)
-  float gap = 6.f;                  // between panels, and between a column and the window's edge (default: 6)
-  std::string IsValid() const;      // "" when usable, else why not
+  float top = 0.f;                   // under the menu bar (default: 0)
+  float bottom_strip = 0.f;          // the engine strip's height along the bottom (default: 0)
+  float left_width = 300.f;          // the left column's width when there is room (default: 300)
+  float right_width = 300.f;         // (default: 300)
+  float min_column_width = 210.f;    // a column never narrower than this (default: 210)
+  float min_map_width = 380.f;       // columns shrink before the map gets narrower (default: 380)
+  float min_panel_height = 64.f;     // heading plus a line or two (default: 64)
+  float min_stretch_height = 180.f;  // room kept for a stretching panel (a list) when there is any (default: 180)
+  float gap = 6.f;                   // between panels, and between a column and the window's edge (default: 6)
+  std::string IsValid() const;       // "" when usable, else why not
 };
 
 struct DockLayout {
-  DockRect window;                  // the whole window
-  DockRect left, right;             // the columns (empty when they hold no shown panel)
-  DockRect strip;                   // the engine strip (empty when bottom_strip is 0)
-  DockRect map_area;                // what is left for the map
-  std::vector<DockRect> panels;     // one per DockPanel, in order; empty when hidden or squeezed
-  std::vector<bool> squeezed;       // shown but left out for want of room
+  DockRect window;               // the whole window
+  DockRect left, right;          // the columns (empty when they hold no shown panel)
+  DockRect strip;                // the engine strip (empty when bottom_strip is 0)
+  DockRect map_area;             // what is left for the map
+  std::vector<DockRect> panels;  // one per DockPanel, in order; empty when hidden or squeezed
+  std::vector<bool> squeezed;    // shown but left out for want of room
 };
 
 // The layout of `panels` in a window of width x height. Throws std::invalid_argument when the

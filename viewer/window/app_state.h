@@ -86,6 +86,7 @@ struct App {
   // Panels.
   bool show_panels = true, show_help = false, focus_search = false;
   bool show_colours = true, show_selected = true, show_map = true, show_more = true, show_strip = true;
+  bool show_advanced = false, show_all_selected = false;  // the folds in Map and Selected items
   DockLayout dock;                       // this frame's places (lay_out_docks), in window pixels
   float dock_wanted[kDockCount] = {};    // the height each panel's content took last frame
   char search_text[128] = "";

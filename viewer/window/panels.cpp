@@ -224,9 +224,7 @@ void App::panel_map() {
   if (feed.live()) {
     section_label("the map listens to");
     setting_sliders(true);
-    if (ImGui::TreeNodeEx("advanced", ImGuiTreeNodeFlags_NoTreePushOnOpen | ImGuiTreeNodeFlags_SpanAvailWidth)) {
-      setting_sliders(false);
-    }
+    if (fold("advanced: perplexity, theta", &show_advanced)) setting_sliders(false);
   } else {
     ImGui::TextDisabled("still map: no engine in this build");
   }
@@ -417,12 +415,9 @@ void App::panel_selection() {
       }
       ImGui::EndTable();
     }
-    if (sel.size() > 1 && ImGui::TreeNode("all selected")) {
-      for (size_t k = 0; k < sel.size() && k < 300; ++k) {
+    if (sel.size() > 1 && fold("all selected", &show_all_selected))
+      for (size_t k = 0; k < sel.size() && k < 300; ++k)
         ImGui::Text("%s%s", collection.ids[sel[k]].c_str(), view->pinned(sel[k]) ? "  (pinned)" : "");
-      }
-      ImGui::TreePop();
-    }
   } else if (!collection.tags.empty()) {
     ImGui::PushTextWrapPos(0.f);
     ImGui::TextDisabled("click an item, drag a box, or click a value in Colours");
@@ -509,14 +504,14 @@ void App::overlays() {
   if (show_help) help_overlay();
   if (question_screen) return;
   notice_line();
-  // A short message at the bottom centre.
+  // A short message at the bottom of the free map area, wrapped to its width so it covers no panel.
   if (!toast.empty() && Clock::now() < toast_until) {
-    const ImVec2 size = ImGui::CalcTextSize(toast.c_str());
-    // At the bottom of the free map area, over no panel.
-    const ImVec2 at((dock.map_area.x0 + dock.map_area.x1) * 0.5f - size.x * 0.5f, dock.map_area.y1 - size.y - 16);
+    const float wrap = std::max(120.f, dock.map_area.width() - 40.f);
+    const ImVec2 size = ImGui::CalcTextSize(toast.c_str(), nullptr, false, wrap);
+    const ImVec2 at(std::floor((dock.map_area.x0 + dock.map_area.x1) * 0.5f - size.x * 0.5f), dock.map_area.y1 - size.y - 16);
     fg->AddRectFilled(ImVec2(at.x - 10, at.y - 6), ImVec2(at.x + size.x + 10, at.y + size.y + 6),
                       ImGui::GetColorU32(ImGuiCol_PopupBg), 6.f);
-    fg->AddText(at, ImGui::GetColorU32(ImGuiCol_Text), toast.c_str());
+    fg->AddText(ImGui::GetFont(), ImGui::GetFontSize(), at, ImGui::GetColorU32(ImGuiCol_Text), toast.c_str(), nullptr, wrap);
   }
 }
 
@@ -528,7 +523,7 @@ void App::help_overlay() {
                ImGuiWindowFlags_NoTitleBar | ImGuiWindowFlags_NoResize | ImGuiWindowFlags_NoMove |
                    ImGuiWindowFlags_NoCollapse | ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoSavedSettings);
   panel_heading("Keys and mouse", &show_help);
-  if (ImGui::BeginTable("keys", 2, ImGuiTableFlags_RowBg)) {
+  if (ImGui::BeginTable("keys", 2, ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingFixedFit)) {
     for (const KeyRow& row : key_table()) {
       if (!row.keys) continue;
       ImGui::TableNextColumn();
