@@ -282,12 +282,16 @@ int run_window(const Collection& collection, MapFeed& given, const WindowOptions
       ImGui::NewFrame();
       app.lay_out_docks();
       // The camera frames the free map area (framebuffer pixels), so fitting and flying to an item
-      // centre it there and not under a panel.
+      // centre it there and not under a panel. A question screen frames the map itself, between
+      // its banner and its band (AskingPanel::frame_map), on the whole window.
       {
         const DockRect& m = app.dock.map_area;
         glfwGetFramebufferSize(app.window, &fbw, &fbh);
         app.view->camera().set_viewport(fbw, fbh);
-        app.view->set_free_area(m.x0 * app.fb_scale, m.y0 * app.fb_scale, m.x1 * app.fb_scale, m.y1 * app.fb_scale);
+        if (app.asking && app.asking->desk().asking())
+          app.view->set_free_area(0.f, 0.f, float(fbw), float(fbh));
+        else
+          app.view->set_free_area(m.x0 * app.fb_scale, m.y0 * app.fb_scale, m.x1 * app.fb_scale, m.y1 * app.fb_scale);
       }
       app.process_queue();
       app.interaction->per_frame();
