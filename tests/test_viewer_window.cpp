@@ -312,3 +312,29 @@ TEST_CASE("viewer window: docked panels overlap neither each other nor the map a
     CHECK(found);
   }
 }
+
+TEST_CASE("viewer window: a panel's hide control takes it out of its column and the next one moves up") {
+  KITH_SKIP_WITHOUT_XVFB();
+  const std::string dir = kith::test::temp_dir("viewer-hide");
+  // Colours is the left column's first panel: its heading's "hide" sits at its top right corner
+  // (x 287..314, y 35..52 at 1280x800).
+  write(dir + "/script.txt", "10 dump " + dir + "/before.json\n20 move 300 43\n21 press left\n22 release left\n40 dump " +
+                                 dir + "/after.json\n41 quit\n");
+  const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open --generate 300 --paused --frames 60 --script " + dir +
+                          "/script.txt > " + dir + "/log.txt 2>&1";
+  REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+  auto panel = [](const nlohmann::json& state, const std::string& name) {
+    for (const auto& p : state["panels"])
+      if (p["name"] == name) return p;
+    FAIL("no panel " << name);
+    return nlohmann::json();
+  };
+  const auto before = load_json(dir + "/before.json"), after = load_json(dir + "/after.json");
+  REQUIRE(panel(before, "Colours")["shown"].get<bool>());
+  CHECK_FALSE(panel(after, "Colours")["shown"].get<bool>());
+  // Selected items now starts where Colours did.
+  CHECK(panel(after, "Selected items")["rect"][1].get<float>() ==
+        doctest::Approx(panel(before, "Colours")["rect"][1].get<float>()));
+  // The map area keeps its place (the column is still there for Selected items).
+  CHECK(after["map_area"] == before["map_area"]);
+}
