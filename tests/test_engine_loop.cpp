@@ -181,6 +181,7 @@ class StandInModel : public LiveModel {
     s.ids = ids;
     s.pinned = pinned;
     s.neighbour_cost = term.evaluate(y, nullptr);
+    s.health.kl = s.neighbour_cost;  // a stand-in figure for the health history
   }
 
   SpringTerm term;
@@ -325,6 +326,67 @@ TEST_CASE("engine loop: a converged loop settles, sleeps (< 5% of a core) and an
   const auto& m = static_cast<StandInModel&>(loop.model());
   const Eigen::RowVector3d expect = 0.5 * (m.term.anchors.row(0) + Eigen::RowVector3d(10, 10, 10));
   CHECK((s->positions.row(0) - expect).norm() < 1e-3);
+}
+
+TEST_CASE("engine loop: snapshots say how quiet the map is, the steps left before it settles, and carry the health over time") {
+  LiveLoopOptions o = quick_options();
+  o.slow_after = 20;
+  o.settle_after = 300;  // about 1.5 s of quiet steps (5 ms apart once slowed down), so snapshots see them
+  LiveLoop loop(std::make_unique<StandInModel>(200), o);
+  CHECK(loop.latest()->history->samples.size() <= 1);  // the first snapshot, before any step
+  loop.start();
+  std::vector<std::shared_ptr<const Snapshot>> seen;
+  const auto end = std::chrono::steady_clock::now() + 20s;
+  while (std::chrono::steady_clock::now() < end) {
+    auto s = loop.latest();
+    if (seen.empty() || s->generation != seen.back()->generation) seen.push_back(s);
+    if (s->settled) break;
+    std::this_thread::sleep_for(1ms);
+  }
+  REQUIRE(seen.back()->settled);
+  bool saw_quiet = false;
+  uint64_t last_left = UINT64_MAX;
+  for (const auto& s : seen) {
+    CAPTURE(s->iteration);
+    CHECK(s->quiet == (s->quiet_steps >= uint64_t(o.slow_after)));
+    if (s->settled) {
+      CHECK(s->steps_to_settle == 0);
+      continue;
+    }
+    CHECK(s->steps_to_settle > 0);
+    if (s->quiet_steps > 0) {
+      // Quiet: exactly the quiet steps still needed (the cap of 3000 is far off).
+      CHECK(s->quiet_steps + s->steps_to_settle == uint64_t(o.settle_after));
+      CHECK(s->steps_to_settle <= last_left);  // counts down
+      last_left = s->steps_to_settle;
+    }
+    saw_quiet |= s->quiet;
+  }
+  CHECK(saw_quiet);
+  // The history: oldest first, steps increasing, capped, the newest at the settled step with its
+  // figures; shared between snapshots that add no sample.
+  const auto& last = *seen.back();
+  const auto& h = last.history->samples;
+  REQUIRE(h.size() >= 2);
+  CHECK(h.size() <= HealthHistory::kMaxSamples);
+  for (size_t k = 1; k < h.size(); ++k) CHECK(h[k].iteration > h[k - 1].iteration);
+  CHECK(h.back().iteration == last.iteration);
+  CHECK(h.back().figures.kl == last.health.kl);
+  CHECK(h.front().figures.kl > h.back().figures.kl);  // the springs relax
+  size_t shared = 0;
+  for (size_t k = 1; k < seen.size(); ++k)
+    if (seen[k]->history->samples.back().iteration == seen[k - 1]->history->samples.back().iteration) {
+      CHECK(seen[k]->history == seen[k - 1]->history);
+      ++shared;
+    }
+  CHECK(shared > 0);  // snapshots come every 16 ms, samples every 250 ms
+  // Held: nothing to go.
+  const uint64_t drag = loop.post(cmd::DragTarget{0, {10, 10, 10}});
+  const uint64_t hold = loop.post(cmd::Pause{});
+  auto s = wait_for(loop, [&](const Snapshot& s) { return s.last_command >= std::max(drag, hold); });
+  REQUIRE(s->paused);
+  CHECK(s->steps_to_settle == 0);
+  loop.stop();
 }
 
 TEST_CASE("engine loop: a heavy command runs on the helper thread while the map keeps moving") {

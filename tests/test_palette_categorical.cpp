@@ -66,3 +66,21 @@ TEST_CASE("palette: the deuteranopia simulation keeps greys and merges red with 
   CHECK(kith::ciede2000(lab_of(red, true), lab_of(green, true)) <
         0.5 * kith::ciede2000(lab_of(red, false), lab_of(green, false)));
 }
+
+TEST_CASE("palette: kith's two accents (sea green, copper) stay apart under a deuteranopia simulation on both grounds") {
+  for (const kith::Palette& p : {kith::Palette::paper(), kith::Palette::night()}) {
+    CAPTURE(p.dark);
+    for (bool deutan : {false, true}) {
+      CAPTURE(deutan);
+      // The accents mark nearer and farther on the same map: they must not merge for a deuteranope.
+      CHECK(kith::ciede2000(lab_of(p.nearer, deutan), lab_of(p.farther, deutan)) > kSmallestDifference);
+      // ... and each reads against its ground.
+      CHECK(kith::ciede2000(lab_of(p.nearer, deutan), lab_of(p.ground, deutan)) > kSmallestDifference);
+      CHECK(kith::ciede2000(lab_of(p.farther, deutan), lab_of(p.ground, deutan)) > kSmallestDifference);
+    }
+  }
+  // Neither accent is one of the common plotting defaults' blue or orange.
+  for (uint32_t hex : {kith::Palette::kSeaGreen, kith::Palette::kCopper, kith::Palette::kSeaGreenNight,
+                       kith::Palette::kCopperNight})
+    for (uint32_t common : {0x1F77B4u, 0xFF7F0Eu, 0x0072B2u, 0xE69F00u, 0xD55E00u, 0x009E73u}) CHECK(hex != common);
+}

@@ -248,3 +248,93 @@ TEST_CASE("viewer window: a pin on a plain collection starts a session beside it
 }
 
 }  // namespace
+
+TEST_CASE("viewer window: docked panels overlap neither each other nor the map area, and framing an item centres it there") {
+  KITH_SKIP_WITHOUT_XVFB();
+  for (const auto& [w, h] : {std::pair{1280, 800}, std::pair{1024, 640}}) {
+    CAPTURE(w);
+    const std::string dir = kith::test::temp_dir("viewer-docks-" + std::to_string(w));
+    // All six panels shown (S: Structure, L: Judgments with Agreement), then one item chosen
+    // by a click and framed with Z.
+    write(dir + "/script.txt", "5 key S\n6 key L\n40 dump " + dir + "/all.json\n50 move @s00017\n50 press left\n51 release left\n"
+                               "53 key Z\n90 dump " + dir + "/framed.json\n91 quit\n");
+    const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open --generate 300 --paused --size " +
+                            std::to_string(w) + "x" + std::to_string(h) + " --frames 120 --script " + dir +
+                            "/script.txt > " + dir + "/log.txt 2>&1";
+    REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+    for (const char* name : {"all.json", "framed.json"}) {
+      CAPTURE(name);
+      const auto state = load_json(dir + "/" + name);
+      CHECK(state["width"].get<int>() == w);
+      const auto area = state["map_area"].get<std::vector<float>>();
+      REQUIRE(area.size() == 4);
+      auto meet = [](const std::vector<float>& a, const std::vector<float>& b) {
+        return a[0] < b[2] && b[0] < a[2] && a[1] < b[3] && b[1] < a[3];
+      };
+      std::vector<std::vector<float>> shown;
+      for (const auto& p : state["panels"]) {
+        CAPTURE(p["name"].get<std::string>());
+        if (p["name"] == "More") continue;  // only with a hook's panel (the demo's Simulated people)
+        CHECK_FALSE(p["squeezed"].get<bool>());  // all six fit, at both sizes
+        REQUIRE(p["shown"].get<bool>());
+        const auto r = p["rect"].get<std::vector<float>>();
+        CHECK(r[0] >= 0.f);
+        CHECK(r[2] <= float(w));
+        CHECK(r[3] <= float(h));
+        CHECK_FALSE(meet(r, area));
+        for (const auto& o : shown) CHECK_FALSE(meet(r, o));
+        shown.push_back(r);
+      }
+      CHECK(shown.size() == 6);
+      CHECK_FALSE(meet(state["strip"].get<std::vector<float>>(), area));
+      CHECK(area[2] - area[0] >= 380.f);  // the map keeps the middle
+    }
+    // The clicked item is framed at the free area's centre, not the window's (the menu bar and
+    // the engine strip make them differ by about 16 px in height).
+    const auto state = load_json(dir + "/framed.json");
+    REQUIRE(state["selection"].size() == 1);
+    const std::string chosen = state["selection"][0].get<std::string>();
+    const auto area = state["map_area"].get<std::vector<float>>();
+    const float cx = (area[0] + area[2]) * 0.5f, cy = (area[1] + area[3]) * 0.5f;
+    REQUIRE(std::abs(cy - h * 0.5f) > 10.f);
+    bool found = false;
+    for (const auto& item : state["items"]) {
+      if (item["id"] != chosen) continue;
+      found = true;
+      const float x = item["x"].get<float>(), y = item["y"].get<float>();
+      CHECK(x > area[0]);
+      CHECK(x < area[2]);
+      CHECK(y > area[1]);
+      CHECK(y < area[3]);
+      CHECK(std::abs(x - cx) < 4.f);
+      CHECK(std::abs(y - cy) < 4.f);
+    }
+    CHECK(found);
+  }
+}
+
+TEST_CASE("viewer window: a panel's hide control takes it out of its column and the next one moves up") {
+  KITH_SKIP_WITHOUT_XVFB();
+  const std::string dir = kith::test::temp_dir("viewer-hide");
+  // Colours is the left column's first panel: its heading's "hide" sits at its top right corner
+  // (x 287..314, y 35..52 at 1280x800).
+  write(dir + "/script.txt", "10 dump " + dir + "/before.json\n20 move 300 43\n21 press left\n22 release left\n40 dump " +
+                                 dir + "/after.json\n41 quit\n");
+  const std::string cmd = std::string(kXvfb) + KITH_BINARY + " open --generate 300 --paused --frames 60 --script " + dir +
+                          "/script.txt > " + dir + "/log.txt 2>&1";
+  REQUIRE_MESSAGE(run(cmd) == 0, "kith open failed: see " << dir << "/log.txt");
+  auto panel = [](const nlohmann::json& state, const std::string& name) {
+    for (const auto& p : state["panels"])
+      if (p["name"] == name) return p;
+    FAIL("no panel " << name);
+    return nlohmann::json();
+  };
+  const auto before = load_json(dir + "/before.json"), after = load_json(dir + "/after.json");
+  REQUIRE(panel(before, "Colours")["shown"].get<bool>());
+  CHECK_FALSE(panel(after, "Colours")["shown"].get<bool>());
+  // Selected items now starts where Colours did.
+  CHECK(panel(after, "Selected items")["rect"][1].get<float>() ==
+        doctest::Approx(panel(before, "Colours")["rect"][1].get<float>()));
+  // The map area keeps its place (the column is still there for Selected items).
+  CHECK(after["map_area"] == before["map_area"]);
+}

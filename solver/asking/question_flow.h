@@ -26,7 +26,7 @@ namespace kith {
 
 struct Person {
   std::string name;
-  uint32_t colour = 0x0072B2;  // 0xRRGGBB
+  uint32_t colour = 0x2A7F6F;  // 0xRRGGBB (default: kith's sea green, the window's first accent)
 };
 
 enum class QuestionKind : int { kPair = 0, kGrid = 1 };

@@ -1,5 +1,7 @@
 #include "solver/live/live_loop.h"
 
+#include <algorithm>
+#include <cstdint>
 #include <stdexcept>
 #include <utility>
 
@@ -68,9 +70,39 @@ void LiveLoop::publish() {
   s->waiting_commands = pending_.size();
   s->last_rejected = last_rejected_;
   s->refusals = refusals_;
-  model_->fill(*s);  // last: the model may look at the loop's fields (e.g. settled)
+  s->quiet_steps = uint64_t(quiet_);
+  s->quiet = quiet_ >= options_.slow_after;
+  s->steps_to_settle = steps_to_settle();
+  model_->fill(*s);  // the model may look at the loop's fields (e.g. settled)
+  record_health(*s);
+  s->history = history_;
   mailbox_.publish(std::move(s));
   last_publish_ = Clock::now();
+}
+
+uint64_t LiveLoop::steps_to_settle() const {
+  if (paused_ || settled_) return 0;
+  const uint64_t cap = options_.settle_cap > 0 && since_command_ < options_.settle_cap
+                           ? options_.settle_cap - since_command_
+                           : (options_.settle_cap > 0 ? 0 : UINT64_MAX);
+  // Quiet now: the quiet steps still needed (the map rarely wakes again without a command).
+  if (quiet_ > 0 && quiet_ < options_.settle_after) return std::min<uint64_t>(cap, uint64_t(options_.settle_after - quiet_));
+  return cap == UINT64_MAX ? uint64_t(options_.settle_after) : cap;
+}
+
+void LiveLoop::record_health(const Snapshot& s) {
+  const auto now = Clock::now();
+  const auto& old = history_->samples;
+  if (!old.empty() && old.back().iteration == s.iteration) return;  // nothing new since the last sample
+  const bool due = old.empty() || s.settled ||
+                   now - last_sample_ >= std::chrono::duration<double>(HealthHistory::kSampleSeconds);
+  if (!due) return;
+  auto next = std::make_shared<HealthHistory>();
+  const size_t keep = std::min(old.size(), HealthHistory::kMaxSamples - 1);
+  next->samples.assign(old.end() - std::ptrdiff_t(keep), old.end());
+  next->samples.push_back(HealthSample{s.iteration, s.health});
+  history_ = std::move(next);
+  last_sample_ = now;
 }
 
 // ==== the worker ============================================================================

@@ -9,6 +9,10 @@
 //     others go on (the map keeps moving);
 //   - settling: after slow_after quiet iterations the worker sleeps a little between iterations,
 //     after settle_after it blocks on the inbox until any command arrives (no CPU while idle);
+//   - progress: each snapshot says how many quiet steps in a row the map has taken, whether it is
+//     quiet enough to slow down, and an estimate of the steps left before it settles; and it
+//     carries the health figures over time (a sample at most every HealthHistory::kSampleSeconds
+//     of running, and one when the map settles), shared between snapshots while unchanged;
 //   - refusals: every command the model rejects is kept (the last few) with its name and reason,
 //     and each snapshot carries them, so the window can say which command was refused and why;
 //   - replay: the same model start and the same log give the same map, because commands are
@@ -90,6 +94,8 @@ class LiveLoop {
   void log(Command c);
   void publish();
   void join_helper();
+  uint64_t steps_to_settle() const;       // the estimate each snapshot carries
+  void record_health(const Snapshot& s);  // a timeline sample, when one is due
 
   std::unique_ptr<LiveModel> model_;
   LiveLoopOptions options_;
@@ -114,6 +120,8 @@ class LiveLoop {
   std::string last_rejected_;
   std::vector<Refusal> refusals_;  // the last Snapshot::kMaxRefusals, oldest first
   std::chrono::steady_clock::time_point last_publish_{};
+  std::shared_ptr<const HealthHistory> history_ = HealthHistory::none();  // what snapshots carry
+  std::chrono::steady_clock::time_point last_sample_{};
 
   // The heavy job in flight: started by the worker, finished by the helper.
   struct Flight {

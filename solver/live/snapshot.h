@@ -23,6 +23,20 @@ struct HealthFigures {
   double neighbour_recall = -1.0;
 };
 
+// The health figures over time, for the window's timelines: a sample at most every
+// kSampleSeconds of running, the newest kMaxSamples kept, oldest first. Shared between snapshots
+// while unchanged (a new sample makes a new history); never null in a snapshot.
+struct HealthSample {
+  uint64_t iteration = 0;
+  HealthFigures figures;
+};
+struct HealthHistory {
+  static constexpr size_t kMaxSamples = 240;
+  static constexpr double kSampleSeconds = 0.25;
+  std::vector<HealthSample> samples;
+  static std::shared_ptr<const HealthHistory> none();  // the empty history
+};
+
 // A command that was not applied, and why.
 struct Refusal {
   uint64_t seq = 0;     // the command's sequence number
@@ -46,6 +60,13 @@ struct Snapshot {
   double movement = 0.0;            // mean step of the last iteration over the map's RMS radius
   bool paused = false;
   bool settled = false;             // converged and sleeping
+  uint64_t quiet_steps = 0;         // steps in a row that moved the map less than the settling tolerance
+  bool quiet = false;               // the map is quiet enough that the engine has begun to slow down
+  // An estimate of the steps left before the engine settles (0 when settled or held): the quiet
+  // steps still needed once the map is quiet, else the steps until the cap on running without a
+  // command. Divide by iterations_per_second for the time.
+  uint64_t steps_to_settle = 0;
+  std::shared_ptr<const HealthHistory> history = HealthHistory::none();
   bool rebuilding = false;          // a heavy rebuild (perplexity, new items) runs on the helper thread
   size_t waiting_commands = 0;      // taken from the inbox but waiting for that rebuild
   std::string last_rejected;        // why the most recent rejected command was rejected ("" if none)

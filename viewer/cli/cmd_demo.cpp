@@ -65,7 +65,7 @@ const char* const kOptions =
     "  --library DIR         the sample library's folder (default: $XDG_CACHE_HOME/kith/demo or\n"
     "                        ~/.cache/kith/demo)\n"
     "  --no-window           the headless run even when there is a display\n"
-    "  --size WxH            picture size of the headless run (default: 1280x800)\n";
+    "  --size WxH            picture size of the headless run, and the window's size (default: 1280x800)\n";
 const char* const kHidden = "--frames N, --script FILE, --screenshot FILE";  // test hooks, not in the help
 
 struct DemoData {
@@ -344,6 +344,8 @@ int cmd_demo(const Args& args) {
   const std::string library = flags.text("--library", default_sample_folder());
   std::string out_dir = flags.text("--out");
   const bool no_window = flags.has("--no-window");
+  // The window takes the size too when it is given (e.g. to look at it at 1024x640).
+  if (flags.has("--size")) hidden.width = width, hidden.height = height;
   hidden.script = flags.text("--script");
   hidden.screenshot = flags.text("--screenshot");
 

@@ -232,8 +232,15 @@ figcaption{font-size:13px;color:#5a554b;margin-top:4px;max-width:560px}
 .sw.ring{background:none!important;border:3px solid}.sw.square{border-radius:0}.sw.diamond{border-radius:0;transform:rotate(45deg) scale(.85)}
 .ramp{display:inline-block;width:160px;height:11px;margin:0 6px;vertical-align:-1px}
 .lbl{font:bold 14px system-ui,sans-serif;fill:#222;paint-order:stroke;stroke:#fbf9f4;stroke-width:3px}
-.bar{display:inline-block;height:9px;background:#b8683a;vertical-align:0}
+.bar{display:inline-block;height:9px;vertical-align:0}
 )";
+
+// kith's copper accent (Palette::kCopper) for the bars, the same as the window's.
+std::string accent_style() {
+  char css[96];
+  std::snprintf(css, sizeof css, ".bar{background:#%06X}", unsigned(Palette::kCopper));
+  return css;
+}
 
 }  // namespace
 
@@ -243,7 +250,7 @@ std::string report_html(const ReportContent& c) {
   const bool have_tags = c.tags.size() == n && n > 0;
   std::ostringstream h;
   h << "<!DOCTYPE html>\n<html lang='en'><head><meta charset='utf-8'><title>kith report: " << html_escape(c.title)
-    << "</title><style>" << kStyle << "</style></head><body>\n";
+    << "</title><style>" << kStyle << accent_style() << "</style></head><body>\n";
   h << "<h1 id='kith-report'>" << html_escape(c.title) << "</h1><p class='note'>" << n << " items from "
     << html_escape(c.source) << (have_tags ? "; tag column '" + html_escape(c.tag_name) + "'" : std::string())
     << "</p>\n";

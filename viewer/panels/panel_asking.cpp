@@ -363,7 +363,8 @@ void AskingPanel::draw_people(float top) {
   ImGui::SetNextWindowBgAlpha(1.f);
   const bool open = ImGui::Begin("People", nullptr,
                                  ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoMove |
-                                     ImGuiWindowFlags_NoFocusOnAppearing | ImGuiWindowFlags_NoResize);
+                                     ImGuiWindowFlags_NoFocusOnAppearing | ImGuiWindowFlags_NoResize |
+                                     ImGuiWindowFlags_NoCollapse);
   people_rect_ = window_rect();
   note_region("people", people_rect_);
   if (!open) return ImGui::End();
@@ -813,10 +814,12 @@ void AskingPanel::draw_grid() {
 
 void AskingPanel::draw_own(float top) {
   const ImGuiIO& io = ImGui::GetIO();
-  // With the panels shown (top > 0), clear of the Selection panel in the bottom-left corner.
-  const float half = own_rect_.width() * 0.5f;
-  const float cx = top > 0.f ? std::max(io.DisplaySize.x * 0.5f, kSelectionPanelInset + kSelectionPanelWidth + 10.f + half) : io.DisplaySize.x * 0.5f;
-  ImGui::SetNextWindowPos(ImVec2(cx, io.DisplaySize.y - 10), ImGuiCond_Always, ImVec2(0.5f, 1.f));
+  // At the bottom of the free map area, clear of the docked panels and the engine strip.
+  const bool area = free_area_.x1 > free_area_.x0 && free_area_.y1 > free_area_.y0;
+  const float cx = area ? (free_area_.x0 + free_area_.x1) * 0.5f : io.DisplaySize.x * 0.5f;
+  const float bottom = area ? free_area_.y1 - 10.f : io.DisplaySize.y - 10.f;
+  if (area) ImGui::SetNextWindowSizeConstraints(ImVec2(0, 0), ImVec2(free_area_.x1 - free_area_.x0 - 12.f, FLT_MAX));
+  ImGui::SetNextWindowPos(ImVec2(cx, bottom), ImGuiCond_Always, ImVec2(0.5f, 1.f));
   ImGui::SetNextWindowBgAlpha(1.f);
   ImGui::Begin("Your own judgment", nullptr,
                ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoMove |

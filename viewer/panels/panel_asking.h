@@ -65,6 +65,9 @@ class AskingPanel {
   // The screens; call between ImGui::NewFrame and ImGui::Render. `top` is below the menu bar.
   // `inv_scale` turns framebuffer pixels into ImGui pixels.
   void draw(float top, float inv_scale);
+  // The part of the window the docked panels leave to the map (window pixels): the own-judgment
+  // window sits at its bottom, clear of every panel.
+  void set_free_area(float x0, float y0, float x1, float y1) { free_area_ = {x0, y0, x1, y1}; }
   // Height of the band at the bottom in ImGui pixels (0 when no question screen is up).
   float band_height() const;
   // Frames the map in the part of the window above the question band.
@@ -120,6 +123,7 @@ class AskingPanel {
   std::string status_message_, status_notice_;
   std::function<void()> dismiss_notice_;
   ScreenRect banner_rect_, people_rect_, own_rect_;
+  ScreenRect free_area_;  // empty: the whole window
 
   const Collection& collection_;
   MapView& view_;

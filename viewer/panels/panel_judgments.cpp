@@ -256,54 +256,44 @@ bool JudgmentsPanel::export_csv(const std::string& path, bool include_retracted,
 
 // ============================================================================ [SECTION] drawing
 
-void JudgmentsPanel::draw(bool* open) {
-  const ImGuiIO& io = ImGui::GetIO();
-  const float top = ImGui::GetFrameHeight() + 8;
-  const float width = std::min(640.f, io.DisplaySize.x - 40.f);
-  const float x = std::max(10.f, std::min(330.f, io.DisplaySize.x - width - 10.f));
-  const float list_h = std::max(200.f, (io.DisplaySize.y - top) * 0.52f);
+void JudgmentsPanel::draw(bool* open, const DockRect& list, const DockRect& agreement) {
   // Figures: when the map or the judgments changed, at most every two seconds.
   const auto s = view_.snapshot();
   if (now_ >= figures_due_ && (!s || s->generation != figures_generation_ || figures_due_ == 0.0)) {
     compute_figures();
     figures_due_ = now_ + 2.0;
   }
-  ImGui::SetNextWindowPos(ImVec2(x, top), ImGuiCond_FirstUseEver);
-  ImGui::SetNextWindowSize(ImVec2(width, list_h), ImGuiCond_FirstUseEver);
-  if (ImGui::Begin("Judgments", open)) {
-    if (ImGui::BeginTabBar("judgment tabs")) {
-      auto flags = [&](Tab t) { return tab_pending_ && wanted_tab_ == t ? ImGuiTabItemFlags_SetSelected : 0; };
-      if (ImGui::BeginTabItem("List", nullptr, flags(Tab::kList))) {
-        tab_list();
-        ImGui::EndTabItem();
-      }
-      if (ImGui::BeginTabItem("Files", nullptr, flags(Tab::kFiles))) {
-        tab_files();
-        ImGui::EndTabItem();
-      }
-      if (ImGui::TabItemButton(show_agreement_ ? "Agreement: hide" : "Agreement: show", ImGuiTabItemFlags_Trailing))
-        show_agreement_ = !show_agreement_;
-      ImGui::EndTabBar();
+  begin_docked("Judgments", list, open);
+  if (ImGui::BeginTabBar("judgment tabs")) {
+    auto flags = [&](Tab t) { return tab_pending_ && wanted_tab_ == t ? ImGuiTabItemFlags_SetSelected : 0; };
+    if (ImGui::BeginTabItem("List", nullptr, flags(Tab::kList))) {
+      tab_list();
+      ImGui::EndTabItem();
     }
+    if (ImGui::BeginTabItem("Files", nullptr, flags(Tab::kFiles))) {
+      tab_files();
+      ImGui::EndTabItem();
+    }
+    if (ImGui::TabItemButton(show_agreement_ ? "agreement: hide" : "agreement: show", ImGuiTabItemFlags_Trailing))
+      show_agreement_ = !show_agreement_;
+    ImGui::EndTabBar();
   }
-  ImGui::End();
+  end_docked();
   if (tab_pending_ && wanted_tab_ == Tab::kAgreement) show_agreement_ = true;
   tab_pending_ = false;
-  if (!show_agreement_) return;
-  ImGui::SetNextWindowPos(ImVec2(x, top + list_h + 8), ImGuiCond_FirstUseEver);
-  ImGui::SetNextWindowSize(ImVec2(width, std::max(200.f, io.DisplaySize.y - top - list_h - 18)),
-                           ImGuiCond_FirstUseEver);
-  if (ImGui::Begin("Agreement", &show_agreement_)) tab_agreement();
-  ImGui::End();
+  if (!show_agreement_ || agreement.empty()) return;
+  begin_docked("Agreement", agreement, &show_agreement_);
+  tab_agreement();
+  end_docked();
 }
 
 void JudgmentsPanel::tab_list() {
   const auto& all = view_.judgments();
   rows();
-  // Filters.
-  ImGui::SetNextItemWidth(150);
+  // Filters: by whom, which items, and the retracted ones as a chip.
+  ImGui::SetNextItemWidth(std::min(150.f, ImGui::GetContentRegionAvail().x * 0.45f));
   const std::string current = filter_.any_person ? "everyone" : person_label(filter_.person);
-  if (ImGui::BeginCombo("person", current.c_str())) {
+  if (ImGui::BeginCombo("##person", current.c_str())) {
     if (ImGui::Selectable("everyone", filter_.any_person)) filter().any_person = true;
     for (const std::string& p : people_names_)
       if (ImGui::Selectable(person_label(p).c_str(), !filter_.any_person && filter_.person == p)) {
@@ -312,15 +302,18 @@ void JudgmentsPanel::tab_list() {
       }
     ImGui::EndCombo();
   }
+  if (ImGui::IsItemHovered()) ImGui::SetTooltip("whose judgments to list");
   ImGui::SameLine();
-  ImGui::SetNextItemWidth(150);
-  if (ImGui::InputTextWithHint("item", "part of an id", item_text_, sizeof item_text_)) filter().item = item_text_;
-  ImGui::SameLine();
+  ImGui::SetNextItemWidth(-1.f);
+  if (ImGui::InputTextWithHint("##item", "item: part of an id", item_text_, sizeof item_text_)) filter().item = item_text_;
   bool show_retracted = filter_.show_retracted;
-  if (ImGui::Checkbox("retracted too", &show_retracted)) filter().show_retracted = show_retracted;
+  if (chip("retracted too", &show_retracted)) filter().show_retracted = show_retracted;
   const auto& r = rows();
-  ImGui::TextDisabled("%zu shown of %zu  (%zu retracted)   ctrl + up/down: choose,  Delete: retract / restore",
-                      r.size(), all.size(), retracted_count_);
+  ImGui::SameLine();
+  ImGui::TextDisabled("%zu shown of %zu  (%zu retracted)", r.size(), all.size(), retracted_count_);
+  ImGui::PushTextWrapPos(0.f);
+  ImGui::TextDisabled("ctrl + up / down: choose,  Delete: retract / restore");
+  ImGui::PopTextWrapPos();
   if (!problem_.empty()) ImGui::TextColored(ImVec4(0.80f, 0.25f, 0.15f, 1.f), "%s", problem_.c_str());
 
   const ImGuiTableFlags flags = ImGuiTableFlags_ScrollY | ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV |
@@ -514,23 +507,23 @@ void JudgmentsPanel::tab_agreement() {
 }
 
 void JudgmentsPanel::tab_files() {
-  ImGui::TextUnformatted("Import judgments from a CSV file (anchor,nearer,farther,person,time,kind; items by id)");
-  ImGui::SetNextItemWidth(-150);
+  ImGui::TextWrapped("Import judgments from a CSV file (anchor,nearer,farther,person,time,kind; items by id)");
+  ImGui::SetNextItemWidth(-80);
   ImGui::InputTextWithHint("##import", "path/to/judgments.csv", import_path_, sizeof import_path_);
   ImGui::SameLine();
   if (ImGui::Button("Import")) import_csv(import_path_, skip_bad_rows_);
-  ImGui::Checkbox("skip bad rows (otherwise a file with any bad row imports nothing)", &skip_bad_rows_);
+  chip("skip bad rows", &skip_bad_rows_);
+  if (ImGui::IsItemHovered()) ImGui::SetTooltip("otherwise a file with any bad row imports nothing");
   ImGui::Separator();
-  ImGui::TextUnformatted("Export the judgments to a CSV file");
-  ImGui::SetNextItemWidth(-150);
+  ImGui::TextWrapped("Export the judgments to a CSV file");
+  ImGui::SetNextItemWidth(-80);
   ImGui::InputTextWithHint("##export", "path/to/judgments.csv", export_path_, sizeof export_path_);
   ImGui::SameLine();
   if (ImGui::Button("Export")) export_csv(export_path_, export_retracted_, export_people_, export_replace_);
-  ImGui::Checkbox("retracted too", &export_retracted_);
+  chip("retracted too", &export_retracted_);
   ImGui::SameLine();
-  ImGui::Checkbox("with people's names", &export_people_);
-  ImGui::SameLine();
-  ImGui::Checkbox("replace an existing file", &export_replace_);
+  chip("with people's names", &export_people_);
+  chip("replace an existing file", &export_replace_);
   ImGui::Separator();
   if (ImGui::BeginChild("messages", ImVec2(0, 0), false)) {
     for (const std::string& m : file_messages_) ImGui::TextWrapped("%s", m.c_str());

@@ -29,6 +29,7 @@
 #include "solver/live/commands.h"
 #include "solver/live/snapshot.h"
 #include "solver/measures/judgment_review.h"
+#include "viewer/scene/dock_layout.h"
 #include "viewer/scene/map_view.h"
 
 namespace kith {
@@ -51,7 +52,11 @@ class JudgmentsPanel {
   JudgmentsPanel(const Collection& collection, MapView& view, JudgmentsPanelLinks links);
 
   // Draws the panel (an ImGui window) while *open.
-  void draw(bool* open);
+  // Draws the list docked at `list` and, while shown, the agreement at `agreement` (window pixels,
+  // kith's chrome; an empty rect leaves it out this frame).
+  void draw(bool* open, const DockRect& list, const DockRect& agreement);
+  bool agreement_shown() const { return show_agreement_; }
+  void show_agreement(bool on) { show_agreement_ = on; }
   void show_tab(Tab tab) { wanted_tab_ = tab, tab_pending_ = true; }
   // Once per frame, open or not: samples agreement for the chart every sample_seconds.
   void tick(double now_seconds);

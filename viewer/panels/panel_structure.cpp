@@ -62,7 +62,7 @@ void StructurePanel::poll() {
     found_ = job_.get();
     found_iteration_ = job_iteration_;
     char buf[96];
-    std::snprintf(buf, sizeof buf, "the map at iteration %llu", static_cast<unsigned long long>(found_iteration_));
+    std::snprintf(buf, sizeof buf, "the map at step %llu", static_cast<unsigned long long>(found_iteration_));
     status_ = buf;
   } catch (const std::exception& e) {
     job_ = {};
@@ -87,23 +87,23 @@ void StructurePanel::choose_suspect(int item) {
   view_.selection_changed();
 }
 
-void StructurePanel::draw(bool* open) {
+void StructurePanel::draw(bool* open, const DockRect& rect) {
   poll();
   if (!looked_once_) {
     looked_once_ = true;
     look();
   }
-  // Beside the legend, clear of the right-hand panels.
-  ImGui::SetNextWindowPos(ImVec2(200, 40), ImGuiCond_FirstUseEver);
-  ImGui::SetNextWindowSize(ImVec2(430, 560), ImGuiCond_FirstUseEver);
-  if (!ImGui::Begin("Structure", open)) return ImGui::End();
+  begin_docked("Structure", rect, open);
   if (ImGui::Button(busy() ? "Looking..." : "Look again")) look();
   if (ImGui::IsItemHovered()) ImGui::SetTooltip("find suspects, groups and neighbourhoods in the map as it is now");
   ImGui::SameLine();
   ImGui::TextDisabled("%s", status_.c_str());
   if (!collection_.tags.empty()) {
-    ImGui::SetNextItemWidth(140);
-    if (ImGui::BeginCombo("tag", collection_.tags[size_t(tag_column_)].name.c_str())) {
+    ImGui::AlignTextToFramePadding();
+    ImGui::TextDisabled("tag");
+    ImGui::SameLine();
+    ImGui::SetNextItemWidth(-1.f);
+    if (ImGui::BeginCombo("##tag", collection_.tags[size_t(tag_column_)].name.c_str())) {
       for (size_t t = 0; t < collection_.tags.size(); ++t)
         if (ImGui::Selectable(collection_.tags[t].name.c_str(), int(t) == tag_column_)) {
           tag_column_ = int(t);
@@ -111,12 +111,9 @@ void StructurePanel::draw(bool* open) {
         }
       ImGui::EndCombo();
     }
-    ImGui::SameLine();
   }
-  static const char* kSpaces[] = {"features", "map", "both"};
   int space = int(options_.suspects.space);
-  ImGui::SetNextItemWidth(100);
-  if (ImGui::Combo("neighbours in", &space, kSpaces, 3)) {
+  if (chip_choice("neighbours in", &space, {"features", "map", "both"})) {
     options_.suspects.space = SuspectSpace(space);
     look();
   }
@@ -139,7 +136,7 @@ void StructurePanel::draw(bool* open) {
     }
     ImGui::EndTabBar();
   }
-  ImGui::End();
+  end_docked();
 }
 
 void StructurePanel::tab_suspects() {

@@ -23,6 +23,7 @@
 #include "solver/io/collection.h"
 #include "solver/measures/displacement.h"
 #include "solver/measures/map_findings.h"
+#include "viewer/scene/dock_layout.h"
 #include "viewer/scene/map_view.h"
 
 namespace kith {
@@ -31,8 +32,9 @@ class StructurePanel {
  public:
   StructurePanel(const Collection& collection, MapView& view);
   ~StructurePanel();  // waits for a running look
-  // Draws the panel (an ImGui window) while *open; the first draw starts a look at the map.
-  void draw(bool* open);
+  // Draws the panel docked at `rect` (window pixels) in kith's chrome ("hide" clears *open); the
+  // first draw starts a look at the map.
+  void draw(bool* open, const DockRect& rect);
   // Starts a new look at the map shown now (no-op while one runs).
   void look();
   bool busy() const { return job_.valid(); }

@@ -65,8 +65,8 @@ void Camera::fit(const glm::vec3& lo, const glm::vec3& hi, bool smooth) {
   g.target = (lo + hi) * 0.5f;
   const float radius = std::max(glm::length(hi - lo) * 0.5f, 1e-7f);
   const float half_fov_y = glm::radians(kFovYDegrees) / 2.f;
-  const float half_fov_x = std::atan(std::tan(half_fov_y) * float(width_) / float(height_) * (1.f - std::abs(centre_offset_)));
-  const float half = std::min(half_fov_x, half_fov_y);
+  const float half_fov_x = std::atan(std::tan(half_fov_y) * float(width_) / float(height_) * share_x_);
+  const float half = std::min(half_fov_x, std::atan(std::tan(half_fov_y) * share_y_));
   g.distance = radius / std::sin(half) * 1.02f;
   if (smooth)
     glide_to(g);
@@ -86,9 +86,9 @@ void Camera::fit_points(const std::vector<glm::vec3>& points, bool smooth, float
   const glm::vec3 f = -eye_dir;
   const glm::vec3 right = glm::normalize(glm::cross(f, glm::vec3(0, 1, 0)));
   const glm::vec3 up = glm::cross(right, f);
-  const float tan_y = std::tan(glm::radians(kFovYDegrees) / 2.f) * (1.f - margin);
+  const float tan_y = std::tan(glm::radians(kFovYDegrees) / 2.f) * (1.f - margin) * share_y_;
   const float tan_x = std::tan(glm::radians(kFovYDegrees) / 2.f) * float(width_) / float(height_) * (1.f - margin) *
-                      (1.f - std::abs(centre_offset_));
+                      share_x_;
   float d = 1e-3f;
   for (const auto& p : points) {
     const glm::vec3 o = p - g.target;
@@ -125,12 +125,27 @@ glm::vec3 Camera::forward() const { return glm::normalize(pose_.target - eye());
 glm::mat4 Camera::view() const { return glm::lookAt(eye(), pose_.target, glm::vec3(0, 1, 0)); }
 
 glm::mat4 Camera::projection() const {
-  // Clip-space x += offset * w, i.e. normalized device x += offset.
-  const glm::mat4 shift = glm::translate(glm::mat4(1.f), glm::vec3(centre_offset_, 0.f, 0.f));
+  // Clip-space x += cx * w (and y), i.e. normalized device x += cx: the target lands at the free area's centre.
+  const glm::mat4 shift = glm::translate(glm::mat4(1.f), glm::vec3(centre_x_, centre_y_, 0.f));
   return shift * glm::perspective(glm::radians(kFovYDegrees), float(width_) / float(height_), near_plane(), far_plane());
 }
 
-void Camera::set_centre_offset(float ndc_x) { centre_offset_ = std::clamp(ndc_x, -0.6f, 0.6f); }
+void Camera::set_centre_offset(float ndc_x) {
+  centre_x_ = std::clamp(ndc_x, -0.6f, 0.6f);
+  centre_y_ = 0.f;
+  share_x_ = 1.f - std::abs(centre_x_);
+  share_y_ = 1.f;
+}
+
+void Camera::set_free_area(float x0, float y0, float x1, float y1) {
+  const float w = float(width_), h = float(height_);
+  x0 = std::clamp(x0, 0.f, w), x1 = std::clamp(x1, 0.f, w), y0 = std::clamp(y0, 0.f, h), y1 = std::clamp(y1, 0.f, h);
+  if (x1 - x0 < 1.f || y1 - y0 < 1.f) x0 = 0.f, y0 = 0.f, x1 = w, y1 = h;
+  share_x_ = (x1 - x0) / w;
+  share_y_ = (y1 - y0) / h;
+  centre_x_ = (x0 + x1) / w - 1.f;
+  centre_y_ = 1.f - (y0 + y1) / h;
+}
 
 Projected Camera::project(const glm::vec3& world) const {
   Projected out;

@@ -35,11 +35,19 @@ class Camera {
   static constexpr float kFovYDegrees = 40.f;
 
   void set_viewport(int width, int height);
-  // Moves the picture's centre sideways by `ndc_x` (in normalized device units, -0.6..0.6): the
-  // window uses it to centre the map in the part the side panels leave free. Fitting then uses
-  // the narrower free width. Every projection (drawing, picking, dragging) goes through it.
+  // The free area: the part of the viewport the docked panels leave to the map, in viewport
+  // pixels (top-left origin). The projection is shifted off centre so the target is drawn at the
+  // area's centre, and fitting uses the area's width and height (the scale stays that of the whole
+  // viewport, so items keep their size). Every projection (drawing, picking, dragging) goes
+  // through it. An empty or inverted area means the whole viewport.
+  void set_free_area(float x0, float y0, float x1, float y1);
+  // The same for a free area flush with one side: the centre moved sideways by `ndc_x`
+  // (normalized device units, -0.6..0.6), the free width 1 - |ndc_x| of the whole.
   void set_centre_offset(float ndc_x);
-  float centre_offset() const { return centre_offset_; }
+  float centre_offset() const { return centre_x_; }
+  // The free area's centre in normalized device units and its share of the viewport's width and height.
+  glm::vec2 free_centre_ndc() const { return {centre_x_, centre_y_}; }
+  glm::vec2 free_share() const { return {share_x_, share_y_}; }
   int width() const { return width_; }
   int height() const { return height_; }
 
@@ -87,7 +95,8 @@ class Camera {
   CameraPose pose_, goal_;
   int width_ = 1280, height_ = 800;
   uint64_t framing_changes_ = 0;
-  float centre_offset_ = 0.f;
+  float centre_x_ = 0.f, centre_y_ = 0.f;  // the free area's centre, normalized device units
+  float share_x_ = 1.f, share_y_ = 1.f;    // its share of the viewport's width and height
 };
 
 }  // namespace kith

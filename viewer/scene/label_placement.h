@@ -19,6 +19,8 @@ struct ScreenRect {
   float overlap(const ScreenRect& o) const;
   bool overlaps(const ScreenRect& o) const { return overlap(o) > 0.f; }
   bool inside(const ScreenRect& o) const { return x0 >= o.x0 && y0 >= o.y0 && x1 <= o.x1 && y1 <= o.y1; }
+  bool empty() const { return x1 <= x0 || y1 <= y0; }
+  bool contains(float x, float y) const { return x >= x0 && x <= x1 && y >= y0 && y <= y1; }
 };
 
 struct LabelRequest {

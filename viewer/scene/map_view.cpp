@@ -158,6 +158,13 @@ void MapView::set_centre_offset(float ndc_x) {
     fit_all(true, false);
 }
 
+void MapView::set_free_area(float x0, float y0, float x1, float y1) {
+  const glm::vec2 c = camera_.free_centre_ndc(), f = camera_.free_share();
+  camera_.set_free_area(x0, y0, x1, y1);
+  const bool changed = camera_.free_centre_ndc() != c || camera_.free_share() != f;
+  if (changed && following_ && camera_.framing_changes() == framing_at_fit_ && have_bounds_) fit_all(true, false);
+}
+
 void MapView::focus_selection() {
   if (selection_.empty()) return fit_all(true);
   following_ = false;

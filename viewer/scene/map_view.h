@@ -78,6 +78,8 @@ class MapView {
   void fit_all(bool smooth = true, bool by_person = true);
   // Camera::set_centre_offset; a view that follows the map reframes it when the offset changes.
   void set_centre_offset(float ndc_x);
+  // Camera::set_free_area (viewport pixels), refitting a followed view in the same way.
+  void set_free_area(float x0, float y0, float x1, float y1);
   void focus_selection();
   bool auto_rotate = false;
   float rotate_speed = 0.12f;  // radians per second

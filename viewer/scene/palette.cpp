@@ -69,15 +69,16 @@ Rgb Palette::ramp(float t) const {
 }
 
 // Each ground's colours in the order of the struct: ground, ink, faint, muted, nearer, farther,
-// card frame.
+// card frame. kith's two accents are nearer and farther: a sea green and a copper (also the
+// window's controls and timelines, viewer/panels/ui_style.cpp).
 Palette Palette::paper() {
   return {rgb_hex(0xF3EFE6), rgb_hex(0x2B2A28), rgb_hex(0xD9D3C5), rgb_hex(0xA8A49B),
-          rgb_hex(0x009E73), rgb_hex(0xD55E00), rgb_hex(0xFFFDF8), false};
+          rgb_hex(kSeaGreen), rgb_hex(kCopper), rgb_hex(0xFFFDF8), false};
 }
 
 Palette Palette::night() {
   return {rgb_hex(0x1F2226), rgb_hex(0xECE8DF), rgb_hex(0x343A40), rgb_hex(0x6B6F75),
-          rgb_hex(0x2BC59A), rgb_hex(0xF07B3F), rgb_hex(0x2E3238), true};
+          rgb_hex(kSeaGreenNight), rgb_hex(kCopperNight), rgb_hex(0x2E3238), true};
 }
 
 }  // namespace kith

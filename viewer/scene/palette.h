@@ -35,7 +35,11 @@ struct Palette {
   static constexpr std::array<uint32_t, 12> kCategorical = {0x0078A5, 0xB4B400, 0x005A0F, 0xFF87C3,
                                                             0x4B9669, 0x78A5FF, 0x96005A, 0xA55A00,
                                                             0xE10096, 0x0000FF, 0xF09696, 0x004B96};
-  static constexpr uint32_t kOther = 0xB4B0A8;  // values past the table, in pictures and the report
+  static constexpr uint32_t kOther = 0xB4B0A8;
+  // kith's accents (judgment lines, the window's controls and timelines): a sea green and a
+  // copper, each a little lighter on the night ground.
+  static constexpr uint32_t kSeaGreen = 0x2A7F6F, kCopper = 0xB0602C;
+  static constexpr uint32_t kSeaGreenNight = 0x4DB39E, kCopperNight = 0xD98A52;  // values past the table, in pictures and the report
   Rgb category(int k) const {
     if (k < 0) return muted;
     return rgb_hex(kCategorical[size_t(k) % kCategorical.size()]);

@@ -94,7 +94,7 @@ void App::toggle_pause() {
     say("running");
   } else {
     post(cmd::Pause{});
-    say("paused");
+    say("held");
   }
 }
 
@@ -268,13 +268,6 @@ int run_window(const Collection& collection, MapFeed& given, const WindowOptions
         app.view->set_snapshot(s);
         app.settings.update(*s, app.seconds());
         if (app.hooks.on_snapshot) app.hooks.on_snapshot(s);
-        if (now - app.last_health > std::chrono::milliseconds(250)) {
-          app.last_health = now;
-          app.kl.add(float(s->health.kl));
-          if (s->health.judgment_agreement >= 0) app.agreement.add(float(s->health.judgment_agreement));
-          if (s->health.trustworthiness >= 0) app.trust.add(float(s->health.trustworthiness));
-          if (s->health.neighbour_recall >= 0) app.recall.add(float(s->health.neighbour_recall));
-        }
       }
       app.judgments_panel->tick(std::chrono::duration<double>(now - app.started).count());
       if (app.scripted) app.apply_script_events();
@@ -287,6 +280,19 @@ int run_window(const Collection& collection, MapFeed& given, const WindowOptions
         for (int b = 0; b < 3; ++b) io.MouseDown[b] = app.scripted_down[b];
       }
       ImGui::NewFrame();
+      app.lay_out_docks();
+      // The camera frames the free map area (framebuffer pixels), so fitting and flying to an item
+      // centre it there and not under a panel. A question screen frames the map itself, between
+      // its banner and its band (AskingPanel::frame_map), on the whole window.
+      {
+        const DockRect& m = app.dock.map_area;
+        glfwGetFramebufferSize(app.window, &fbw, &fbh);
+        app.view->camera().set_viewport(fbw, fbh);
+        if (app.asking && app.asking->desk().asking())
+          app.view->set_free_area(0.f, 0.f, float(fbw), float(fbh));
+        else
+          app.view->set_free_area(m.x0 * app.fb_scale, m.y0 * app.fb_scale, m.x1 * app.fb_scale, m.y1 * app.fb_scale);
+      }
       app.process_queue();
       app.interaction->per_frame();
       if (app.show_panels) app.panels();
@@ -294,9 +300,6 @@ int run_window(const Collection& collection, MapFeed& given, const WindowOptions
       ImGui::Render();
 
       glfwGetFramebufferSize(app.window, &fbw, &fbh);
-      // Centre the map in the part the right-hand panels (300 px and margins) leave free.
-      if (io.DisplaySize.x > 0.f)
-        app.view->set_centre_offset(app.show_panels ? -320.f / io.DisplaySize.x : 0.f);
       app.view->frame(dt, fbw, fbh);
       if (app.pictures_in_at == 0 && app.view->atlas() && !app.view->atlas()->loading())
         app.pictures_in_at = app.frame_seconds.size();

@@ -1,7 +1,7 @@
 // App: the state of one map window, shared by the files that make the window up:
 //   app.cpp          run_window(): set-up, the loop (poll / new frame / panels / draw / swap), tear-down
 //   input.cpp        GLFW callbacks, scripted events, keys (through the key table, key_table.h)
-//   panels.cpp       menu, map controls, health, selection, tooltip, release choice, help, notice
+//   panels.cpp       menu, the docked panels, the engine strip, tooltip, release choice, help, notice
 //   state_dump.cpp   the JSON state file and pictures the window tests read
 // Only viewer/window includes this. Main (window) thread only.
 #pragma once
@@ -17,6 +17,7 @@
 #include "viewer/panels/panel_asking.h"
 #include "viewer/panels/panel_judgments.h"
 #include "viewer/panels/panel_structure.h"
+#include "viewer/scene/dock_layout.h"
 #include "viewer/scene/map_settings.h"
 #include "viewer/scene/undo_feed.h"
 #include "viewer/window/app.h"
@@ -28,14 +29,17 @@ namespace kith {
 
 using Clock = std::chrono::steady_clock;
 
-// A short history of one health figure for the small plots.
-struct History {
-  std::vector<float> values;
-  void add(float v) {
-    values.push_back(v);
-    if (values.size() > 240) values.erase(values.begin());
-  }
+// The docked panels (viewer/scene/dock_layout.h), left column first, then the right.
+enum DockId {
+  kDockColours, kDockSelected, kDockStructure,                   // left
+  kDockMap, kDockMore, kDockJudgments, kDockAgreement, kDockCount  // right
 };
+constexpr int kDockRightFirst = kDockMap;
+constexpr const char* kDockNames[kDockCount] = {"Colours", "Selected items", "Structure", "Map",
+                                                "More", "Judgments", "Agreement"};
+constexpr float kStripHeight = 54.f;        // the engine strip along the bottom
+constexpr float kLeftColumnWidth = 320.f;   // the columns' widths when the window has room
+constexpr float kRightColumnWidth = 320.f;
 
 // An input event from GLFW or the script, handled after ImGui has seen the frame's input.
 struct QueuedEvent {
@@ -81,6 +85,10 @@ struct App {
 
   // Panels.
   bool show_panels = true, show_help = false, focus_search = false;
+  bool show_colours = true, show_selected = true, show_map = true, show_more = true, show_strip = true;
+  bool show_advanced = false, show_all_selected = false;  // the folds in Map and Selected items
+  DockLayout dock;                       // this frame's places (lay_out_docks), in window pixels
+  float dock_wanted[kDockCount] = {};    // the height each panel's content took last frame
   char search_text[128] = "";
   std::vector<int> search_hits;
   int tag_column_choice = 0;
@@ -92,8 +100,6 @@ struct App {
 
   // Figures.
   uint64_t last_generation = 0;
-  History kl, agreement, trust, recall;
-  Clock::time_point last_health = Clock::now() - std::chrono::seconds(1);
   std::vector<double> frame_seconds;
   size_t pictures_in_at = 0;  // frame_seconds.size() when the last picture reached the atlas (0: not yet)
   float fps = 0.f;
@@ -123,11 +129,16 @@ struct App {
   void apply_script_events();
   void process_queue();
   // panels.cpp
+  void lay_out_docks();  // before the frame's panels and the camera's free area
   void panels();
+  void menu_bar();
+  void panel_colours();
   void panel_map();
-  void setting_sliders();
-  void panel_health();
+  void setting_sliders(bool blend);  // the blend's balance, or the advanced ones
   void panel_selection();
+  void engine_strip(const DockRect& rect);
+  std::string engine_progress(const Snapshot* s) const;  // "140 steps per second, about 3 s to go"
+
   void overlays();
   void help_overlay();
   void notice_line();

@@ -343,7 +343,7 @@ const std::vector<KeyRow> kTable = {
     about("O", "own judgment: click anchor, nearer, farther; Enter stores"),
     about("B", "big type for a shared screen"),
     // ---- the map ----
-    {"F", "fit the whole map", {any(keys::letter('f'))}, nullptr,
+    {"F", "frame the whole map", {any(keys::letter('f'))}, nullptr,
      [](App& a, int, int) {
        a.asking && a.asking->desk().asking() ? a.asking->frame_map() : a.view->fit_all(true);
        return true;
@@ -353,25 +353,25 @@ const std::vector<KeyRow> kTable = {
       ctrl(keys::letter('y'))},
      nullptr,
      [](App& a, int key, int mods) { return a.undo(key == keys::letter('y') || (mods & kShift)), true; }},
-    {"Z", "zoom to the selection", {any(keys::letter('z'))}, nullptr,
+    {"Z", "frame the selection", {any(keys::letter('z'))}, nullptr,
      [](App& a, int, int) { return a.view->focus_selection(), true; }},
     {"R", "slow turn on/off", {plain(keys::letter('r'))}, nullptr,
      [](App& a, int, int) {
        a.view->auto_rotate = !a.view->auto_rotate;
        return a.say(a.view->auto_rotate ? "slow turn on" : "slow turn off"), true;
      }},
-    {"Space", "pause / resume the optimization", {any(keys::kSpace)}, nullptr,
+    {"Space", "hold / run the engine", {any(keys::kSpace)}, nullptr,
      [](App& a, int, int) { return a.toggle_pause(), true; }},
-    {"shift + R", "restart from the start map", {shifted(keys::letter('r'))}, nullptr,
-     [](App& a, int, int) { return a.post(cmd::Restart{}), a.say("restarted from the start map"), true; }},
+    {"shift + R", "start over from the start map", {shifted(keys::letter('r'))}, nullptr,
+     [](App& a, int, int) { return a.post(cmd::Restart{}), a.say("started over from the start map"), true; }},
     {"P / U", "pin / unpin the selection", {any(keys::letter('p')), any(keys::letter('u'))}, nullptr,
      [](App& a, int key, int) {
        if (key == keys::letter('u')) return a.interaction->unpin_selection(), a.say("unpinned the selection"), true;
        a.interaction->pin_selection();
        return a.say("pinned " + std::to_string(a.view->selection().size()) + " where they are"), true;
      }},
-    {"/", "search by id or tag (column=value for exact)", {plain(keys::kSlash)}, nullptr,
-     [](App& a, int, int) { return a.show_panels = true, a.focus_search = true, true; }},
+    {"/", "find by id or tag (column=value for exact)", {plain(keys::kSlash)}, nullptr,
+     [](App& a, int, int) { return a.show_panels = a.show_selected = true, a.focus_search = true, true; }},
     {"ctrl + A, Esc", "select all, clear the selection (Esc: first closes this help)",
      {ctrl(keys::kA), any(keys::kEscape)}, nullptr,
      [](App& a, int key, int) {
@@ -391,12 +391,12 @@ const std::vector<KeyRow> kTable = {
     {"G / J / I", "floor grid / judgment lines / pictures or discs",
      any_of({keys::letter('g'), keys::letter('j'), keys::letter('i')}), nullptr, toggle_view},
     {"[ / ]", "smaller / larger discs", any_of({keys::kLeftBracket, keys::kRightBracket}), nullptr, disc_size},
-    {"N", "night or paper ground", {any(keys::letter('n'))}, nullptr,
+    {"N", "ground: paper or night", {any(keys::letter('n'))}, nullptr,
      [](App& a, int, int) {
        a.set_view([](ViewOptions& o) { o.dark = !o.dark; });
        return apply_ui_style(a.view->options().dark), true;
      }},
-    {"Tab", "hide or show the panels", {any(keys::kTab)}, nullptr,
+    {"Tab", "hide or show all panels", {any(keys::kTab)}, nullptr,
      [](App& a, int, int) { return a.show_panels = !a.show_panels, true; }},
     {"S", "structure: suspects, groups, neighbour comparison", {any(keys::letter('s'))}, nullptr,
      [](App& a, int, int) { return a.show_structure = !a.show_structure, a.show_panels = true, true; }},

@@ -12,6 +12,7 @@
 #include "solver/io/collection.h"
 #include "solver/io/safe_file.h"
 #include "solver/measures/judgment_health.h"
+#include "viewer/panels/ui_style.h"
 #include "viewer/session/session_export.h"
 #include "viewer/window/offscreen_render.h"
 
@@ -198,7 +199,9 @@ void SessionMenu::windows() {
     ImGui::OpenPopup("Session##dialog");
     open_popup_ = false;
   }
-  if (!ImGui::BeginPopupModal("Session##dialog", nullptr, ImGuiWindowFlags_AlwaysAutoResize)) return;
+  if (!ImGui::BeginPopupModal("Session##dialog", nullptr, ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoTitleBar))
+    return;
+  panel_heading("Session", nullptr);
   static const char* kTitles[] = {"",
                                   "Save this session as (kith goes on saving there)",
                                   "New session from a collection (opens in a new window)",
@@ -214,14 +217,10 @@ void SessionMenu::windows() {
   ImGui::SetNextItemWidth(480);
   ImGui::InputText(dialog_ == Dialog::kNew ? "new session file" : "file", path_, sizeof path_);
   if (dialog_ == Dialog::kJudgments) {
-    ImGui::RadioButton("names", &people_rule_, 0);
-    ImGui::SameLine();
-    ImGui::RadioButton("codes (P1, P2, ...)", &people_rule_, 1);
-    ImGui::SameLine();
-    ImGui::RadioButton("leave people out", &people_rule_, 2);
+    chip_choice("people as", &people_rule_, {"names", "codes (P1, P2, ...)", "left out"});
   }
   if (dialog_ != Dialog::kSaveAs && dialog_ != Dialog::kNew)
-    ImGui::Checkbox("replace an existing file (never a session)", &replace_);
+    chip("replace an existing file (never a session)", &replace_);
   if (!message_.empty()) ImGui::TextColored(ImVec4(0.75f, 0.2f, 0.1f, 1.f), "%s", message_.c_str());
   if (ImGui::Button("OK") || ImGui::IsKeyPressed(ImGui::GetKeyIndex(ImGuiKey_Enter))) {
     message_ = run(dialog_, path_, items_);

@@ -132,6 +132,23 @@ void App::dump_state(const std::string& path) {
                         {"rect", {r[0], r[1], r[2], r[3]}}});
   }
   j["controls"] = controls;
+  // The docks as laid out this frame (window pixels): the free map area, the strip, each panel
+  // shown (with its place) or left out.
+  auto rect = [](const DockRect& r) { return json{r.x0, r.y0, r.x1, r.y1}; };
+  j["map_area"] = rect(dock.map_area);
+  j["strip"] = dock.strip.empty() ? json(nullptr) : rect(dock.strip);
+  json panels = json::array();
+  for (size_t k = 0; k < dock.panels.size(); ++k)
+    panels.push_back({{"name", kDockNames[k]},
+                      {"shown", !dock.panels[k].empty()},
+                      {"squeezed", bool(dock.squeezed[k])},
+                      {"rect", rect(dock.panels[k])}});
+  j["panels"] = panels;
+  if (s)
+    j["engine"] = {{"progress", engine_progress(s.get())},
+                   {"quiet", s->quiet},
+                   {"steps_to_settle", s->steps_to_settle},
+                   {"history", s->history->samples.size()}};
   j["notice"] = settings.notice_showing(seconds()) ? json(settings.notice()) : json(nullptr);
   j["bounds"] = {{view->bounds_lo().x, view->bounds_lo().y, view->bounds_lo().z},
                  {view->bounds_hi().x, view->bounds_hi().y, view->bounds_hi().z}};
