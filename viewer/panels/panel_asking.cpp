@@ -352,6 +352,18 @@ void AskingPanel::draw_turn_banner(float top) {
   ImGui::End();
 }
 
+namespace {
+// A whole-number setting on kith's slider (value beside it); true when it changed.
+bool int_slider(const char* label, int* value, int lo, int hi) {
+  float v = float(*value);
+  if (!value_slider(label, &v, float(lo), float(hi), "%.0f").changed) return false;
+  const int now = std::clamp(int(std::lround(v)), lo, hi);
+  const bool changed = now != *value;
+  *value = now;
+  return changed;
+}
+}  // namespace
+
 void AskingPanel::draw_people(float top) {
   const ImGuiIO& io = ImGui::GetIO();
   const float w = desk_->large_type() ? 360.f : 260.f;
@@ -362,9 +374,10 @@ void AskingPanel::draw_people(float top) {
   ImGui::SetNextWindowSizeConstraints(ImVec2(w, 0), ImVec2(w, most));
   ImGui::SetNextWindowBgAlpha(1.f);
   const bool open = ImGui::Begin("People", nullptr,
-                                 ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoMove |
-                                     ImGuiWindowFlags_NoFocusOnAppearing | ImGuiWindowFlags_NoResize |
-                                     ImGuiWindowFlags_NoCollapse);
+                                 ImGuiWindowFlags_NoTitleBar | ImGuiWindowFlags_NoSavedSettings |
+                                     ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoFocusOnAppearing |
+                                     ImGuiWindowFlags_NoResize | ImGuiWindowFlags_NoCollapse);
+  panel_heading("People", nullptr);
   people_rect_ = window_rect();
   note_region("people", people_rect_);
   if (!open) return ImGui::End();
@@ -416,7 +429,7 @@ void AskingPanel::draw_people(float top) {
   }
   if (!panel_message_.empty()) ImGui::TextWrapped("%s", panel_message_.c_str());
   // Big type is the facilitator's choice, here rather than among the answer buttons.
-  if (bool big = desk_->large_type(); ImGui::Checkbox("big type  (B)", &big)) act({AskingAction::kLargeType});
+  if (bool big = desk_->large_type(); chip("big type  (B)", &big)) act({AskingAction::kLargeType});
   if (!collection_.tags.empty()) {  // what the cards show under (or instead of) the picture
     const std::string now = caption_ >= 0 ? collection_.tags[size_t(caption_)].name : "id";
     ImGui::SetNextItemWidth(w * 0.5f);
@@ -428,28 +441,22 @@ void AskingPanel::draw_people(float top) {
     }
     if (ImGui::IsItemHovered()) ImGui::SetTooltip("the column the question cards show (kith open --caption)");
   }
-  if (ImGui::TreeNode("turns and questions")) {
+  if (fold("turns and questions", &show_turns_)) {
     QuestionFlowOptions o = desk_->flow_options();
     bool changed = false;
     int rule = int(o.turn_rule);
     ImGui::SetNextItemWidth(w * 0.5f);
     changed |= ImGui::Combo("turns", &rule, "after each answer\0after every n\0facilitator (W)\0");
     o.turn_rule = TurnRule(rule);
-    if (o.turn_rule == TurnRule::kEveryN) {
-      ImGui::SetNextItemWidth(w * 0.5f);
-      changed |= ImGui::SliderInt("n", &o.turn_every, 1, 20);
-    }
+    if (o.turn_rule == TurnRule::kEveryN) changed |= int_slider("every n answers", &o.turn_every, 1, 20);
     int choice = int(desk_->picker_choice());
     ImGui::SetNextItemWidth(w * 0.5f);
     if (ImGui::Combo("picker", &choice, "most informative\0random\0about the selection\0"))
       desk_->set_picker_choice(PickerChoice(choice));
     float reask = float(o.reask_rate * 100.0);
-    ImGui::SetNextItemWidth(w * 0.5f);
-    if (ImGui::SliderFloat("re-ask", &reask, 0.f, 50.f, "%.0f %%")) o.reask_rate = reask / 100.0, changed = true;
-    ImGui::SetNextItemWidth(w * 0.5f);
-    changed |= ImGui::SliderInt("grid N", &o.grid_size, 3, 9);
-    ImGui::SetNextItemWidth(w * 0.5f);
-    changed |= ImGui::SliderInt("pick K", &o.grid_choose, 1, std::max(1, o.grid_size - 1));
+    if (value_slider("re-ask", &reask, 0.f, 50.f, "%.0f %%").changed) o.reask_rate = reask / 100.0, changed = true;
+    changed |= int_slider("grid N", &o.grid_size, 3, 9);
+    changed |= int_slider("pick K", &o.grid_choose, 1, std::max(1, o.grid_size - 1));
     o.grid_choose = std::clamp(o.grid_choose, 1, std::max(1, o.grid_size - 1));
     if (changed) {
       std::string e;
@@ -458,7 +465,6 @@ void AskingPanel::draw_people(float top) {
       else
         panel_message_ = e;
     }
-    ImGui::TreePop();
   }
   ImGui::End();
 }
@@ -822,8 +828,9 @@ void AskingPanel::draw_own(float top) {
   ImGui::SetNextWindowPos(ImVec2(cx, bottom), ImGuiCond_Always, ImVec2(0.5f, 1.f));
   ImGui::SetNextWindowBgAlpha(1.f);
   ImGui::Begin("Your own judgment", nullptr,
-               ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoMove |
-                   ImGuiWindowFlags_NoCollapse);
+               ImGuiWindowFlags_NoTitleBar | ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoSavedSettings |
+                   ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoCollapse);
+  panel_heading("Your own judgment", nullptr);
   (void)top;
   own_rect_ = window_rect();
   note_region("own", own_rect_);

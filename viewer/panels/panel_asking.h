@@ -131,6 +131,7 @@ class AskingPanel {
   std::unique_ptr<AskingDesk> desk_;
   std::unordered_map<int, Texture> textures_;
   bool large_applied_ = false;
+  bool show_turns_ = false;  // the People panel's "turns and questions" fold
   float normal_point_size_ = 0.f, normal_picture_size_ = 0.f;
   char new_name_[64] = "";
   char own_line_[256] = "";
