@@ -31,29 +31,26 @@ for k in range(360):
 PY
 build/kith new assets/tea_blends.csv -o "$dir/tea.kith" --judgments "$dir/judgments.csv" >/dev/null
 build/kith judge "$dir/tea.kith" --retract 7 >/dev/null
-# Open the panel; after a while turn the blend (Map panel slider) down to 0, later up to about 3.5,
-# so the chart shows the map honouring the judgments less, then more; choose a row of the list.
+# Open the Judgments and Agreement panels; after a while set the balance between the features and
+# the people (the Map panel's slider, through its own path) to 0, later to 3.5, so the chart shows
+# the map honouring the judgments less, then more. Then hide the Map panel (its "hide" at the
+# right of its heading, top of the right column) so the two panels get the column's height,
+# choose a row of the list (ctrl+down steps through it) and leave the pointer over the menu bar.
 cat > "$dir/script.txt" <<SCRIPT
 5 key L
-150 move 1068 94
-152 press left
-155 move 1030 94
-158 move 990 94
-161 move 960 94
-165 release left
-480 move 1000 94
-482 press left
-485 move 1050 94
-488 move 1092 94
-492 release left
-800 key ctrl+DOWN
-802 key ctrl+DOWN
-804 key ctrl+DOWN
-806 key ctrl+DOWN
-940 move 640 795
-950 shot $out
-951 quit
+150 set blend 0
+1200 set blend 3.5
+1210 move 1248 42
+1212 press left
+1214 release left
+2300 key ctrl+DOWN
+2302 key ctrl+DOWN
+2304 key ctrl+DOWN
+2306 key ctrl+DOWN
+2440 move 700 10
+2450 shot $out
+2451 quit
 SCRIPT
-xvfb-run -a -s '-screen 0 1280x800x24' build/kith open "$dir/tea.kith" --frames 1000 --script "$dir/script.txt"
+xvfb-run -a -s '-screen 0 1280x800x24' build/kith open "$dir/tea.kith" --frames 2500 --script "$dir/script.txt"
 echo "wrote $out"
 rm -rf "$dir"

@@ -209,7 +209,9 @@ void StructurePanel::tab_suspects() {
     }
     ImGui::EndTable();
   }
+  ImGui::PushTextWrapPos(0.f);  // the panel may be narrower than the sentence
   ImGui::TextDisabled("the selection holds it and its map neighbours, framed in the map");
+  ImGui::PopTextWrapPos();
 }
 
 void StructurePanel::tab_groups() {
