@@ -40,6 +40,9 @@ constexpr const char* kDockNames[kDockCount] = {"Colours", "Selected items", "St
 constexpr float kStripHeight = 54.f;        // the engine strip along the bottom
 constexpr float kLeftColumnWidth = 320.f;   // the columns' widths when the window has room
 constexpr float kRightColumnWidth = 320.f;
+// The right column while the Judgments panel is in it: its list has seven columns (id, anchor,
+// nearer, farther, person, time, kind) that 320 pixels cut to single letters.
+constexpr float kJudgmentsColumnWidth = 460.f;
 
 // An input event from GLFW or the script, handled after ImGui has seen the frame's input.
 struct QueuedEvent {

@@ -131,7 +131,7 @@ void App::lay_out_docks() {
   o.top = show_panels ? ImGui::GetFrameHeight() : 0.f;
   o.bottom_strip = docks && show_strip ? kStripHeight : 0.f;
   o.left_width = kLeftColumnWidth;
-  o.right_width = kRightColumnWidth;
+  o.right_width = show_judgments ? kJudgmentsColumnWidth : kRightColumnWidth;
   dock = layout_docks(io.DisplaySize.x, io.DisplaySize.y, panels, o);
 }
 
