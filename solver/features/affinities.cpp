@@ -158,7 +158,7 @@ SparseAffinities joint_affinities_for(const Points& features, double perplexity,
   if (search.exact) no.exact_below = size_t(-1);
   const size_t k = std::max<size_t>(neighbour_count(size_t(features.rows()), perplexity), 1);
   if (search.stages)
-    search.stages->begin(size_t(features.rows()) < no.exact_below ? "neighbours (exact)" : "neighbours (HNSW)");
+    search.stages->begin(searches_with_hnsw(size_t(features.rows()), no) ? "neighbours (HNSW)" : "neighbours (exact)");
   NeighbourGraph found = find_neighbours(features, k, no);
   if (search.stages) search.stages->begin("affinities");
   AffinityOptions ao;

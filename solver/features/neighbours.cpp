@@ -82,7 +82,7 @@ std::vector<int32_t> exact_row(const Points& x, Eigen::Index i, size_t k) {
 }
 
 // The share of the exact neighbours of `sample` rows that G holds.
-double sampled_recall(const Points& x, const NeighbourGraph& g, const std::vector<Eigen::Index>& sample,
+double sampled_recall(const NeighbourGraph& g, const std::vector<Eigen::Index>& sample,
                       const std::vector<std::vector<int32_t>>& exact) {
   size_t found = 0, wanted = 0;
   for (size_t s = 0; s < sample.size(); ++s) {
@@ -140,12 +140,12 @@ void hnsw_search(const Points& x, size_t k, const NeighbourOptions& options, Nei
   for (size_t i = 0; i < s; ++i) sample[i] = Eigen::Index((i * size_t(n)) / s);
   std::vector<std::vector<int32_t>> exact(s);
   parallel_for(s, options.threads, [&](size_t i) { exact[i] = exact_row(x, sample[i], k); });
-  g.recall = sampled_recall(x, g, sample, exact);
+  g.recall = sampled_recall(g, sample, exact);
   g.recall_sample = s;
   for (int retry = 0; retry < options.hnsw_retries && g.recall < options.min_recall; ++retry) {
     ef *= 2;
     hnsw_query(x, xf, *index, k, ef, options.threads, g);
-    g.recall = sampled_recall(x, g, sample, exact);
+    g.recall = sampled_recall(g, sample, exact);
   }
 }
 
@@ -179,10 +179,10 @@ NeighbourGraph find_neighbours(const Points& given, size_t k, const NeighbourOpt
   g.k = k;
   g.index.assign(n * k, 0);
   g.distance2.assign(n * k, 0.0);
-  if (n < options.exact_below)
-    exact_search(x, k, options.threads, g);
-  else
+  if (searches_with_hnsw(n, options))
     hnsw_search(x, k, options, g);
+  else
+    exact_search(x, k, options.threads, g);
   return g;
 }
 

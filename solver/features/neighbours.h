@@ -41,6 +41,9 @@ Points unit_rows(const Points& x);
 // The first row (0-based) without a direction (length 0 or not finite), or -1.
 Eigen::Index first_zero_row(const Points& x);
 
+// True when find_neighbours searches N items with HNSW (N >= options.exact_below), else exact.
+inline bool searches_with_hnsw(size_t n, const NeighbourOptions& options) { return n >= options.exact_below; }
+
 NeighbourGraph find_neighbours(const Points& x, size_t k, const NeighbourOptions& options = {});
 
 }  // namespace kith

@@ -487,27 +487,28 @@ Collection load_npy(std::string_view bytes, const std::string& name, const LoadO
 
 bool is_npy_name(const std::string& name) { return ends_with_ci(name, ".npy"); }
 
+// The given neighbour graph (--neighbours), read against the loaded items.
+Collection with_graph(Collection c, const LoadOptions& options) {
+  if (!options.neighbours.empty()) c.neighbours = read_neighbour_graph(options.neighbours, c, &c.warnings);
+  return c;
+}
+
 }  // namespace
 
 Collection load_collection_from_memory(std::string data, const std::string& name, const LoadOptions& options) {
   check_options(options, name);
-  Collection c = looks_like_npy(data) || is_npy_name(name) ? load_npy(data, name, options)
-                                                            : load_table(std::move(data), name, options);
-  if (!options.neighbours.empty()) c.neighbours = read_neighbour_graph(options.neighbours, c, &c.warnings);
-  return c;
+  return with_graph(looks_like_npy(data) || is_npy_name(name) ? load_npy(data, name, options)
+                                                               : load_table(std::move(data), name, options),
+                    options);
 }
 
 Collection load_collection(const std::string& path, const LoadOptions& options) {
   check_options(options, path);
   if (!is_npy_name(path)) return load_collection_from_memory(read_file(path), path, options);
-  // An array is parsed straight from the mapped file (solver/io/mapped_file.h), never copied whole.
-  Collection c;
-  {
-    const MappedFile mapped(path);
-    c = load_npy(mapped.bytes(), path, options);
-  }
-  if (!options.neighbours.empty()) c.neighbours = read_neighbour_graph(options.neighbours, c, &c.warnings);
-  return c;
+  // An array is parsed straight from the mapped file (solver/io/mapped_file.h), never copied whole;
+  // the mapping is gone before the graph is read.
+  Collection c = load_npy(MappedFile(path).bytes(), path, options);
+  return with_graph(std::move(c), options);
 }
 
 int default_tag_column(const Collection& collection) {

@@ -2,6 +2,7 @@
 
 
 #include <algorithm>
+#include <initializer_list>
 #include <cmath>
 #include <map>
 #include <numeric>
@@ -304,12 +305,21 @@ void MapView::rebuild_colours() {
   dirty_points_ = true;
 }
 
+namespace {
+// A size chosen by the number of items N: that of the first step with N <= up_to, else `beyond`.
+struct CountStep {
+  size_t up_to;
+  float size;
+};
+float size_by_count(size_t n, std::initializer_list<CountStep> steps, float beyond) {
+  for (const CountStep& s : steps)
+    if (n <= s.up_to) return s.size;
+  return beyond;
+}
+}  // namespace
+
 float MapView::auto_point_size() const {
-  const size_t n = collection_.size();
-  if (n <= 2000) return 10.f;
-  if (n <= 20000) return 7.f;
-  if (n <= 60000) return 5.f;
-  return 3.5f;
+  return size_by_count(collection_.size(), {{2000, 10.f}, {20000, 7.f}, {60000, 5.f}}, 3.5f);
 }
 
 void MapView::rebuild_points() {
@@ -435,11 +445,7 @@ std::vector<int> MapView::nearest_in_map(int item, int k) const {
 float MapView::picture_size() const {
   if (options_.picture_size > 0) return options_.picture_size;
   // Large enough to tell pictures apart, small enough that a fitted map is not one pile.
-  const size_t n = collection_.size();
-  if (n <= 500) return 30.f;
-  if (n <= 2000) return 26.f;
-  if (n <= 10000) return 20.f;
-  return 16.f;
+  return size_by_count(collection_.size(), {{500, 30.f}, {2000, 26.f}, {10000, 20.f}}, 16.f);
 }
 
 void MapView::update_pictures() {
